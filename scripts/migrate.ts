@@ -1,0 +1,6 @@
+import { runMigrations } from '../src/db/migrate';
+import { databaseUrl } from '../src/env';
+
+const started = Date.now();
+await runMigrations(databaseUrl());
+console.log(`[plateau] Migrations applied (${Date.now() - started} ms)`);

@@ -1,0 +1,3 @@
+export * from './accounts';
+export * from './production';
+export * from './system';
