@@ -1,0 +1,105 @@
+import { defineMiddleware } from 'astro:middleware';
+import { lucia, SESSION_ABSOLUTE_MS, setSessionCookie, clearSessionCookie } from './server/auth/session';
+import { membershipsOf, workspaceSettings } from './server/workspaces';
+import { cspForHtml, BASE_SECURITY_HEADERS } from './server/csp';
+import { jsonError } from './server/http';
+import { isDbUnavailable } from './server/db-errors';
+
+/** Reachable without a session. Everything else needs one. */
+const PUBLIC_PAGES = [/^\/sign-in\/?$/, /^\/sign-up\/?$/, /^\/confirm\//, /^\/invite\//, /^\/forgot-password\/?$/, /^\/reset-password\//, /^\/404\/?$/, /^\/500\/?$/];
+const PUBLIC_API = [/^\/api\/health\/?$/, /^\/api\/auth\//, /^\/api\/feeds\/[^/]+\.ics$/];
+
+const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
+
+/** The request's Origin (or Referer) must name the host the request was sent to. */
+function sameOrigin(request: Request): boolean {
+  const host = request.headers.get('x-forwarded-host') && process.env.TRUST_PROXY === '1' ? request.headers.get('x-forwarded-host') : request.headers.get('host');
+  const source = request.headers.get('origin') ?? request.headers.get('referer');
+  if (!host || !source || source === 'null') return false;
+  try { return new URL(source).host === host; } catch { return false; }
+}
+
+export const onRequest = defineMiddleware(async (ctx, next) => {
+  const { request, url, locals, cookies } = ctx;
+  const path = url.pathname;
+  const isApi = path.startsWith('/api/');
+  const secure = url.protocol === 'https:';
+  locals.user = null; locals.sessionId = null; locals.workspace = null; locals.role = null; locals.memberships = [];
+
+  // CSRF: a state-changing request must come from our own origin.
+  if (STATE_CHANGING.has(request.method) && !sameOrigin(request)) {
+    return withHeaders(jsonError(403, 'cross_origin', 'Cross-origin request refused.'));
+  }
+
+  const isStatic = path.startsWith('/_astro/') || path === '/favicon.svg' || path.startsWith('/fonts/');
+  if (!isStatic) {
+    try {
+      const sessionId = cookies.get('plateau_session')?.value ?? null;
+      if (sessionId) {
+        const { session, user } = await lucia().validateSession(sessionId);
+        const tooOld = session && Date.now() - new Date(session.createdAt).getTime() > SESSION_ABSOLUTE_MS;
+        if (!session || !user || user.disabledAt || tooOld) {
+          if (session) await lucia().invalidateSession(session.id);
+          clearSessionCookie(cookies, secure);
+        } else {
+          if (session.fresh) setSessionCookie(cookies, session.id, secure);
+          locals.user = { id: user.id, email: user.email, name: user.name };
+          locals.sessionId = session.id;
+          locals.memberships = await membershipsOf(user.id);
+          const chosen = locals.memberships.find((m) => m.workspaceId === session.workspaceId) ?? locals.memberships[0];
+          if (chosen) {
+            locals.workspace = await workspaceSettings(chosen.workspaceId);
+            locals.role = chosen.role;
+          }
+        }
+      }
+    } catch (err) {
+      if (isDbUnavailable(err)) {
+        if (isApi) return withHeaders(jsonError(503, 'unavailable', 'The database is not answering; try again shortly.', undefined, { 'retry-after': '5' }));
+        return withHeaders(new Response(unavailablePage(), { status: 503, headers: { 'content-type': 'text/html; charset=utf-8', 'retry-after': '5' } }));
+      }
+      throw err;
+    }
+
+    const isPublic = isApi ? PUBLIC_API.some((r) => r.test(path)) : PUBLIC_PAGES.some((r) => r.test(path));
+    if (!isPublic && !locals.user && !isApi) {
+      return ctx.redirect(`/sign-in?next=${encodeURIComponent(path + url.search)}`, 303);
+    }
+  }
+
+  let response: Response;
+  try {
+    response = await next();
+  } catch (err) {
+    if (isApi) return withHeaders(jsonError(isDbUnavailable(err) ? 503 : 500, isDbUnavailable(err) ? 'unavailable' : 'internal', 'Something went wrong on our side.'));
+    throw err;
+  }
+  return withHeaders(response, isStatic);
+});
+
+async function withHeadersAsync(response: Response): Promise<Response> {
+  const html = await response.text();
+  const headers = new Headers(response.headers);
+  headers.set('content-security-policy', cspForHtml(html));
+  for (const [k, v] of Object.entries(BASE_SECURITY_HEADERS)) if (!headers.has(k)) headers.set(k, v);
+  return new Response(html, { status: response.status, statusText: response.statusText, headers });
+}
+
+function withHeaders(response: Response, isStatic = false): Response | Promise<Response> {
+  const type = response.headers.get('content-type') ?? '';
+  if (!isStatic && type.includes('text/html')) return withHeadersAsync(response);
+  try {
+    for (const [k, v] of Object.entries(BASE_SECURITY_HEADERS)) if (!response.headers.has(k)) response.headers.set(k, v);
+    if (!response.headers.has('content-security-policy')) response.headers.set('content-security-policy', "default-src 'none'; frame-ancestors 'none'");
+    return response;
+  } catch {
+    // Immutable headers (e.g. a fetched response): copy.
+    const headers = new Headers(response.headers);
+    for (const [k, v] of Object.entries(BASE_SECURITY_HEADERS)) if (!headers.has(k)) headers.set(k, v);
+    return new Response(response.body, { status: response.status, headers });
+  }
+}
+
+function unavailablePage(): string {
+  return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width"><title>Plateau — back shortly</title></head><body style="font-family:sans-serif;padding:2rem"><h1>Back in a moment</h1><p>Plateau cannot reach its database right now. Your readings and bookings are safe; this page will work again as soon as the database answers. Try again in a few seconds.</p></body></html>`;
+}

@@ -1,0 +1,38 @@
+import type { APIRoute } from 'astro';
+import { z } from 'zod';
+import { signIn } from '../../../server/accounts';
+import { setSessionCookie } from '../../../server/auth/session';
+import { errorResponse, json, jsonError, zodFields, HttpError } from '../../../server/http';
+import { clientIp } from '../../../server/request';
+
+const Body = z.object({
+  email: z.string().trim().min(3, 'Enter your e-mail.').max(254).email('Enter a valid e-mail.'),
+  password: z.string().min(1, 'Enter your password.').max(1000),
+  next: z.string().max(500).optional(),
+});
+
+/** Accepts JSON (islands, tests) or a plain form post (the sign-in page works without JS). */
+export const POST: APIRoute = async (ctx) => {
+  const isForm = (ctx.request.headers.get('content-type') ?? '').includes('application/x-www-form-urlencoded');
+  try {
+    const raw = isForm ? Object.fromEntries(await ctx.request.formData()) : await ctx.request.json().catch(() => null);
+    const parsed = Body.safeParse(raw);
+    if (!parsed.success) {
+      if (isForm) return ctx.redirect('/sign-in?error=invalid', 303);
+      return jsonError(400, 'invalid', 'Check the highlighted fields.', zodFields(parsed.error));
+    }
+    const { session } = await signIn({ ...parsed.data, ip: clientIp(ctx), userAgent: ctx.request.headers.get('user-agent') });
+    setSessionCookie(ctx.cookies, session.id, ctx.url.protocol === 'https:');
+    const next = parsed.data.next && parsed.data.next.startsWith('/') && !parsed.data.next.startsWith('//') ? parsed.data.next : '/';
+    return isForm ? ctx.redirect(next, 303) : json({ ok: true, next });
+  } catch (err) {
+    if (err instanceof HttpError && isForm) {
+      if (err.status === 429) return ctx.redirect(`/sign-in?error=throttled&wait=${err.extra?.retryAfter ?? 60}`, 303);
+      if (err.status === 400) return ctx.redirect('/sign-in?error=credentials', 303);
+    }
+    if (err instanceof HttpError && err.status === 429) {
+      return jsonError(429, 'throttled', err.message, undefined, { 'retry-after': String(err.extra?.retryAfter ?? 60) });
+    }
+    return errorResponse(err);
+  }
+};

@@ -1,0 +1,165 @@
+import type { APIContext, APIRoute } from 'astro';
+import { z, type ZodType } from 'zod';
+import { can, type Action } from './authz';
+import type { Role } from '../db/schema';
+import { isDbUnavailable } from './db-errors';
+
+/** The one JSON error shape: { error: { code, message, fields? } }. */
+export function jsonError(status: number, code: string, message: string, fields?: Record<string, string>, headers: Record<string, string> = {}): Response {
+  return new Response(JSON.stringify({ error: { code, message, ...(fields ? { fields } : {}) } }), {
+    status,
+    headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store', ...headers },
+  });
+}
+
+export function json(data: unknown, status = 200, headers: Record<string, string> = {}): Response {
+  return new Response(JSON.stringify(data), {
+    status,
+    headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store', ...headers },
+  });
+}
+
+/** Thrown from server/ code to answer with a specific status. */
+export class HttpError extends Error {
+  constructor(public status: number, public code: string, message: string, public fields?: Record<string, string>, public extra?: Record<string, unknown>) {
+    super(message);
+  }
+}
+export const notFound = (what = 'Not found') => new HttpError(404, 'not_found', what);
+export const conflict = (message: string, extra?: Record<string, unknown>) => new HttpError(409, 'conflict', message, undefined, extra);
+export const invalid = (field: string, message: string) => new HttpError(400, 'invalid', message, { [field]: message });
+
+/** Map zod issues to { "path.to.field": "message" }. */
+export function zodFields(error: z.ZodError): Record<string, string> {
+  const fields: Record<string, string> = {};
+  for (const issue of error.issues) {
+    const key = issue.path.length ? issue.path.join('.') : '_';
+    if (!fields[key]) fields[key] = issue.message;
+  }
+  return fields;
+}
+
+function invalidResponse(error: z.ZodError): Response {
+  const fields = zodFields(error);
+  const first = Object.entries(fields)[0];
+  const message = first ? (first[0] === '_' ? first[1] : `${first[0]}: ${first[1]}`) : 'Invalid input';
+  return jsonError(400, 'invalid', message, fields);
+}
+
+export const MAX_JSON_BYTES = 256 * 1024;
+
+export interface Authed {
+  userId: number;
+  workspaceId: number;
+  role: Role;
+  timeZone: string;
+}
+
+type Handler<B, Q> = (args: { ctx: APIContext; auth: Authed; body: B; query: Q; params: Record<string, string | undefined> }) => Promise<Response>;
+
+/**
+ * Every API route goes through here, in a fixed order:
+ * 401 no session -> 403 role -> 400 invalid input -> (handler: 404 / 409 / 2xx).
+ * Thrown HttpErrors become their status; a lost database becomes 503 with Retry-After;
+ * anything else is a 500 without a stack trace.
+ */
+export function route<B = undefined, Q = undefined>(
+  opts: { action: Action; body?: ZodType<B>; query?: ZodType<Q> },
+  handler: Handler<B, Q>,
+): APIRoute {
+  return async (ctx) => {
+    try {
+      const { user, workspace, role } = ctx.locals;
+      if (!user || !workspace || !role) return jsonError(401, 'unauthenticated', 'Sign in first.');
+      if (!can(role, opts.action)) return jsonError(403, 'forbidden', 'Your role cannot do this.');
+      let query = undefined as Q;
+      if (opts.query) {
+        const raw = Object.fromEntries(ctx.url.searchParams.entries());
+        const parsed = opts.query.safeParse(raw);
+        if (!parsed.success) return invalidResponse(parsed.error);
+        query = parsed.data;
+      }
+      let body = undefined as B;
+      if (opts.body) {
+        const text = await readLimitedText(ctx.request, MAX_JSON_BYTES);
+        if (text === null) return jsonError(413, 'too_large', `The request body is over ${MAX_JSON_BYTES / 1024} kB.`);
+        let data: unknown;
+        try {
+          data = text.length ? JSON.parse(text) : {};
+        } catch {
+          return jsonError(400, 'invalid_json', 'The request body is not valid JSON.');
+        }
+        const parsed = opts.body.safeParse(data);
+        if (!parsed.success) return invalidResponse(parsed.error);
+        body = parsed.data;
+      }
+      return await handler({ ctx, auth: { userId: user.id, workspaceId: workspace.id, role, timeZone: workspace.timeZone }, body, query, params: ctx.params as Record<string, string | undefined> });
+    } catch (err) {
+      return errorResponse(err);
+    }
+  };
+}
+
+/** A public route (no session): same error handling, same validation. */
+export function publicRoute<B = undefined>(opts: { body?: ZodType<B> }, handler: (args: { ctx: APIContext; body: B }) => Promise<Response>): APIRoute {
+  return async (ctx) => {
+    try {
+      let body = undefined as B;
+      if (opts.body) {
+        const text = await readLimitedText(ctx.request, MAX_JSON_BYTES);
+        if (text === null) return jsonError(413, 'too_large', 'The request body is too large.');
+        let data: unknown;
+        try { data = text.length ? JSON.parse(text) : {}; } catch { return jsonError(400, 'invalid_json', 'The request body is not valid JSON.'); }
+        const parsed = opts.body.safeParse(data);
+        if (!parsed.success) return invalidResponse(parsed.error);
+        body = parsed.data;
+      }
+      return await handler({ ctx, body });
+    } catch (err) {
+      return errorResponse(err);
+    }
+  };
+}
+
+export function errorResponse(err: unknown): Response {
+  if (err instanceof HttpError) {
+    if (err.extra) {
+      return json({ error: { code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) }, ...err.extra }, err.status);
+    }
+    return jsonError(err.status, err.code, err.message, err.fields);
+  }
+  if (isDbUnavailable(err)) {
+    return jsonError(503, 'unavailable', 'The database is not answering; try again shortly.', undefined, { 'retry-after': '5' });
+  }
+  console.error('[plateau] unhandled error:', err instanceof Error ? err.message : String(err));
+  return jsonError(500, 'internal', 'Something went wrong on our side. It has been logged.');
+}
+
+/** Read a request body up to `limit` bytes; null when larger (refused early, by header or by stream). */
+export async function readLimitedText(request: Request, limit: number): Promise<string | null> {
+  const declared = Number(request.headers.get('content-length') ?? '0');
+  if (declared > limit) return null;
+  if (!request.body) return '';
+  const reader = request.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    total += value.byteLength;
+    if (total > limit) {
+      await reader.cancel().catch(() => {});
+      return null;
+    }
+    chunks.push(value);
+  }
+  return Buffer.concat(chunks).toString('utf8');
+}
+
+/** Route params are ids: positive integers, else 404 (an id that cannot exist is not found). */
+export function idParam(value: string | undefined): number {
+  if (!value || !/^\d{1,15}$/.test(value)) throw notFound();
+  const n = Number(value);
+  if (!Number.isSafeInteger(n) || n <= 0) throw notFound();
+  return n;
+}

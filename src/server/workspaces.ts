@@ -1,0 +1,40 @@
+import { and, eq, asc } from 'drizzle-orm';
+import { getDb } from '../db/client';
+import { memberships, workspaces, type Role } from '../db/schema';
+
+export interface WorkspaceSettings {
+  id: number;
+  name: string;
+  timeZone: string;
+  units: 'metric' | 'us';
+  calibrationTempC: number;
+  stableDays: number;
+  stableTolerance: number;
+  wortCorrectionFactor: number;
+  isDemo: boolean;
+}
+
+export async function membershipsOf(userId: number): Promise<Array<{ workspaceId: number; name: string; role: Role }>> {
+  const db = getDb();
+  return db
+    .select({ workspaceId: memberships.workspaceId, name: workspaces.name, role: memberships.role })
+    .from(memberships)
+    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
+    .where(eq(memberships.userId, userId))
+    .orderBy(asc(workspaces.name));
+}
+
+export async function workspaceSettings(workspaceId: number): Promise<WorkspaceSettings | null> {
+  const [row] = await getDb().select().from(workspaces).where(eq(workspaces.id, workspaceId)).limit(1);
+  if (!row) return null;
+  return {
+    id: row.id, name: row.name, timeZone: row.timeZone, units: row.units, calibrationTempC: row.calibrationTempC,
+    stableDays: row.stableDays, stableTolerance: row.stableTolerance, wortCorrectionFactor: row.wortCorrectionFactor, isDemo: row.isDemo,
+  };
+}
+
+export async function roleIn(userId: number, workspaceId: number): Promise<Role | null> {
+  const [row] = await getDb().select({ role: memberships.role }).from(memberships)
+    .where(and(eq(memberships.userId, userId), eq(memberships.workspaceId, workspaceId))).limit(1);
+  return row?.role ?? null;
+}
