@@ -4,7 +4,7 @@
  */
 import { eq, and, inArray } from 'drizzle-orm';
 import { writeFileSync, mkdirSync } from 'node:fs';
-import { getDb, closeDb } from '../src/db/client';
+import { getDb, closeDb, type Db } from '../src/db/client';
 import * as t from '../src/db/schema';
 import { hashPassword } from '../src/server/auth/password';
 import { newToken, hashToken } from '../src/server/auth/tokens';
@@ -14,8 +14,8 @@ import { DEMO_FERMENTERS, DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STILLS, DEMO_TZ, DEMO
 
 export const DEMO_FEED_TOKEN_FILE = '.data/demo-feed-token';
 
-export async function loadDemo(opts: { force?: boolean; now?: Date; quiet?: boolean } = {}): Promise<{ created: boolean; workspaceId: number; feedToken: string | null }> {
-  const db = getDb();
+export async function loadDemo(opts: { force?: boolean; now?: Date; quiet?: boolean; db?: Db; tokenFile?: string | null } = {}): Promise<{ created: boolean; workspaceId: number; feedToken: string | null }> {
+  const db = opts.db ?? getDb();
   const now = opts.now ?? new Date();
   const existing = await db.select().from(t.workspaces).where(and(eq(t.workspaces.name, DEMO_WORKSPACE), eq(t.workspaces.isDemo, true)));
   if (existing.length && !opts.force) return { created: false, workspaceId: existing[0]!.id, feedToken: null };
@@ -101,8 +101,11 @@ export async function loadDemo(opts: { force?: boolean; now?: Date; quiet?: bool
     await tx.insert(t.calendarFeeds).values({ workspaceId: wsId, scope: 'workspace', name: 'Whole distillery', tokenHash: hashToken(feedToken), createdBy: userIds.get(DEMO_PEOPLE[0].email)! });
     return wsId;
   });
-  mkdirSync('.data', { recursive: true });
-  writeFileSync(DEMO_FEED_TOKEN_FILE, feedToken + '\n', { mode: 0o600 });
+  const tokenFile = opts.tokenFile === undefined ? DEMO_FEED_TOKEN_FILE : opts.tokenFile;
+  if (tokenFile) {
+    mkdirSync('.data', { recursive: true });
+    writeFileSync(tokenFile, feedToken + '\n', { mode: 0o600 });
+  }
   if (!opts.quiet) console.log(`[plateau] Demo distillery "${DEMO_WORKSPACE}" loaded.`);
   return { created: true, workspaceId, feedToken };
 }

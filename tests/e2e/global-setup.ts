@@ -1,0 +1,1 @@
+export { setup, teardown } from '../helpers/server';
