@@ -1,5 +1,5 @@
 import { runMigrations } from '../src/db/migrate';
-import { databaseUrl } from '../src/env';
+import { databaseUrl } from '../src/config';
 
 const started = Date.now();
 await runMigrations(databaseUrl());

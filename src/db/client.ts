@@ -1,7 +1,7 @@
 import mysql from 'mysql2/promise';
 import { drizzle, type MySql2Database } from 'drizzle-orm/mysql2';
 import * as schema from './schema';
-import { databaseUrl } from '../env';
+import { databaseUrl } from '../config';
 
 export type Db = MySql2Database<typeof schema>;
 

@@ -4,7 +4,7 @@ import { drizzle } from 'drizzle-orm/mysql2';
 import { eq } from 'drizzle-orm';
 import { execFileSync } from 'node:child_process';
 import { runMigrations } from '../../src/db/migrate';
-import { databaseUrl } from '../../src/env';
+import { databaseUrl } from '../../src/config';
 import * as schema from '../../src/db/schema';
 import { loadDemo } from '../../seed/load';
 import { getDb } from '../../src/db/client';
