@@ -9,6 +9,7 @@ export default defineConfig({
   adapter: node({ mode: 'standalone' }),
   integrations: [react()],
   server: { host: '127.0.0.1', port: 4321 },
+  devToolbar: { enabled: false },
   // Origin (CSRF) checks for every content type live in src/middleware.ts, comparing with the Host header.
   security: { checkOrigin: false, allowedDomains: [{ hostname: '127.0.0.1' }, { hostname: 'localhost' }] },
   vite: {
