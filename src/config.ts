@@ -14,6 +14,8 @@ const schema = z.object({
   PLATEAU_MODE: z.enum(['development', 'demo', 'production', 'test']).default('development'),
   PLATEAU_INSTANCE: z.string().default('app-1'),
   OUTBOX_DISABLED: z.string().optional(),
+  /** Outbox sender poll interval, ms. */
+  OUTBOX_POLL_MS: z.coerce.number().int().min(200).default(2000),
   /** Where the fake SMTP server keeps messages (development and tests only). */
   MAILBOX_DIR: z.string().default('.data/mailbox'),
 });

@@ -4,6 +4,8 @@ import { membershipsOf, workspaceSettings } from './server/workspaces';
 import { cspForHtml, BASE_SECURITY_HEADERS } from './server/csp';
 import { jsonError } from './server/http';
 import { isDbUnavailable } from './server/db-errors';
+// Starts the mail outbox sender once per server process.
+import './server/mail/start';
 
 /** Reachable without a session. Everything else needs one. */
 const PUBLIC_PAGES = [/^\/sign-in\/?$/, /^\/sign-up\/?$/, /^\/confirm\//, /^\/invite\//, /^\/forgot-password\/?$/, /^\/reset-password\//, /^\/404\/?$/, /^\/500\/?$/];

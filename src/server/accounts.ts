@@ -1,11 +1,20 @@
-import { eq } from 'drizzle-orm';
+import { eq, and, isNull, gt, ne, desc, sql } from 'drizzle-orm';
+import type { APIContext, APIRoute } from 'astro';
+import type { ZodType } from 'zod';
+import { emailTokens, sessions, workspaces, memberships } from '../db/schema';
+import { lucia } from './auth/session';
+import { newToken, hashToken } from './auth/tokens';
+import { enqueue } from './mail/outbox';
+import { signUpConfirmMail, alreadyRegisteredMail, passwordResetMail } from './mail/templates';
+import { env } from '../config';
+import { errorResponse, jsonError, readLimitedText, MAX_JSON_BYTES, zodFields, notFound } from './http';
 import { getDb } from '../db/client';
 import { users } from '../db/schema';
 import { verifyPassword, hashPassword, needsRehash, dummyPasswordHash } from './auth/password';
 import { createSession } from './auth/session';
 import { blockedFor, recordFailure, clearFailures, throttleKeys } from './throttle';
 import { audit } from './audit';
-import { membershipsOf } from './workspaces';
+import { membershipsOf, roleIn } from './workspaces';
 import { HttpError } from './http';
 
 export const normaliseEmail = (email: string) => email.trim().toLowerCase();
@@ -38,3 +47,220 @@ export async function signIn(input: { email: string; password: string; ip: strin
   await audit({ workspaceId: ms[0]?.workspaceId ?? null, userId: user.id, action: 'auth.sign_in', ip: input.ip });
   return { session, user };
 }
+
+// ---------------------------------------------------------------------------
+// Sign-up, confirmation, password reset, account and sessions.
+// ---------------------------------------------------------------------------
+
+export const SIGNUP_TOKEN_HOURS = 24;
+export const RESET_TOKEN_MINUTES = 30;
+export const MIN_PASSWORD = 10;
+
+export const publicUrl = (path: string) => env().PUBLIC_URL.replace(/\/$/, '') + path;
+
+/**
+ * Ask to open a new distillery. The answer is the same whether or not the address has an
+ * account: a new address gets a confirmation link, a known one gets a note instead.
+ */
+export async function requestSignUp(input: { email: string; name: string; password: string; workspaceName: string; ip: string }): Promise<void> {
+  const email = normaliseEmail(input.email);
+  const passwordHash = await hashPassword(input.password); // always hash: same timing either way
+  const db = getDb();
+  await db.transaction(async (tx) => {
+    const [existing] = await tx.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, email)).limit(1);
+    if (existing) {
+      const mail = alreadyRegisteredMail({ name: existing.name, signInLink: publicUrl('/sign-in'), resetLink: publicUrl('/forgot-password') });
+      await enqueue(tx, { workspaceId: null, kind: 'signup_existing', to: email, ...mail });
+      return;
+    }
+    const token = newToken();
+    await tx.insert(emailTokens).values({
+      purpose: 'signup_confirm', tokenHash: hashToken(token), email, userId: null,
+      payload: { name: input.name, workspaceName: input.workspaceName, passwordHash },
+      expiresAt: new Date(Date.now() + SIGNUP_TOKEN_HOURS * 3600_000),
+    });
+    const mail = signUpConfirmMail({ name: input.name, workspaceName: input.workspaceName, link: publicUrl(`/confirm/${token}`), hours: SIGNUP_TOKEN_HOURS });
+    await enqueue(tx, { workspaceId: null, kind: 'signup_confirm', to: email, ...mail });
+  });
+}
+
+type TokenRow = typeof emailTokens.$inferSelect;
+
+/** A usable (unused, unexpired) e-mailed token of this purpose, or null. */
+export async function findEmailToken(token: string, purpose: TokenRow['purpose']): Promise<TokenRow | null> {
+  if (!token || token.length > 200) return null;
+  const [row] = await getDb().select().from(emailTokens)
+    .where(and(eq(emailTokens.tokenHash, hashToken(token)), eq(emailTokens.purpose, purpose), isNull(emailTokens.usedAt), gt(emailTokens.expiresAt, new Date())))
+    .limit(1);
+  return row ?? null;
+}
+
+const expiredLink = () => new HttpError(410, 'link_expired', 'This link has expired or has already been used. Ask for a new one.');
+
+/** Spend a token exactly once inside a transaction (a concurrent second use updates nothing). */
+async function spendToken(tx: Pick<ReturnType<typeof getDb>, 'update'>, id: number): Promise<void> {
+  const [res] = await tx.update(emailTokens).set({ usedAt: new Date() })
+    .where(and(eq(emailTokens.id, id), isNull(emailTokens.usedAt), gt(emailTokens.expiresAt, new Date())));
+  if ((res as { affectedRows?: number }).affectedRows !== 1) throw expiredLink();
+}
+
+/** Follow a sign-up confirmation: creates the person, the workspace and the manager membership, and signs in. */
+export async function confirmSignUp(token: string, meta: { ip: string; userAgent: string | null }) {
+  const row = await findEmailToken(token, 'signup_confirm');
+  if (!row || !row.payload) throw expiredLink();
+  const { name = 'Manager', workspaceName = 'My distillery', passwordHash = '' } = row.payload;
+  const db = getDb();
+  const { userId, workspaceId } = await db.transaction(async (tx) => {
+    await spendToken(tx, row.id);
+    const [exists] = await tx.select({ id: users.id }).from(users).where(eq(users.email, row.email)).limit(1);
+    if (exists) throw new HttpError(409, 'conflict', 'This address already has an account. Sign in instead.');
+    const [u] = await tx.insert(users).values({ email: row.email, name, passwordHash, emailVerifiedAt: new Date() }).$returningId();
+    const [w] = await tx.insert(workspaces).values({ name: workspaceName }).$returningId();
+    await tx.insert(memberships).values({ workspaceId: w!.id, userId: u!.id, role: 'manager' });
+    await audit({ workspaceId: w!.id, userId: u!.id, action: 'workspace.created', entityType: 'workspace', entityId: w!.id, details: { name: workspaceName }, ip: meta.ip }, tx);
+    return { userId: u!.id, workspaceId: w!.id };
+  });
+  const session = await createSession(userId, workspaceId, meta.userAgent);
+  await audit({ workspaceId, userId, action: 'auth.sign_in', ip: meta.ip });
+  return { session, workspaceId };
+}
+
+/** Ask for a reset link. Same answer whether or not the address has an account. */
+export async function requestPasswordReset(input: { email: string; ip: string }): Promise<void> {
+  const email = normaliseEmail(input.email);
+  const db = getDb();
+  const [user] = await db.select().from(users).where(eq(users.email, email)).limit(1);
+  if (!user || user.disabledAt) return;
+  await db.transaction(async (tx) => {
+    const token = newToken();
+    await tx.insert(emailTokens).values({ purpose: 'password_reset', tokenHash: hashToken(token), email, userId: user.id, expiresAt: new Date(Date.now() + RESET_TOKEN_MINUTES * 60_000) });
+    const mail = passwordResetMail({ name: user.name, link: publicUrl(`/reset-password/${token}`), minutes: RESET_TOKEN_MINUTES });
+    await enqueue(tx, { workspaceId: null, kind: 'password_reset', to: email, ...mail });
+  });
+}
+
+/** Set a new password from a reset link: single use, and every session of that person ends. */
+export async function resetPassword(token: string, password: string, meta: { ip: string }): Promise<void> {
+  const row = await findEmailToken(token, 'password_reset');
+  if (!row || !row.userId) throw expiredLink();
+  const passwordHash = await hashPassword(password);
+  const userId = row.userId;
+  const db = getDb();
+  const ms = await membershipsOf(userId);
+  await db.transaction(async (tx) => {
+    await spendToken(tx, row.id);
+    await tx.update(users).set({ passwordHash, emailVerifiedAt: sql`COALESCE(${users.emailVerifiedAt}, CURRENT_TIMESTAMP(3))` }).where(eq(users.id, userId));
+    await tx.delete(sessions).where(eq(sessions.userId, userId));
+    // Other outstanding reset links for this person stop working too.
+    await tx.update(emailTokens).set({ usedAt: new Date() }).where(and(eq(emailTokens.userId, userId), eq(emailTokens.purpose, 'password_reset'), isNull(emailTokens.usedAt)));
+    for (const m of ms.length ? ms : [{ workspaceId: null as number | null }]) {
+      await audit({ workspaceId: m.workspaceId, userId, action: 'auth.password_reset', ip: meta.ip }, tx);
+    }
+  });
+  await clearFailures(`email:${row.email}`);
+}
+
+export async function updateName(userId: number, name: string): Promise<void> {
+  await getDb().update(users).set({ name }).where(eq(users.id, userId));
+}
+
+/** Change the password (current one required) and end every other session. */
+export async function changePassword(userId: number, currentSessionId: string, current: string, next: string): Promise<{ endedSessions: number }> {
+  const db = getDb();
+  const [user] = await db.select().from(users).where(eq(users.id, userId)).limit(1);
+  if (!user || !(await verifyPassword(user.passwordHash, current))) {
+    throw new HttpError(400, 'invalid', 'Your current password is not right.', { currentPassword: 'Your current password is not right.' });
+  }
+  const passwordHash = await hashPassword(next);
+  await db.update(users).set({ passwordHash }).where(eq(users.id, userId));
+  const ended = await signOutOtherSessions(userId, currentSessionId);
+  const ms = await membershipsOf(userId);
+  for (const m of ms) await audit({ workspaceId: m.workspaceId, userId, action: 'auth.password_changed' });
+  return { endedSessions: ended };
+}
+
+export async function signOutOtherSessions(userId: number, keepSessionId: string): Promise<number> {
+  const [res] = await getDb().delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));
+  return (res as { affectedRows?: number }).affectedRows ?? 0;
+}
+
+/** Sessions are listed by a public handle (a hash of the secret id), never the id itself. */
+export const sessionHandle = (sessionId: string) => hashToken(sessionId).slice(0, 24);
+
+export interface SessionInfo { handle: string; current: boolean; createdAt: Date; expiresAt: Date; userAgent: string | null; device: string }
+
+export async function listSessions(userId: number, currentSessionId: string | null): Promise<SessionInfo[]> {
+  const rows = await getDb().select().from(sessions).where(and(eq(sessions.userId, userId), gt(sessions.expiresAt, new Date()))).orderBy(desc(sessions.createdAt));
+  return rows.map((r) => ({ handle: sessionHandle(r.id), current: r.id === currentSessionId, createdAt: r.createdAt, expiresAt: r.expiresAt, userAgent: r.userAgent, device: describeDevice(r.userAgent) }));
+}
+
+export async function endSessionByHandle(userId: number, handle: string): Promise<void> {
+  const rows = await getDb().select({ id: sessions.id }).from(sessions).where(eq(sessions.userId, userId));
+  const match = rows.find((r) => sessionHandle(r.id) === handle);
+  if (!match) throw notFound('No such session.');
+  await lucia().invalidateSession(match.id);
+}
+
+/** A plain description of a browser from its user-agent string. */
+export function describeDevice(ua: string | null): string {
+  if (!ua) return 'Unknown device';
+  const browser = /Edg\//.test(ua) ? 'Edge' : /Firefox\//.test(ua) ? 'Firefox' : /Chrome\/|Chromium\//.test(ua) ? 'Chrome' : /Safari\//.test(ua) ? 'Safari' : /node|undici|curl/i.test(ua) ? 'Script' : 'Browser';
+  const os = /iPhone|iPad/.test(ua) ? 'iPhone/iPad' : /Android/.test(ua) ? 'Android' : /Windows/.test(ua) ? 'Windows' : /Mac OS X/.test(ua) ? 'Mac' : /Linux/.test(ua) ? 'Linux' : '';
+  return os ? `${browser} on ${os}` : browser;
+}
+
+/** Point the session at another of the person's distilleries (after checking membership). */
+export async function switchWorkspace(userId: number, sessionId: string, workspaceId: number): Promise<void> {
+  const role = await roleIn(userId, workspaceId);
+  if (!role) throw notFound('You are not a member of that distillery.');
+  await getDb().update(sessions).set({ workspaceId }).where(and(eq(sessions.id, sessionId), eq(sessions.userId, userId)));
+}
+
+// ---------------------------------------------------------------------------
+// Small request helpers for routes that need only a signed-in person (not a role),
+// and for public routes that accept JSON or a plain form post.
+// ---------------------------------------------------------------------------
+
+/** Parse a JSON or urlencoded/multipart body (size-limited). */
+export async function readInput(ctx: APIContext): Promise<{ raw: unknown; isForm: boolean }> {
+  const type = ctx.request.headers.get('content-type') ?? '';
+  const isForm = type.includes('application/x-www-form-urlencoded') || type.includes('multipart/form-data');
+  if (isForm) {
+    const declared = Number(ctx.request.headers.get('content-length') ?? '0');
+    if (declared > MAX_JSON_BYTES) throw new HttpError(413, 'too_large', 'The request body is too large.');
+    const form = await ctx.request.formData();
+    const raw: Record<string, string> = {};
+    for (const [k, v] of form.entries()) if (typeof v === 'string') raw[k] = v;
+    return { raw, isForm };
+  }
+  const text = await readLimitedText(ctx.request, MAX_JSON_BYTES);
+  if (text === null) throw new HttpError(413, 'too_large', 'The request body is too large.');
+  try { return { raw: text.length ? JSON.parse(text) : {}, isForm }; } catch { throw new HttpError(400, 'invalid_json', 'The request body is not valid JSON.'); }
+}
+
+export function parseOrThrow<T>(schema: ZodType<T>, raw: unknown): T {
+  const parsed = schema.safeParse(raw);
+  if (!parsed.success) {
+    const fields = zodFields(parsed.error);
+    const first = Object.entries(fields)[0];
+    throw new HttpError(400, 'invalid', first ? first[1] : 'Check the highlighted fields.', fields);
+  }
+  return parsed.data;
+}
+
+/** A route for any signed-in person, whatever their role (their own account, switching distillery). */
+export function userRoute<B = undefined>(opts: { body?: ZodType<B> }, handler: (args: { ctx: APIContext; user: NonNullable<App.Locals['user']>; sessionId: string; body: B; params: Record<string, string | undefined> }) => Promise<Response>): APIRoute {
+  return async (ctx) => {
+    try {
+      const { user, sessionId } = ctx.locals;
+      if (!user || !sessionId) return jsonError(401, 'unauthenticated', 'Sign in first.');
+      let body = undefined as B;
+      if (opts.body) body = parseOrThrow(opts.body, (await readInput(ctx)).raw);
+      return await handler({ ctx, user, sessionId, body, params: ctx.params as Record<string, string | undefined> });
+    } catch (err) {
+      return errorResponse(err);
+    }
+  };
+}
+
+export const PASSWORD_RULE = `at least ${MIN_PASSWORD} characters`;

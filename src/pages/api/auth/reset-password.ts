@@ -1,0 +1,17 @@
+import { z } from 'zod';
+import { publicRoute, json } from '../../../server/http';
+import { resetPassword, MIN_PASSWORD } from '../../../server/accounts';
+import { clearSessionCookie } from '../../../server/auth/session';
+import { clientIp } from '../../../server/request';
+
+const Body = z.object({
+  token: z.string().min(10).max(200),
+  password: z.string().min(MIN_PASSWORD, `Use at least ${MIN_PASSWORD} characters.`).max(1000),
+});
+
+/** Single use; every session of the person ends, including this browser's. */
+export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
+  await resetPassword(body.token, body.password, { ip: clientIp(ctx) });
+  clearSessionCookie(ctx.cookies, ctx.url.protocol === 'https:');
+  return json({ ok: true, message: 'Your password is changed and every device is signed out. Sign in with the new password.', redirect: '/sign-in' });
+});

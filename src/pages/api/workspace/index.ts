@@ -1,0 +1,35 @@
+import { z } from 'zod';
+import { route, json } from '../../../server/http';
+import { updateWorkspaceSettings, deleteWorkspace } from '../../../server/members';
+import { workspaceSettings } from '../../../server/workspaces';
+import { clientIp } from '../../../server/request';
+import { clearSessionCookie } from '../../../server/auth/session';
+
+function validZone(tz: string): boolean {
+  try { new Intl.DateTimeFormat('en', { timeZone: tz }); return true; } catch { return false; }
+}
+
+export const SettingsBody = z.object({
+  name: z.string().trim().min(2, 'Enter the distillery name.').max(120),
+  timeZone: z.string().trim().max(64).refine(validZone, 'Choose a time zone from the list.'),
+  units: z.enum(['metric', 'us'], 'Choose metric or US units.'),
+  calibrationTempC: z.coerce.number().refine((v) => v === 20 || v === 15.56, 'Hydrometers are calibrated at 20 °C or 15.56 °C (60 °F).'),
+  stableDays: z.coerce.number().int('Whole days only.').min(1, 'At least 1 day.').max(14, 'At most 14 days.'),
+  stableTolerance: z.coerce.number().min(0.0005, 'At least 0.0005 SG.').max(0.01, 'At most 0.010 SG.'),
+  wortCorrectionFactor: z.coerce.number().min(0.9, 'Between 0.90 and 1.20.').max(1.2, 'Between 0.90 and 1.20.'),
+});
+
+export const GET = route({ action: 'board.read' }, async ({ auth }) => json({ workspace: await workspaceSettings(auth.workspaceId) }));
+
+export const PATCH = route({ action: 'settings.manage', body: SettingsBody }, async ({ ctx, auth, body }) => {
+  await updateWorkspaceSettings(auth, body, clientIp(ctx));
+  return json({ ok: true, message: 'Settings saved.' });
+});
+
+/** Deletes the distillery and all its data; the name must be typed exactly. */
+export const DELETE = route({ action: 'settings.manage', body: z.object({ confirmName: z.string().max(200) }) }, async ({ ctx, auth, body }) => {
+  await deleteWorkspace(auth, body.confirmName, clientIp(ctx));
+  const others = ctx.locals.memberships.filter((m) => m.workspaceId !== auth.workspaceId);
+  if (!others.length) clearSessionCookie(ctx.cookies, ctx.url.protocol === 'https:');
+  return json({ ok: true, message: 'The distillery and all its data are deleted.', redirect: others.length ? '/' : '/sign-in' });
+});

@@ -1,0 +1,4 @@
+/** Imported for its side effect: starts the outbox sender once in this server process. */
+import { ensureOutboxSender } from './outbox';
+
+ensureOutboxSender();

@@ -1,0 +1,226 @@
+/**
+ * People and the distillery itself: members and roles, invitations, workspace settings,
+ * deleting a workspace, and reading the audit log. Every query is scoped by the
+ * workspace id from the session (auth.workspaceId), never by an id from the request alone.
+ */
+import { and, eq, isNull, gt, asc, desc, sql, gte, lt, type SQL } from 'drizzle-orm';
+import { getDb } from '../db/client';
+import { memberships, users, invitations, workspaces, sessions, auditLog, type Role } from '../db/schema';
+import type { Authed } from './http';
+import { HttpError, conflict, notFound } from './http';
+import { audit } from './audit';
+import { enqueue } from './mail/outbox';
+import { invitationMail } from './mail/templates';
+import { newToken, hashToken } from './auth/tokens';
+import { hashPassword } from './auth/password';
+import { createSession } from './auth/session';
+import { normaliseEmail, publicUrl } from './accounts';
+import type { StoredMail } from './mail/fake-smtp';
+
+export const INVITATION_DAYS = 7;
+const LAST_MANAGER = 'A distillery needs at least one manager. Make someone else a manager first.';
+
+export interface MemberRow { userId: number; name: string; email: string; role: Role; joinedAt: Date }
+export interface PendingInvitation { id: number; email: string; role: Role; expiresAt: Date; invitedByName: string | null }
+
+export async function listMembers(workspaceId: number): Promise<MemberRow[]> {
+  return getDb().select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, joinedAt: memberships.createdAt })
+    .from(memberships).innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.workspaceId, workspaceId)).orderBy(asc(users.name));
+}
+
+export async function listPendingInvitations(workspaceId: number): Promise<PendingInvitation[]> {
+  return getDb().select({ id: invitations.id, email: invitations.email, role: invitations.role, expiresAt: invitations.expiresAt, invitedByName: users.name })
+    .from(invitations).leftJoin(users, eq(users.id, invitations.invitedBy))
+    .where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .orderBy(desc(invitations.createdAt));
+}
+
+/** Invite an address with a role: a 7-day single-use link by e-mail. Re-inviting replaces the older link. */
+export async function invite(auth: Authed, input: { email: string; role: Role }, ip: string | null): Promise<{ invitationId: number }> {
+  const email = normaliseEmail(input.email);
+  const db = getDb();
+  return db.transaction(async (tx) => {
+    const [member] = await tx.select({ id: users.id }).from(users)
+      .innerJoin(memberships, and(eq(memberships.userId, users.id), eq(memberships.workspaceId, auth.workspaceId)))
+      .where(eq(users.email, email)).limit(1);
+    if (member) throw conflict(`${email} is already a member of this distillery.`);
+    const [ws] = await tx.select({ name: workspaces.name }).from(workspaces).where(eq(workspaces.id, auth.workspaceId)).limit(1);
+    const [inviter] = await tx.select({ name: users.name }).from(users).where(eq(users.id, auth.userId)).limit(1);
+    await tx.update(invitations).set({ revokedAt: new Date() })
+      .where(and(eq(invitations.workspaceId, auth.workspaceId), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+    const token = newToken();
+    const [row] = await tx.insert(invitations).values({
+      workspaceId: auth.workspaceId, email, role: input.role, tokenHash: hashToken(token), invitedBy: auth.userId,
+      expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000),
+    }).$returningId();
+    const mail = invitationMail({ workspaceName: ws?.name ?? 'a distillery', inviterName: inviter?.name ?? 'A manager', role: input.role, link: publicUrl(`/invite/${token}`), days: INVITATION_DAYS });
+    await enqueue(tx, { workspaceId: auth.workspaceId, kind: 'invitation', to: email, ...mail });
+    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.invited', entityType: 'invitation', entityId: row!.id, details: { email, role: input.role }, ip }, tx);
+    return { invitationId: row!.id };
+  });
+}
+
+export async function revokeInvitation(auth: Authed, invitationId: number, ip: string | null): Promise<void> {
+  const db = getDb();
+  await db.transaction(async (tx) => {
+    const [res] = await tx.update(invitations).set({ revokedAt: new Date() })
+      .where(and(eq(invitations.id, invitationId), eq(invitations.workspaceId, auth.workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+    if ((res as { affectedRows?: number }).affectedRows !== 1) throw notFound('No such invitation.');
+    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.invitation_revoked', entityType: 'invitation', entityId: invitationId, ip }, tx);
+  });
+}
+
+type Tx = Parameters<Parameters<ReturnType<typeof getDb>['transaction']>[0]>[0];
+
+/** Lock the workspace's memberships and return the target's row plus the manager count. */
+async function lockMembers(tx: Tx, workspaceId: number, userId: number) {
+  const rows = await tx.select({ userId: memberships.userId, role: memberships.role }).from(memberships)
+    .where(eq(memberships.workspaceId, workspaceId)).for('update');
+  const target = rows.find((r) => r.userId === userId);
+  if (!target) throw notFound('No such member in this distillery.');
+  return { target, managers: rows.filter((r) => r.role === 'manager').length };
+}
+
+export async function changeRole(auth: Authed, userId: number, role: Role, ip: string | null): Promise<void> {
+  const db = getDb();
+  await db.transaction(async (tx) => {
+    const { target, managers } = await lockMembers(tx, auth.workspaceId, userId);
+    if (target.role === role) return;
+    if (target.role === 'manager' && managers <= 1) throw conflict(LAST_MANAGER);
+    await tx.update(memberships).set({ role }).where(and(eq(memberships.workspaceId, auth.workspaceId), eq(memberships.userId, userId)));
+    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.role_changed', entityType: 'user', entityId: userId, details: { from: target.role, to: role }, ip }, tx);
+  });
+}
+
+export async function removeMember(auth: Authed, userId: number, ip: string | null): Promise<void> {
+  const db = getDb();
+  await db.transaction(async (tx) => {
+    const { target, managers } = await lockMembers(tx, auth.workspaceId, userId);
+    if (target.role === 'manager' && managers <= 1) throw conflict(LAST_MANAGER);
+    await tx.delete(memberships).where(and(eq(memberships.workspaceId, auth.workspaceId), eq(memberships.userId, userId)));
+    // Sessions that were looking at this distillery fall back to another of the person's distilleries.
+    await tx.update(sessions).set({ workspaceId: null }).where(and(eq(sessions.userId, userId), eq(sessions.workspaceId, auth.workspaceId)));
+    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.removed', entityType: 'user', entityId: userId, details: { role: target.role }, ip }, tx);
+  });
+}
+
+// --- Accepting an invitation ------------------------------------------------
+
+export interface InvitationView { id: number; workspaceId: number; workspaceName: string; email: string; role: Role; hasAccount: boolean; expiresAt: Date }
+
+export async function findInvitation(token: string): Promise<InvitationView | null> {
+  if (!token || token.length > 200) return null;
+  const db = getDb();
+  const [row] = await db.select({ id: invitations.id, workspaceId: invitations.workspaceId, workspaceName: workspaces.name, email: invitations.email, role: invitations.role, expiresAt: invitations.expiresAt })
+    .from(invitations).innerJoin(workspaces, eq(workspaces.id, invitations.workspaceId))
+    .where(and(eq(invitations.tokenHash, hashToken(token)), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .limit(1);
+  if (!row) return null;
+  const [u] = await db.select({ id: users.id }).from(users).where(eq(users.email, row.email)).limit(1);
+  return { ...row, hasAccount: !!u };
+}
+
+/**
+ * Accept an invitation. An address that has an account must be signed in as that person;
+ * a new address sets a name and password here. Either way the invitation is spent once.
+ */
+export async function acceptInvitation(
+  token: string,
+  input: { signedInUserId: number | null; name?: string; password?: string; ip: string; userAgent: string | null },
+): Promise<{ workspaceId: number; userId: number; newSession: { id: string } | null }> {
+  const inv = await findInvitation(token);
+  if (!inv) throw new HttpError(410, 'link_expired', 'This invitation has expired, been withdrawn or already been used. Ask the distillery manager for a new one.');
+  const db = getDb();
+  const [existing] = await db.select({ id: users.id, email: users.email }).from(users).where(eq(users.email, inv.email)).limit(1);
+  let passwordHash: string | null = null;
+  if (existing) {
+    if (input.signedInUserId == null) throw new HttpError(401, 'sign_in_required', `Sign in as ${inv.email} to accept this invitation.`);
+    if (input.signedInUserId !== existing.id) throw new HttpError(403, 'wrong_person', `This invitation is for ${inv.email}. Sign out and sign in as that person to accept it.`);
+  } else {
+    if (!input.name || !input.password) throw new HttpError(400, 'invalid', 'Enter your name and choose a password.', { ...(input.name ? {} : { name: 'Enter your name.' }), ...(input.password ? {} : { password: 'Choose a password.' }) });
+    passwordHash = await hashPassword(input.password);
+  }
+  const userId = await db.transaction(async (tx) => {
+    const [res] = await tx.update(invitations).set({ acceptedAt: new Date() })
+      .where(and(eq(invitations.id, inv.id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())));
+    if ((res as { affectedRows?: number }).affectedRows !== 1) throw new HttpError(410, 'link_expired', 'This invitation has already been used.');
+    let uid = existing?.id;
+    if (!uid) {
+      const [u] = await tx.insert(users).values({ email: inv.email, name: input.name!, passwordHash: passwordHash!, emailVerifiedAt: new Date() }).$returningId();
+      uid = u!.id;
+    }
+    await tx.insert(memberships).values({ workspaceId: inv.workspaceId, userId: uid, role: inv.role }).onDuplicateKeyUpdate({ set: { role: sql`role` } });
+    await audit({ workspaceId: inv.workspaceId, userId: uid, action: 'member.invitation_accepted', entityType: 'invitation', entityId: inv.id, details: { email: inv.email, role: inv.role }, ip: input.ip }, tx);
+    return uid;
+  });
+  let newSession: { id: string } | null = null;
+  if (!existing) newSession = await createSession(userId, inv.workspaceId, input.userAgent);
+  return { workspaceId: inv.workspaceId, userId, newSession };
+}
+
+// --- Workspace settings and deletion ---------------------------------------
+
+export interface SettingsInput { name: string; timeZone: string; units: 'metric' | 'us'; calibrationTempC: number; stableDays: number; stableTolerance: number; wortCorrectionFactor: number }
+
+export async function updateWorkspaceSettings(auth: Authed, input: SettingsInput, ip: string | null): Promise<void> {
+  const db = getDb();
+  await db.transaction(async (tx) => {
+    const [before] = await tx.select().from(workspaces).where(eq(workspaces.id, auth.workspaceId)).for('update').limit(1);
+    if (!before) throw notFound();
+    const changed: Record<string, { from: unknown; to: unknown }> = {};
+    for (const k of Object.keys(input) as Array<keyof SettingsInput>) {
+      if (before[k] !== input[k]) changed[k] = { from: before[k], to: input[k] };
+    }
+    if (!Object.keys(changed).length) return;
+    await tx.update(workspaces).set(input).where(eq(workspaces.id, auth.workspaceId));
+    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'workspace.settings_changed', entityType: 'workspace', entityId: auth.workspaceId, details: changed, ip }, tx);
+  });
+}
+
+/** Delete the distillery and everything in it (the foreign keys cascade). The name must be typed exactly. */
+export async function deleteWorkspace(auth: Authed, confirmName: string, ip: string | null): Promise<void> {
+  const db = getDb();
+  const [ws] = await db.select({ name: workspaces.name }).from(workspaces).where(eq(workspaces.id, auth.workspaceId)).limit(1);
+  if (!ws) throw notFound();
+  if (confirmName.trim() !== ws.name) throw new HttpError(400, 'invalid', 'Type the distillery name exactly as shown to delete it.', { confirmName: 'The name does not match.' });
+  await db.transaction(async (tx) => {
+    // Kept outside the workspace (workspace_id NULL) so the deletion itself stays on record.
+    await audit({ workspaceId: null, userId: auth.userId, action: 'workspace.deleted', entityType: 'workspace', entityId: auth.workspaceId, details: { name: ws.name }, ip }, tx);
+    await tx.delete(workspaces).where(eq(workspaces.id, auth.workspaceId));
+  });
+}
+
+// --- Audit log ---------------------------------------------------------------
+
+export const AUDIT_PAGE_SIZE = 50;
+export interface AuditFilters { action?: string; userId?: number; from?: Date; to?: Date; page?: number }
+export interface AuditRow { id: number; createdAt: Date; action: string; userId: number | null; userName: string | null; entityType: string | null; entityId: string | null; details: unknown; ip: string | null }
+
+export async function listAudit(workspaceId: number, f: AuditFilters): Promise<{ rows: AuditRow[]; page: number; hasMore: boolean; actions: string[] }> {
+  const db = getDb();
+  const where: SQL[] = [eq(auditLog.workspaceId, workspaceId)];
+  if (f.action) where.push(eq(auditLog.action, f.action));
+  if (f.userId) where.push(eq(auditLog.userId, f.userId));
+  if (f.from) where.push(gte(auditLog.createdAt, f.from));
+  if (f.to) where.push(lt(auditLog.createdAt, f.to));
+  const page = Math.max(1, f.page ?? 1);
+  const rows = await db.select({ id: auditLog.id, createdAt: auditLog.createdAt, action: auditLog.action, userId: auditLog.userId, userName: users.name, entityType: auditLog.entityType, entityId: auditLog.entityId, details: auditLog.details, ip: auditLog.ip })
+    .from(auditLog).leftJoin(users, eq(users.id, auditLog.userId))
+    .where(and(...where)).orderBy(desc(auditLog.createdAt), desc(auditLog.id))
+    .limit(AUDIT_PAGE_SIZE + 1).offset((page - 1) * AUDIT_PAGE_SIZE);
+  const actions = (await db.selectDistinct({ action: auditLog.action }).from(auditLog).where(eq(auditLog.workspaceId, workspaceId)).orderBy(asc(auditLog.action))).map((r) => r.action);
+  return { rows: rows.slice(0, AUDIT_PAGE_SIZE), page, hasMore: rows.length > AUDIT_PAGE_SIZE, actions };
+}
+
+// --- Development mailbox -----------------------------------------------------
+
+/** Only messages addressed to this workspace's members or pending invitees. */
+export async function mailForWorkspace(workspaceId: number, all: StoredMail[]): Promise<StoredMail[]> {
+  const db = getDb();
+  const memberEmails = (await db.select({ email: users.email }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(eq(memberships.workspaceId, workspaceId))).map((r) => r.email);
+  const invitees = (await db.select({ email: invitations.email }).from(invitations).where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.revokedAt)))).map((r) => r.email);
+  const allowed = new Set([...memberEmails, ...invitees].map((e) => e.toLowerCase()));
+  return all.filter((m) => m.to.length > 0 && m.to.every((t) => allowed.has(t.toLowerCase())));
+}
+
