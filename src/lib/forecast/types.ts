@@ -1,0 +1,78 @@
+/** Statuses a ferment can be in, in the order a healthy ferment passes through them. */
+export const FORECAST_STATUSES = [
+  'insufficient_data',
+  'lag',
+  'active',
+  'slowing',
+  'finished',
+  'stalled',
+  'souring',
+] as const;
+
+export type ForecastStatus = (typeof FORECAST_STATUSES)[number];
+
+/** Plain-language labels for the board and the ferment page. */
+export const STATUS_LABELS: Record<ForecastStatus, string> = {
+  insufficient_data: 'Not enough readings yet',
+  lag: 'Not started falling yet',
+  active: 'Fermenting',
+  slowing: 'Slowing down',
+  finished: 'Finished and stable',
+  stalled: 'Stuck above the expected range',
+  souring: 'Below the expected range (possible souring)',
+};
+
+export interface Reading {
+  takenAt: Date;
+  /** Specific gravity, already corrected (temperature, refractometer). */
+  sg: number;
+  /** True for an instrument we trust less (e.g. a refractometer reading). */
+  lowConfidence?: boolean;
+  ph?: number | null;
+}
+
+export interface TerminalRange {
+  min: number;
+  max: number;
+}
+
+export interface ForecastInput {
+  readings: Reading[];
+  og: number;
+  pitchedAt: Date;
+  terminalRange: TerminalRange;
+  /** Days the gravity must hold (product default 3). */
+  stableDays: number;
+  /** Allowed spread of the stable readings (product default 0.001). */
+  tolerance: number;
+  now: Date;
+  /** Seed of the resampling that gives the interval; the same input and seed give the same forecast. */
+  seed?: number;
+}
+
+export interface FittedCurve {
+  model: string;
+  params: Record<string, number>;
+  rmse: number;
+  curve: Array<{ t: Date; sg: number }>;
+}
+
+export interface Forecast {
+  status: ForecastStatus;
+  reason: string;
+  fit: FittedCurve | null;
+  predictedFg: null | { value: number; p10: number; p90: number };
+  /** When the fitted curve stops moving by more than the tolerance over the stable days. */
+  plateauAt: Date | null;
+  /** When the stability rule is predicted to be confirmed by readings. */
+  readyAt: Date | null;
+  readyP10: Date | null;
+  readyP90: Date | null;
+  /** For finished, stalled and souring ferments: when the rule was first met. */
+  ruleMetAt: Date | null;
+  /** Start of the current run of readings within the tolerance, if it has 2 or more readings. */
+  stableSince: Date | null;
+  lastSg: number | null;
+  /** Current fall in SG per day (positive while falling). */
+  dropPerDay: number | null;
+}
