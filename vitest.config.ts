@@ -32,6 +32,18 @@ export default defineConfig({
           hookTimeout: 120000,
         },
       },
+      {
+        // Only under `npm run test:cluster` (scripts/test-cluster.sh starts the cluster and the apps).
+        resolve: { alias },
+        test: {
+          name: 'cluster',
+          include: ['tests/cluster/**/*.test.ts'],
+          environment: 'node',
+          fileParallelism: false,
+          testTimeout: 240000,
+          hookTimeout: 240000,
+        },
+      },
     ],
   },
 });

@@ -33,6 +33,7 @@ trap cleanup EXIT
 for _ in $(seq 1 150); do curl -fs "$PLATEAU_TEST_URL/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
 
 set +e
+if [ $# -eq 0 ]; then set -- --project unit --project integration --project e2e; fi
 npx vitest run "$@"
 rc=$?
 set -e
