@@ -16,6 +16,7 @@ import { blockedFor, recordFailure, clearFailures, throttleKeys } from './thrott
 import { audit } from './audit';
 import { membershipsOf, roleIn } from './workspaces';
 import { HttpError } from './http';
+import { insertDefaultWashTypes } from './vessels';
 
 export const normaliseEmail = (email: string) => email.trim().toLowerCase();
 
@@ -117,6 +118,8 @@ export async function confirmSignUp(token: string, meta: { ip: string; userAgent
     const [u] = await tx.insert(users).values({ email: row.email, name, passwordHash, emailVerifiedAt: new Date() }).$returningId();
     const [w] = await tx.insert(workspaces).values({ name: workspaceName }).$returningId();
     await tx.insert(memberships).values({ workspaceId: w!.id, userId: u!.id, role: 'manager' });
+    // A new distillery starts with the trade's usual wash types, editable later.
+    await insertDefaultWashTypes(w!.id, tx);
     await audit({ workspaceId: w!.id, userId: u!.id, action: 'workspace.created', entityType: 'workspace', entityId: w!.id, details: { name: workspaceName }, ip: meta.ip }, tx);
     return { userId: u!.id, workspaceId: w!.id };
   });

@@ -171,6 +171,11 @@ describe('sign-up', () => {
     const me = await c.get('/api/account');
     expect(me.json.user.email).toBe(email);
     expect(me.json.memberships).toEqual([expect.objectContaining({ name: 'Fresh Still House', role: 'manager' })]);
+    // The new distillery starts with the trade's usual wash types (common practice ranges).
+    const types = await c.get('/api/wash-types');
+    const byCategory = Object.fromEntries(types.json.washTypes.map((w: any) => [w.category, [w.terminalMin, w.terminalMax]]));
+    expect(byCategory.sugar).toEqual([0.99, 1.0]);
+    expect(byCategory.grain).toEqual([1.002, 1.008]);
     expect((await new Client().post('/api/auth/confirm', { token })).status).toBe(410);
   });
 

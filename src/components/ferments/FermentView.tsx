@@ -1,0 +1,158 @@
+import { useState } from 'react';
+import GravityChart from './GravityChart';
+import UploadPanel from './UploadPanel';
+import { fermentStats } from './stats';
+import { STATUS_TEXT, statusTagClass, fmtSg, fmtDateTime, fmtWindow, fmtRaw, METHOD_LABEL, type Status } from './format';
+
+export interface ViewReading {
+  id: number; takenAt: string; method: string; rawValue: number; rawUnit: string; sampleTempC: number | null; sampleTempUnit: 'C' | 'F' | null;
+  correctedSg: number; lowConfidence: boolean; source: string; fermentTempC: number | null; ph: number | null; note: string | null; takenByName: string | null; edited: boolean;
+}
+export interface ViewForecast {
+  status: Status; reason: string; fit: { curve: Array<{ t: string; sg: number }> } | null; predictedFg: { value: number; p10: number; p90: number } | null;
+  readyAt: string | null; readyP10: string | null; readyP90: string | null; ruleMetAt: string | null; stableSince: string | null; lastSg: number | null;
+}
+export interface FermentViewProps {
+  fermentId: number;
+  code: string;
+  og: number;
+  pitchedAt: string;
+  emptied: boolean;
+  volumeLitres: number;
+  terminalMin: number;
+  terminalMax: number;
+  stableDays: number;
+  units: 'metric' | 'us';
+  timeZone: string;
+  canWrite: boolean;
+  abvFormula: string;
+  maxBytes: number;
+  maxRows: number;
+  highlightId: number | null;
+  initial: { readings: ViewReading[]; forecast: ViewForecast | null; now: string };
+}
+
+const GAL = 3.785411784;
+const fmtTemp = (c: number | null, units: 'metric' | 'us') => (c === null ? '–' : units === 'us' ? `${(c * 9 / 5 + 32).toFixed(1)} °F` : `${c.toFixed(1)} °C`);
+const TABLE_ROWS = 60;
+
+export default function FermentView(p: FermentViewProps) {
+  const [data, setData] = useState(p.initial);
+  const [showAll, setShowAll] = useState(false);
+  const [message, setMessage] = useState('');
+
+  async function refresh() {
+    const res = await fetch(`/api/ferments/${p.fermentId}`, { headers: { accept: 'application/json' } }).catch(() => null);
+    if (!res?.ok) { setMessage('Could not refresh; reload the page.'); return; }
+    const d = await res.json();
+    setData({ readings: d.readings, forecast: d.forecast, now: new Date().toISOString() });
+  }
+
+  async function remove(r: ViewReading) {
+    if (!window.confirm(`Delete the reading of ${fmtDateTime(r.takenAt, p.timeZone)} (${fmtRaw(r.rawValue, r.rawUnit)})? It stays in the audit log.`)) return;
+    const res = await fetch(`/api/readings/${r.id}`, { method: 'DELETE' }).catch(() => null);
+    if (res?.status === 204) { setMessage('Reading deleted (kept in the audit log).'); await refresh(); }
+    else setMessage('Could not delete the reading.');
+  }
+
+  const f = data.forecast;
+  const last = data.readings.length ? data.readings[data.readings.length - 1]! : null;
+  const stats = fermentStats(p.og, p.volumeLitres, last?.correctedSg ?? null, f?.predictedFg?.value ?? null, { min: p.terminalMin, max: p.terminalMax });
+  const status = (f?.status ?? 'insufficient_data') as Status;
+  const toMs = (s: string | null) => (s ? new Date(s).getTime() : null);
+  const laaText = (v: number | null) => (v === null ? '–' : p.units === 'us' ? `${v.toFixed(0)} LAA (${(v / (GAL / 2)).toFixed(0)} proof gal)` : `${v.toFixed(0)} L`);
+  const rows = [...data.readings].reverse();
+  const shown = showAll ? rows : rows.slice(0, TABLE_ROWS);
+
+  return (
+    <div>
+      <section className="card mt-3" aria-labelledby="verdict-heading">
+        <h2 id="verdict-heading" className="sr-only">Status</h2>
+        <p className="flex flex-wrap items-center gap-2 text-lg">
+          <span className={statusTagClass(status)} data-testid="status-tag">{STATUS_TEXT[status]}</span>
+          <span data-testid="status-reason">{f?.reason ?? 'no forecast yet'}</span>
+        </p>
+        <p className="mt-1 text-sm text-ink-soft">
+          {f?.ruleMetAt ? <>Stability rule met {fmtDateTime(f.ruleMetAt, p.timeZone)}.</>
+            : f?.readyP10 ? <>Ready (held {p.stableDays} days in range) likely {fmtDateTime(f.readyAt, p.timeZone)}; window {fmtWindow(f.readyP10, f.readyP90, p.timeZone)} (P10–P90).</>
+              : p.emptied ? 'Emptied.' : 'No ready window yet.'}
+        </p>
+        <dl className="mt-3 grid grid-cols-2 gap-x-4 gap-y-2 sm:grid-cols-4">
+          <div><dt className="text-sm text-ink-soft">Current SG</dt><dd className="text-2xl font-bold tabular-nums" data-testid="current-sg">{fmtSg(stats.currentSg, 3)}</dd></div>
+          <div><dt className="text-sm text-ink-soft">Apparent attenuation</dt><dd className="text-2xl font-bold tabular-nums">{stats.attenuation === null ? '–' : `${stats.attenuation.toFixed(0)} %`}</dd></div>
+          <div><dt className="text-sm text-ink-soft">ABV so far</dt><dd className="text-2xl font-bold tabular-nums">{stats.abvNow === null ? '–' : `${stats.abvNow.toFixed(1)} %`}</dd></div>
+          <div><dt className="text-sm text-ink-soft">ABV at expected FG {stats.expectedFg.toFixed(3)}</dt><dd className="text-2xl font-bold tabular-nums">{stats.abvAtFg === null ? '–' : `${stats.abvAtFg.toFixed(1)} %`}</dd></div>
+          <div><dt className="text-sm text-ink-soft">Alcohol in the wash now</dt><dd className="font-semibold tabular-nums">{laaText(stats.laaNow)}</dd></div>
+          <div><dt className="text-sm text-ink-soft">At expected FG</dt><dd className="font-semibold tabular-nums">{laaText(stats.laaAtFg)}</dd></div>
+          <div className="col-span-2"><dt className="text-sm text-ink-soft">Expected FG from</dt><dd className="text-sm">{stats.expectedFgSource === 'forecast' && f?.predictedFg ? `the fitted curve (${f.predictedFg.p10.toFixed(3)}–${f.predictedFg.p90.toFixed(3)})` : 'the middle of the wash type’s range'}</dd></div>
+        </dl>
+        <p className="mt-2 text-xs text-ink-soft">ABV: {p.abvFormula}. Litres of absolute alcohol = volume × ABV / 100.</p>
+      </section>
+
+      <section className="card mt-4" aria-labelledby="chart-heading">
+        <h2 id="chart-heading">Gravity</h2>
+        <GravityChart
+          readings={data.readings.map((r) => ({ t: new Date(r.takenAt).getTime(), sg: r.correctedSg, lowConfidence: r.lowConfidence }))}
+          curve={(f?.fit?.curve ?? []).map((c) => ({ t: new Date(c.t).getTime(), sg: c.sg }))}
+          og={p.og} pitchedAt={new Date(p.pitchedAt).getTime()} terminalMin={p.terminalMin} terminalMax={p.terminalMax}
+          stableSince={toMs(f?.stableSince ?? null)} readyP10={toMs(f?.readyP10 ?? null)} readyP90={toMs(f?.readyP90 ?? null)} readyAt={toMs(f?.readyAt ?? null)}
+          now={new Date(data.now).getTime()} timeZone={p.timeZone}
+          label={`Corrected SG of ${p.code} over time: ${data.readings.length} readings, latest ${fmtSg(last?.correctedSg, 3)}; expected finish ${p.terminalMin.toFixed(3)}–${p.terminalMax.toFixed(3)}. The readings are listed in the table below.`}
+        />
+      </section>
+
+      {p.canWrite && !p.emptied && (
+        <UploadPanel fermentId={p.fermentId} maxBytes={p.maxBytes} maxRows={p.maxRows} timeZone={p.timeZone} onImported={() => { void refresh(); }} />
+      )}
+
+      <section className="card mt-4 p-0" aria-labelledby="readings-heading" id="readings">
+        <div className="flex flex-wrap items-baseline justify-between gap-2 p-4 pb-2">
+          <h2 id="readings-heading">Readings ({data.readings.length})</h2>
+          <p role="status" aria-live="polite" className="text-sm">{message}</p>
+        </div>
+        {data.readings.length === 0 ? <p className="px-4 pb-4">No readings yet.</p> : (
+          <div className="relative overflow-x-auto">
+            <table className="data-table" data-testid="readings-table">
+              <caption className="sr-only">Readings of {p.code}, newest first</caption>
+              <thead>
+                <tr>
+                  <th scope="col">Time</th><th scope="col">Corrected SG</th><th scope="col">As entered</th><th scope="col">Sample temp</th>
+                  <th scope="col">Logged by</th><th scope="col">Flags</th>{p.canWrite && <th scope="col"><span className="sr-only">Actions</span></th>}
+                </tr>
+              </thead>
+              <tbody>
+                {shown.map((r) => (
+                  <tr key={r.id} className={r.id === p.highlightId ? 'bg-barley-soft' : ''} data-reading={r.id}>
+                    <td className="whitespace-nowrap">{fmtDateTime(r.takenAt, p.timeZone)}</td>
+                    <td className="font-semibold tabular-nums">{r.correctedSg.toFixed(4)}{r.lowConfidence && <span aria-hidden="true"> △</span>}</td>
+                    <td className="whitespace-nowrap">{fmtRaw(r.rawValue, r.rawUnit)} · {METHOD_LABEL[r.method] ?? r.method}</td>
+                    <td className="whitespace-nowrap">{fmtTemp(r.sampleTempC, r.sampleTempUnit === 'F' ? 'us' : r.sampleTempUnit === 'C' ? 'metric' : p.units)}</td>
+                    <td>{r.takenByName ?? '–'}</td>
+                    <td className="text-sm">
+                      {r.lowConfidence && <span className="tag tag-souring mr-1">less certain</span>}
+                      {r.source === 'upload' && <span className="tag tag-quiet mr-1">logger</span>}
+                      {r.edited && <span className="tag tag-quiet mr-1">edited</span>}
+                      {r.ph !== null && <span className="mr-1">pH {r.ph.toFixed(2)}</span>}
+                      {r.fermentTempC !== null && <span className="mr-1">wash {fmtTemp(r.fermentTempC, p.units)}</span>}
+                      {r.note && <span className="block text-ink-soft">{r.note}</span>}
+                    </td>
+                    {p.canWrite && (
+                      <td className="whitespace-nowrap">
+                        <a href={`/ferments/${p.fermentId}/log?reading=${r.id}`} className="mr-3 inline-block py-2">Edit<span className="sr-only"> reading of {fmtDateTime(r.takenAt, p.timeZone)}</span></a>
+                        <button type="button" className="py-2 text-ember underline" onClick={() => remove(r)}>Delete<span className="sr-only"> reading of {fmtDateTime(r.takenAt, p.timeZone)}</span></button>
+                      </td>
+                    )}
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+            {rows.length > TABLE_ROWS && (
+              <p className="p-4"><button type="button" className="btn btn-quiet" onClick={() => setShowAll(!showAll)}>{showAll ? `Show the latest ${TABLE_ROWS}` : `Show all ${rows.length}`}</button></p>
+            )}
+          </div>
+        )}
+        <p className="px-4 pb-3 text-xs text-ink-soft">△ refractometer readings: corrected for alcohol from the OG (Terrill 2011), less certain than a hydrometer. Hydrometer readings are corrected to the calibration temperature (Tanaka et al. 2001 water density).</p>
+      </section>
+    </div>
+  );
+}

@@ -1,0 +1,190 @@
+import { createHash } from 'node:crypto';
+import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { getDb } from '../db/client';
+import { fermentForecasts, ferments, forecastHistory, readings, washTypes, workspaces } from '../db/schema';
+import { forecastFerment, type Forecast, type ForecastStatus } from '../lib/forecast';
+
+/** What the board and the ferments list need from a forecast. */
+export interface ForecastSummary {
+  fermentId: number;
+  status: ForecastStatus;
+  reason: string;
+  readyAt: Date | null;
+  readyP10: Date | null;
+  readyP90: Date | null;
+  ruleMetAt: Date | null;
+  predictedFg: number | null;
+  lastSg: number | null;
+}
+
+/** The whole forecast, as the ferment page draws it (dates revived). */
+export interface StoredForecast extends Forecast { fermentId: number; computedAt: Date }
+
+const HOUR_MS = 3_600_000;
+/** forecast_history gets at most one row per ferment per this interval. */
+const HISTORY_EVERY_MS = 6 * HOUR_MS;
+
+interface FermentInputs {
+  id: number;
+  og: number;
+  pitchedAt: Date;
+  emptiedAt: Date | null;
+  updatedAt: Date;
+  terminalMin: number;
+  terminalMax: number;
+}
+
+interface ReadingInput { id: number; takenAt: Date; correctedSg: number; lowConfidence: boolean; ph: number | null; updatedAt: Date }
+
+interface Settings { stableDays: number; stableTolerance: number }
+
+/**
+ * Cache key of a forecast: the readings (ids, times, values, edits), the ferment's OG and
+ * pitch time, the wash type's range, the workspace's stability settings, and "now" rounded
+ * down to the hour. Status depends on time passing even without new readings (a lag that
+ * goes on, a ready time that slips into the past), so a forecast is at most an hour stale;
+ * an emptied ferment is frozen at its emptying time and keeps its key.
+ */
+export function forecastInputKey(f: FermentInputs, rs: ReadingInput[], s: Settings, now: Date): string {
+  const asOf = effectiveNow(f, now);
+  const bucket = f.emptiedAt ? 'emptied' : String(Math.floor(asOf.getTime() / HOUR_MS));
+  const h = createHash('sha256');
+  h.update(JSON.stringify([f.og, f.pitchedAt.getTime(), f.emptiedAt?.getTime() ?? null, f.terminalMin, f.terminalMax, s.stableDays, s.stableTolerance, bucket]));
+  for (const r of [...rs].sort((a, b) => a.id - b.id)) {
+    h.update(`|${r.id},${r.takenAt.getTime()},${r.correctedSg},${r.lowConfidence ? 1 : 0},${r.ph ?? ''},${r.updatedAt.getTime()}`);
+  }
+  return h.digest('hex');
+}
+
+function effectiveNow(f: { emptiedAt: Date | null }, now: Date): Date {
+  return f.emptiedAt && f.emptiedAt < now ? f.emptiedAt : now;
+}
+
+function compute(f: FermentInputs, rs: ReadingInput[], s: Settings, now: Date): Forecast {
+  return forecastFerment({
+    readings: rs.map((r) => ({ takenAt: r.takenAt, sg: r.correctedSg, lowConfidence: r.lowConfidence, ph: r.ph })),
+    og: f.og,
+    pitchedAt: f.pitchedAt,
+    terminalRange: { min: f.terminalMin, max: f.terminalMax },
+    stableDays: s.stableDays,
+    tolerance: s.stableTolerance,
+    now: effectiveNow(f, now),
+    seed: f.id,
+  });
+}
+
+const toDate = (v: unknown): Date | null => (v == null ? null : new Date(v as string));
+
+/** JSON payload back to a Forecast with Date objects. */
+function revive(payload: any): Forecast {
+  return {
+    ...payload,
+    fit: payload.fit ? { ...payload.fit, curve: (payload.fit.curve ?? []).map((p: any) => ({ t: new Date(p.t), sg: p.sg })) } : null,
+    plateauAt: toDate(payload.plateauAt),
+    readyAt: toDate(payload.readyAt),
+    readyP10: toDate(payload.readyP10),
+    readyP90: toDate(payload.readyP90),
+    ruleMetAt: toDate(payload.ruleMetAt),
+    stableSince: toDate(payload.stableSince),
+  };
+}
+
+function summaryOf(fermentId: number, f: Forecast): ForecastSummary {
+  return {
+    fermentId, status: f.status, reason: f.reason, readyAt: f.readyAt, readyP10: f.readyP10, readyP90: f.readyP90,
+    ruleMetAt: f.ruleMetAt, predictedFg: f.predictedFg?.value ?? null, lastSg: f.lastSg,
+  };
+}
+
+async function loadAll(workspaceId: number, fermentIds: number[]) {
+  const db = getDb();
+  const [settings] = await db.select({ stableDays: workspaces.stableDays, stableTolerance: workspaces.stableTolerance })
+    .from(workspaces).where(eq(workspaces.id, workspaceId)).limit(1);
+  if (!settings || fermentIds.length === 0) return { settings: settings ?? null, fs: [], byFerment: new Map<number, ReadingInput[]>(), cached: new Map() };
+  const fs: FermentInputs[] = await db.select({
+    id: ferments.id, og: ferments.og, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt, updatedAt: ferments.updatedAt,
+    terminalMin: washTypes.terminalMin, terminalMax: washTypes.terminalMax,
+  }).from(ferments).innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
+    .where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, fermentIds)));
+  const rs = await db.select({
+    fermentId: readings.fermentId, id: readings.id, takenAt: readings.takenAt, correctedSg: readings.correctedSg,
+    lowConfidence: readings.lowConfidence, ph: readings.ph, updatedAt: readings.updatedAt,
+  }).from(readings).where(and(eq(readings.workspaceId, workspaceId), inArray(readings.fermentId, fermentIds), isNull(readings.deletedAt)));
+  const byFerment = new Map<number, ReadingInput[]>();
+  for (const r of rs) {
+    const list = byFerment.get(r.fermentId) ?? [];
+    list.push(r);
+    byFerment.set(r.fermentId, list);
+  }
+  const cachedRows = await db.select().from(fermentForecasts)
+    .where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, fermentIds)));
+  const cached = new Map(cachedRows.map((c) => [c.fermentId, c]));
+  return { settings, fs, byFerment, cached };
+}
+
+async function store(workspaceId: number, fermentId: number, key: string, f: Forecast, now: Date): Promise<void> {
+  const db = getDb();
+  const row = {
+    workspaceId, inputKey: key, status: f.status, readyAt: f.readyAt, readyP10: f.readyP10, readyP90: f.readyP90,
+    ruleMetAt: f.ruleMetAt, predictedFg: f.predictedFg?.value ?? null, payload: f as unknown, computedAt: now,
+  };
+  await db.insert(fermentForecasts).values({ fermentId, ...row }).onDuplicateKeyUpdate({ set: row });
+  const [last] = await db.select({ asOf: forecastHistory.asOf }).from(forecastHistory)
+    .where(and(eq(forecastHistory.workspaceId, workspaceId), eq(forecastHistory.fermentId, fermentId)))
+    .orderBy(desc(forecastHistory.asOf)).limit(1);
+  if (!last || now.getTime() - last.asOf.getTime() >= HISTORY_EVERY_MS) {
+    await db.insert(forecastHistory).values({
+      workspaceId, fermentId, asOf: now, status: f.status, readyAt: f.readyAt, readyP10: f.readyP10, readyP90: f.readyP90,
+    });
+  }
+}
+
+/** Forecasts for many ferments of one workspace: cached rows when their key still matches, else recomputed and stored. */
+async function forecastsFor(workspaceId: number, fermentIds: number[], now: Date, force = false): Promise<Map<number, Forecast>> {
+  const ids = [...new Set(fermentIds)];
+  const out = new Map<number, Forecast>();
+  const { settings, fs, byFerment, cached } = await loadAll(workspaceId, ids);
+  if (!settings) return out;
+  for (const f of fs) {
+    const rs = byFerment.get(f.id) ?? [];
+    const key = forecastInputKey(f, rs, settings, now);
+    const hit = cached.get(f.id);
+    if (!force && hit && hit.inputKey === key) {
+      out.set(f.id, revive(hit.payload));
+      continue;
+    }
+    const forecast = compute(f, rs, settings, now);
+    await store(workspaceId, f.id, key, forecast, now);
+    if (hit?.status !== forecast.status) await (await import('./notify')).notifyFermentStatusChange(getDb(), { workspaceId, fermentId: f.id, before: hit?.status ?? null, after: forecast.status });
+    out.set(f.id, forecast);
+  }
+  return out;
+}
+
+export async function getForecasts(workspaceId: number, fermentIds: number[], now: Date = new Date()): Promise<Map<number, ForecastSummary>> {
+  const full = await forecastsFor(workspaceId, fermentIds, now);
+  const out = new Map<number, ForecastSummary>();
+  for (const [id, f] of full) out.set(id, summaryOf(id, f));
+  return out;
+}
+
+/** The full forecast of one ferment (curve included), or null when the ferment is not in this workspace. */
+export async function getForecast(workspaceId: number, fermentId: number, now: Date = new Date()): Promise<Forecast | null> {
+  return (await forecastsFor(workspaceId, [fermentId], now)).get(fermentId) ?? null;
+}
+
+/** Recompute after a change of readings or ferment (called after the change's transaction commits). */
+export async function recomputeForecast(workspaceId: number, fermentId: number, now: Date = new Date()): Promise<Forecast | null> {
+  try {
+    return (await forecastsFor(workspaceId, [fermentId], now, true)).get(fermentId) ?? null;
+  } catch (err) {
+    // The change itself is committed; a failed forecast is recomputed on the next read.
+    console.error('[plateau] forecast recompute failed:', err instanceof Error ? err.message : String(err));
+    return null;
+  }
+}
+
+/** Forecast as JSON for the API and islands (ISO times). */
+export function forecastJson(f: Forecast | null): unknown {
+  return f ? JSON.parse(JSON.stringify(f)) : null;
+}

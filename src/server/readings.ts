@@ -1,0 +1,253 @@
+import { and, asc, eq, isNull, lt, ne } from 'drizzle-orm';
+import { getDb } from '../db/client';
+import { ferments, readings, users } from '../db/schema';
+import { correctReading, GravityInputError, sgToBrix, type ReadingMethod, type ReadingUnit } from '../lib/gravity';
+import { parseTemperatureToC, temperatureUnitFor, formatTemperature } from '../lib/units';
+import { audit } from './audit';
+import { HttpError, conflict, invalid, notFound } from './http';
+import type { WorkspaceSettings } from './workspaces';
+import { CLOCK_SKEW_MS, getFerment, parseWorkspaceTime } from './ferments';
+import { recomputeForecast } from './forecasts';
+
+/** Raw SG accepted from a person or a file. */
+export const SG_MIN = 0.98;
+export const SG_MAX = 1.2;
+/** Sample temperatures the hydrometer correction covers. */
+export const SAMPLE_MIN_C = 0;
+export const SAMPLE_MAX_C = 60;
+/** A reading this far below the OG shows the yeast is at work. */
+export const STARTED_DROP = 0.002;
+/** After this long since pitching, fermentation is taken as started even without a lower reading. */
+export const STARTED_AFTER_MS = 12 * 3_600_000;
+
+/**
+ * Has fermentation started by the time of a reading? (It decides whether a refractometer
+ * value needs the alcohol correction.) Yes when any earlier reading of the ferment is more
+ * than 0.002 below the OG, or when the reading is taken more than 12 hours after pitching.
+ */
+export function fermentationStarted(earlier: Array<{ takenAt: Date; correctedSg: number }>, og: number, pitchedAt: Date, takenAt: Date): boolean {
+  if (takenAt.getTime() - pitchedAt.getTime() > STARTED_AFTER_MS) return true;
+  return earlier.some((r) => r.takenAt.getTime() < takenAt.getTime() && og - r.correctedSg > STARTED_DROP);
+}
+
+export interface ReadingEntry {
+  value: number;
+  unit: ReadingUnit;
+  method: ReadingMethod;
+  /** Sample temperature in °C (already converted from the entry unit). */
+  sampleTempC: number | null;
+  takenAt: Date;
+}
+
+const GRAVITY_FIELD: Record<string, string> = { value: 'value', unit: 'unit', method: 'method', sampleTempC: 'sampleTemp', originalGravity: 'value', wcf: 'value' };
+
+/**
+ * Checks one reading against the trade's plausibility rules and derives its corrected SG.
+ * Throws HttpError 400 with the offending field.
+ */
+export function deriveCorrected(
+  ws: Pick<WorkspaceSettings, 'calibrationTempC' | 'wortCorrectionFactor' | 'units'>,
+  ferment: { og: number; pitchedAt: Date; emptiedAt?: Date | null },
+  entry: ReadingEntry,
+  earlier: Array<{ takenAt: Date; correctedSg: number }>,
+  now: Date,
+): { sg: number; lowConfidence: boolean; steps: string[] } {
+  const tempRange = ws.units === 'us' ? '32–140 °F' : '0–60 °C';
+  if (entry.unit === 'sg' && (entry.value < SG_MIN || entry.value > SG_MAX)) {
+    throw invalid('value', `An SG of ${entry.value} is not plausible: readings must lie between ${SG_MIN.toFixed(3)} and ${SG_MAX.toFixed(3)}.`);
+  }
+  if (entry.sampleTempC !== null && (entry.sampleTempC < SAMPLE_MIN_C || entry.sampleTempC > SAMPLE_MAX_C)) {
+    throw invalid('sampleTemp', `A sample at ${formatTemperature(entry.sampleTempC, ws.units)} is outside ${tempRange}: cool or warm it and read again.`);
+  }
+  if (entry.method === 'hydrometer' && entry.sampleTempC === null) {
+    throw invalid('sampleTemp', 'A hydrometer reading needs the sample temperature.');
+  }
+  if (entry.takenAt.getTime() < ferment.pitchedAt.getTime()) throw invalid('takenAt', 'That time is before the ferment was pitched.');
+  if (entry.takenAt.getTime() > now.getTime() + CLOCK_SKEW_MS) throw invalid('takenAt', 'That time is in the future.');
+  if (ferment.emptiedAt && entry.takenAt.getTime() > ferment.emptiedAt.getTime()) throw invalid('takenAt', 'That time is after the fermenter was emptied.');
+  const started = fermentationStarted(earlier, ferment.og, ferment.pitchedAt, entry.takenAt);
+  if (entry.method === 'refractometer' && entry.unit !== 'sg') {
+    const originalReading = sgToBrix(ferment.og) * ws.wortCorrectionFactor;
+    if (entry.value > originalReading + 1e-9) {
+      throw invalid('value', `${entry.value.toFixed(1)} °Bx is above what the original gravity ${ferment.og.toFixed(3)} reads on a refractometer (${originalReading.toFixed(1)} °Bx): fermentation cannot raise it.`);
+    }
+  }
+  try {
+    return correctReading({
+      value: entry.value, unit: entry.unit, method: entry.method, sampleTempC: entry.sampleTempC,
+      calibrationTempC: ws.calibrationTempC, wcf: ws.wortCorrectionFactor, originalGravity: ferment.og, fermentationStarted: started,
+    });
+  } catch (err) {
+    if (err instanceof GravityInputError) throw invalid(GRAVITY_FIELD[err.field] ?? 'value', err.message);
+    throw err;
+  }
+}
+
+export interface ReadingBody {
+  value: number;
+  unit: ReadingUnit;
+  method: ReadingMethod;
+  /** In the workspace's temperature unit. */
+  sampleTemp?: number | null;
+  takenAt?: string | null;
+  note?: string | null;
+  fermentTemp?: number | null;
+  ph?: number | null;
+}
+
+function entryFrom(ws: WorkspaceSettings, body: ReadingBody, now: Date): ReadingEntry & { sampleTempUnit: 'C' | 'F' | null; fermentTempC: number | null } {
+  const tUnit = temperatureUnitFor(ws.units);
+  const sampleTempC = body.sampleTemp == null ? null : parseTemperatureToC(body.sampleTemp, tUnit);
+  const fermentTempC = body.fermentTemp == null ? null : parseTemperatureToC(body.fermentTemp, tUnit);
+  if (fermentTempC !== null && (fermentTempC < -5 || fermentTempC > 60)) {
+    throw invalid('fermentTemp', `A ferment at ${formatTemperature(fermentTempC, ws.units)} is not plausible.`);
+  }
+  const takenAt = body.takenAt ? parseWorkspaceTime(body.takenAt, ws.timeZone, 'takenAt') : now;
+  return { value: body.value, unit: body.unit, method: body.method, sampleTempC, sampleTempUnit: sampleTempC === null ? null : tUnit, takenAt, fermentTempC };
+}
+
+async function earlierReadings(workspaceId: number, fermentId: number, before: Date, exceptId?: number) {
+  const conds = [eq(readings.workspaceId, workspaceId), eq(readings.fermentId, fermentId), isNull(readings.deletedAt), lt(readings.takenAt, before)];
+  if (exceptId) conds.push(ne(readings.id, exceptId));
+  return getDb().select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg }).from(readings).where(and(...conds));
+}
+
+export interface ReadingView {
+  id: number;
+  takenAt: string;
+  method: ReadingMethod;
+  rawValue: number;
+  rawUnit: ReadingUnit;
+  sampleTempC: number | null;
+  sampleTempUnit: 'C' | 'F' | null;
+  correctedSg: number;
+  lowConfidence: boolean;
+  source: 'manual' | 'upload';
+  fermentTempC: number | null;
+  ph: number | null;
+  note: string | null;
+  takenById: number | null;
+  takenByName: string | null;
+  edited: boolean;
+}
+
+export async function listReadings(workspaceId: number, fermentId: number): Promise<ReadingView[]> {
+  const rows = await getDb().select({
+    id: readings.id, takenAt: readings.takenAt, method: readings.method, rawValue: readings.rawValue, rawUnit: readings.rawUnit,
+    sampleTempC: readings.sampleTempC, sampleTempUnit: readings.sampleTempUnit, correctedSg: readings.correctedSg, lowConfidence: readings.lowConfidence,
+    source: readings.source, fermentTempC: readings.fermentTempC, ph: readings.ph, note: readings.note, takenById: readings.takenBy, takenByName: users.name,
+    createdAt: readings.createdAt, updatedAt: readings.updatedAt,
+  }).from(readings).leftJoin(users, eq(users.id, readings.takenBy))
+    .where(and(eq(readings.workspaceId, workspaceId), eq(readings.fermentId, fermentId), isNull(readings.deletedAt)))
+    .orderBy(asc(readings.takenAt), asc(readings.id));
+  return rows.map(({ createdAt, updatedAt, ...r }) => ({ ...r, takenAt: r.takenAt.toISOString(), edited: updatedAt.getTime() - createdAt.getTime() > 1000 }));
+}
+
+async function readingById(workspaceId: number, id: number) {
+  const [row] = await getDb().select().from(readings).where(and(eq(readings.id, id), eq(readings.workspaceId, workspaceId), isNull(readings.deletedAt))).limit(1);
+  if (!row) throw notFound('No such reading.');
+  return row;
+}
+
+export async function addReading(ws: WorkspaceSettings, userId: number, fermentId: number, body: ReadingBody, now = new Date()): Promise<ReadingView> {
+  const ferment = await getFerment(ws.id, fermentId);
+  if (ferment.emptiedAt) throw conflict(`${ferment.code} has been emptied; readings can no longer be added.`);
+  const entry = entryFrom(ws, body, now);
+  const corrected = deriveCorrected(ws, ferment, entry, await earlierReadings(ws.id, fermentId, entry.takenAt), now);
+  const db = getDb();
+  const id = await db.transaction(async (tx) => {
+    const [row] = await tx.insert(readings).values({
+      workspaceId: ws.id, fermentId, takenAt: entry.takenAt, method: entry.method, rawValue: entry.value, rawUnit: entry.unit,
+      sampleTempC: entry.sampleTempC, sampleTempUnit: entry.sampleTempUnit, correctedSg: corrected.sg, lowConfidence: corrected.lowConfidence,
+      source: 'manual', fermentTempC: entry.fermentTempC, ph: body.ph ?? null, note: body.note?.trim() || null, takenBy: userId,
+    }).$returningId();
+    await audit({ workspaceId: ws.id, userId, action: 'reading.create', entityType: 'reading', entityId: row!.id, details: { fermentId, rawValue: entry.value, rawUnit: entry.unit, method: entry.method, correctedSg: corrected.sg } }, tx);
+    return row!.id;
+  });
+  await recomputeForecast(ws.id, fermentId, now);
+  return (await listReadings(ws.id, fermentId)).find((r) => r.id === id)!;
+}
+
+const AUDITED = ['takenAt', 'method', 'rawValue', 'rawUnit', 'sampleTempC', 'sampleTempUnit', 'correctedSg', 'lowConfidence', 'fermentTempC', 'ph', 'note'] as const;
+
+function snapshot(r: Record<string, unknown>): Record<string, unknown> {
+  return Object.fromEntries(AUDITED.map((k) => [k, r[k] instanceof Date ? (r[k] as Date).toISOString() : r[k] ?? null]));
+}
+
+/** Edit = the new values, plus an audit entry holding the old and the new; the original stays readable there. */
+export async function updateReading(ws: WorkspaceSettings, userId: number, readingId: number, body: Partial<ReadingBody>, now = new Date()): Promise<ReadingView> {
+  const before = await readingById(ws.id, readingId);
+  const ferment = await getFerment(ws.id, before.fermentId);
+  const tUnit = temperatureUnitFor(ws.units);
+  const merged: ReadingBody = {
+    value: body.value ?? before.rawValue,
+    unit: body.unit ?? before.rawUnit,
+    method: body.method ?? before.method,
+    sampleTemp: body.sampleTemp !== undefined ? body.sampleTemp : before.sampleTempC == null ? null : tUnit === 'F' ? before.sampleTempC * 9 / 5 + 32 : before.sampleTempC,
+    takenAt: body.takenAt ?? before.takenAt.toISOString(),
+    note: body.note !== undefined ? body.note : before.note,
+    fermentTemp: body.fermentTemp !== undefined ? body.fermentTemp : before.fermentTempC == null ? null : tUnit === 'F' ? before.fermentTempC * 9 / 5 + 32 : before.fermentTempC,
+    ph: body.ph !== undefined ? body.ph : before.ph,
+  };
+  const entry = entryFrom(ws, merged, now);
+  // Temperatures not sent keep their stored °C exactly (no round trip through °F).
+  if (body.sampleTemp === undefined) { entry.sampleTempC = before.sampleTempC; entry.sampleTempUnit = before.sampleTempUnit; }
+  if (body.fermentTemp === undefined) entry.fermentTempC = before.fermentTempC;
+  const corrected = deriveCorrected(ws, { ...ferment, emptiedAt: null }, entry, await earlierReadings(ws.id, ferment.id, entry.takenAt, readingId), now);
+  const after = {
+    takenAt: entry.takenAt, method: entry.method, rawValue: entry.value, rawUnit: entry.unit, sampleTempC: entry.sampleTempC, sampleTempUnit: entry.sampleTempUnit,
+    correctedSg: corrected.sg, lowConfidence: corrected.lowConfidence, fermentTempC: entry.fermentTempC, ph: merged.ph ?? null, note: merged.note?.trim() || null,
+  };
+  const db = getDb();
+  await db.transaction(async (tx) => {
+    await tx.update(readings).set(after).where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id)));
+    await audit({ workspaceId: ws.id, userId, action: 'reading.update', entityType: 'reading', entityId: readingId, details: { fermentId: ferment.id, before: snapshot(before), after: snapshot(after) } }, tx);
+  });
+  await recomputeForecast(ws.id, ferment.id, now);
+  return (await listReadings(ws.id, ferment.id)).find((r) => r.id === readingId)!;
+}
+
+/** Delete = soft delete (deleted_at) plus an audit entry with the full reading. */
+export async function deleteReading(ws: WorkspaceSettings, userId: number, readingId: number, now = new Date()): Promise<void> {
+  const before = await readingById(ws.id, readingId);
+  const db = getDb();
+  await db.transaction(async (tx) => {
+    await tx.update(readings).set({ deletedAt: now }).where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id), isNull(readings.deletedAt)));
+    await audit({ workspaceId: ws.id, userId, action: 'reading.delete', entityType: 'reading', entityId: readingId, details: { fermentId: before.fermentId, reading: snapshot(before) } }, tx);
+  });
+  await recomputeForecast(ws.id, before.fermentId, now);
+}
+
+type Tx = Parameters<Parameters<ReturnType<typeof getDb>['transaction']>[0]>[0];
+
+/** After an OG or pitch-time change: re-derive every reading's corrected SG (in order, since "started" depends on earlier ones). */
+export async function recorrectFermentReadings(tx: Tx, ws: WorkspaceSettings, userId: number, ferment: { id: number; og: number; pitchedAt: Date }): Promise<void> {
+  const rows = await tx.select().from(readings)
+    .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, ferment.id), isNull(readings.deletedAt))).orderBy(asc(readings.takenAt), asc(readings.id));
+  const done: Array<{ takenAt: Date; correctedSg: number }> = [];
+  for (const r of rows) {
+    let sg: number;
+    try {
+      sg = correctReading({
+        value: r.rawValue, unit: r.rawUnit, method: r.method, sampleTempC: r.sampleTempC, calibrationTempC: ws.calibrationTempC, wcf: ws.wortCorrectionFactor,
+        originalGravity: ferment.og, fermentationStarted: fermentationStarted(done, ferment.og, ferment.pitchedAt, r.takenAt),
+      }).sg;
+    } catch (err) {
+      if (err instanceof GravityInputError) throw new HttpError(400, 'invalid', `With this OG the reading of ${r.takenAt.toISOString().slice(0, 16)} no longer makes sense: ${err.message}`, { og: err.message });
+      throw err;
+    }
+    if (Math.abs(sg - r.correctedSg) > 1e-9) {
+      await tx.update(readings).set({ correctedSg: sg }).where(eq(readings.id, r.id));
+      await audit({ workspaceId: ws.id, userId, action: 'reading.recorrect', entityType: 'reading', entityId: r.id, details: { fermentId: ferment.id, before: { correctedSg: r.correctedSg }, after: { correctedSg: sg } } }, tx);
+    }
+    done.push({ takenAt: r.takenAt, correctedSg: sg });
+  }
+}
+
+/** The workspace is the source of truth for a reading's ferment; used by routes addressing /api/readings/[id]. */
+export async function fermentOfReading(workspaceId: number, readingId: number): Promise<number> {
+  const r = await readingById(workspaceId, readingId);
+  const [f] = await getDb().select({ id: ferments.id }).from(ferments).where(and(eq(ferments.id, r.fermentId), eq(ferments.workspaceId, workspaceId))).limit(1);
+  if (!f) throw notFound('No such reading.');
+  return f.id;
+}
