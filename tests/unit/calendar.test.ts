@@ -99,10 +99,12 @@ describe('buildFeed: RFC 5545 / RFC 7986 shape (REFERENCES §8)', () => {
     expect(unfold(buildFeed({ name: 'x', events: [], now, refreshMinutes: 90 }))).toContain('REFRESH-INTERVAL;VALUE=DURATION:PT1H30M\r\n');
   });
 
-  it('writes UTC times with Z, DTSTAMP from `now`, and an exclusive DTEND', () => {
+  it('writes UTC times with Z, an exclusive DTEND, and DTSTAMP = last revision (RFC 5545 §3.8.7.2, no METHOD), else `now`', () => {
     expect(logicalLines).toContain('DTSTART:20261203T060000Z');
     expect(logicalLines).toContain('DTEND:20261203T140000Z');
-    expect(logicalLines.filter((l) => l === 'DTSTAMP:20261201T080005Z')).toHaveLength(3);
+    // Event 0 was last revised 30 Nov 17:45; the two others carry no revision time.
+    expect(logicalLines.filter((l) => l === 'DTSTAMP:20261130T174500Z')).toHaveLength(1);
+    expect(logicalLines.filter((l) => l === 'DTSTAMP:20261201T080005Z')).toHaveLength(2);
     expect(logicalLines.some((l) => l.startsWith('VTIMEZONE') || l.includes('TZID'))).toBe(false);
   });
 
@@ -125,7 +127,7 @@ describe('buildFeed: RFC 5545 / RFC 7986 shape (REFERENCES §8)', () => {
         end: e.end.getTime(), endInputType: 'utc' as const, endOutputType: 'utc' as const,
         title: e.title, description: e.description, location: e.location, url: e.url,
         status: e.status, sequence: e.sequence, lastModified: e.lastModified?.getTime(),
-        timestamp: now.getTime(),
+        timestamp: (e.lastModified ?? now).getTime(),
       })) as Parameters<typeof createEvents>[0],
     );
     expect(error).toBeNull();
@@ -177,7 +179,7 @@ describe('buildFeed: read back by two independent parsers', () => {
       expect(e.end?.getTime()).toBe(events[i].end.getTime());
       expect(e.status).toBe(events[i].status);
       expect(Number(e.sequence)).toBe(events[i].sequence);
-      expect(e.dtstamp?.getTime()).toBe(utc('2026-12-01T08:00:05').getTime());
+      expect(e.dtstamp?.getTime()).toBe((events[i].lastModified ?? now).getTime());
     });
     expect(vevents[0].description).toBe(longText);
     expect(vevents[0].location).toBe('Still house, bay 2');
@@ -245,6 +247,7 @@ describe('describeRunEvent', () => {
     ferments: [
       { code: 'F-12', status: 'finished', litres: 900, readyAt: null, readyP10: null, readyP90: null, confirmedAt: utc('2026-11-30T12:00') },
       { code: 'F-13', status: 'slowing', litres: 300, readyAt: utc('2026-12-03T12:00'), readyP10: utc('2026-12-03T06:00'), readyP90: utc('2026-12-04T18:00'), confirmedAt: null },
+      { code: 'F-9', status: 'slowing', litres: 100, readyAt: null, readyP10: null, readyP90: null, confirmedAt: null, emptiedAt: utc('2026-11-28T09:30') },
     ],
     chargeLitres: 1200,
     operatorName: 'Zoë',
@@ -257,6 +260,8 @@ describe('describeRunEvent', () => {
     'Charge: 1,200 L',
     'Wash F-12 (900 L): finished, confirmed stable 30 Nov 12:00',
     'Wash F-13 (300 L): slowing, not yet confirmed stable, ready window 3 Dec 06:00 – 4 Dec 18:00',
+    // 28 Nov is in GMT: 09:30 UTC is 09:30 in London.
+    'Wash F-9 (100 L): fermenter emptied 28 Nov 09:30',
     'Operator: Zoë',
     '- Warning: Wash F-13 is not confirmed stable: ready window 3 Dec 06:00 – 4 Dec 18:00',
     'Never leave a running still unattended.',

@@ -1,4 +1,5 @@
 import { mysqlTable, varchar, mysqlEnum, int, index, text, uniqueIndex, json } from 'drizzle-orm/mysql-core';
+import { sql } from 'drizzle-orm';
 import { fk, utc, timestamps, id } from './_shared';
 import { workspaces, users } from './accounts';
 import { stills } from './production';
@@ -52,3 +53,19 @@ export const auditLog = mysqlTable('audit_log', {
   createdAt: utc('created_at').notNull(),
 }, (t) => [index('audit_ws_time_idx').on(t.workspaceId, t.createdAt), index('audit_action_idx').on(t.workspaceId, t.action)]);
 
+
+/**
+ * "Do this once" claims shared by every app instance: the daily digest of a workspace for
+ * one local date, a notification about one ferment's status on one day. A claim is an
+ * INSERT committed together with the work it guards; the unique key makes a second
+ * instance's INSERT fail (duplicate key on one node, certification failure on Galera),
+ * so the work happens once even with several instances.
+ */
+export const jobClaims = mysqlTable('job_claims', {
+  id: id(),
+  workspaceId: fk('workspace_id').notNull().references(() => workspaces.id, { onDelete: 'cascade' }),
+  job: varchar('job', { length: 40 }).notNull(),
+  jobKey: varchar('job_key', { length: 120 }).notNull(),
+  claimedBy: varchar('claimed_by', { length: 80 }).notNull(),
+  createdAt: utc('created_at').notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+}, (t) => [uniqueIndex('job_claims_uq').on(t.workspaceId, t.job, t.jobKey)]);

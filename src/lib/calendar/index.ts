@@ -1,5 +1,5 @@
-export { buildFeed, DEFAULT_PRODID } from './feed';
+export { buildFeed, buildFeedAsync, DEFAULT_PRODID, EventCache, eventKey, formatUtcDateTime, sharedEventCache } from './feed';
 export type { EventStatus, FeedEvent, FeedInput } from './feed';
 export { describeRunEvent, runEventStatus, runEventTitle, uidForRun } from './run-event';
 export type { RunEventDescriptionInput, RunEventStatusInput } from './run-event';
-export { escapeText, foldLine, formatDurationMinutes, octetLength, unfold } from './text';
+export { escapeText, foldLine, formatDurationMinutes, normaliseText, octetLength, unfold } from './text';

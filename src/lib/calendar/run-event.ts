@@ -72,7 +72,7 @@ export interface RunEventDescriptionInput {
   runType: RunType;
   stillName: string;
   ferments: ReadonlyArray<
-    Pick<FermentState, 'code' | 'status' | 'readyAt' | 'readyP10' | 'readyP90' | 'confirmedAt'> & { litres?: number | null }
+    Pick<FermentState, 'code' | 'status' | 'readyAt' | 'readyP10' | 'readyP90' | 'confirmedAt'> & { litres?: number | null; emptiedAt?: Date | null }
   >;
   chargeLitres: number | null;
   operatorName: string | null;
@@ -89,7 +89,10 @@ export function describeRunEvent(input: RunEventDescriptionInput): string {
   for (const f of input.ferments) {
     const amount = f.litres !== null && f.litres !== undefined ? ` (${formatLitres(f.litres)})` : '';
     let state = FERMENT_STATES[f.status];
-    if (f.status === 'finished' && f.confirmedAt) {
+    if (f.emptiedAt) {
+      // Its fermenter has been emptied (into this or another still): the forecast is history.
+      state = `fermenter emptied ${formatWhen(f.emptiedAt, input.timeZone)}`;
+    } else if (f.status === 'finished' && f.confirmedAt) {
       state += `, confirmed stable ${formatWhen(f.confirmedAt, input.timeZone)}`;
     } else if (f.status !== 'stalled' && f.status !== 'souring') {
       const window = formatReadyWindow(f, input.timeZone);

@@ -1,4 +1,6 @@
-/** Imported for its side effect: starts the outbox sender once in this server process. */
+/** Imported for its side effect: starts the outbox sender and the digest scheduler once in this server process. */
 import { ensureOutboxSender } from './outbox';
+import { ensureDigestScheduler } from '../digest';
 
 ensureOutboxSender();
+ensureDigestScheduler();

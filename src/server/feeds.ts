@@ -1,0 +1,384 @@
+/**
+ * Calendar feeds: a read-only capability URL per feed (whole distillery, one still, or the
+ * runs one person operates). The token is 256 bits from the CSPRNG, shown once, stored
+ * only as its SHA-256, and never logged. Events cover 30 days back to 180 days ahead;
+ * STATUS carries the forecast (TENTATIVE until every linked wash is confirmed stable).
+ */
+import { createHash } from 'node:crypto';
+import { and, desc, eq, gt, inArray, isNull, lt, or, sql } from 'drizzle-orm';
+import { z } from 'zod';
+import { getDb } from '../db/client';
+import { calendarFeeds, ferments, memberships, readings, runFeeds, runFerments, runs, stills, users, workspaces } from '../db/schema';
+import { toScheduleStill } from '../lib/board';
+import {
+  buildFeedAsync, describeRunEvent, runEventStatus, runEventTitle, uidForRun,
+  type EventStatus, type FeedEvent,
+} from '../lib/calendar';
+import { computeRunWarnings, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
+import { env } from '../config';
+import { audit } from './audit';
+import { can } from './authz';
+import { getForecasts } from './forecasts';
+import { notFound, invalid, HttpError } from './http';
+import { hashToken, newToken } from './auth/tokens';
+import { listStills } from './stills';
+import type { Role } from '../db/schema';
+
+const DAY_MS = 86_400_000;
+export const FEED_DAYS_BACK = 30;
+export const FEED_DAYS_AHEAD = 180;
+/** Active feeds one person may hold in one distillery. */
+export const MAX_FEEDS_PER_PERSON = 20;
+/** last_fetched_at is written at most this often per feed. */
+const FETCH_STAMP_EVERY_MS = 5 * 60_000;
+/** A token as newToken() makes it: 32 bytes, base64url. */
+const TOKEN_SHAPE = /^[A-Za-z0-9_-]{43}$/;
+
+export type FeedScope = 'workspace' | 'still' | 'person';
+
+export const createFeedSchema = z.object({
+  scope: z.enum(['workspace', 'still', 'person']),
+  stillId: z.number().int().positive().optional(),
+  personId: z.number().int().positive().optional(),
+  name: z.string().trim().min(1, 'Give the feed a name.').max(120).optional(),
+});
+export type CreateFeedInput = z.infer<typeof createFeedSchema>;
+
+export interface FeedListRow {
+  id: number;
+  name: string;
+  scope: FeedScope;
+  stillId: number | null;
+  stillName: string | null;
+  personId: number | null;
+  personName: string | null;
+  createdAt: Date;
+  createdById: number | null;
+  createdByName: string | null;
+  lastFetchedAt: Date | null;
+}
+
+interface Actor { userId: number; workspaceId: number; role: Role }
+
+/** The subscription URLs for a token: https (or http in development) and webcal. */
+export function feedUrls(token: string): { url: string; webcal: string } {
+  const base = env().PUBLIC_URL.replace(/\/+$/, '');
+  const url = `${base}/api/feeds/${token}.ics`;
+  return { url, webcal: url.replace(/^https?:\/\//, 'webcal://') };
+}
+
+/** Feeds this person may see: their own; a manager sees everyone's. Never a token. */
+export async function listFeeds(actor: Actor): Promise<FeedListRow[]> {
+  const db = getDb();
+  const rows = await db.select({
+    id: calendarFeeds.id, name: calendarFeeds.name, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId, personId: calendarFeeds.personId,
+    createdAt: calendarFeeds.createdAt, createdById: calendarFeeds.createdBy, lastFetchedAt: calendarFeeds.lastFetchedAt,
+  }).from(calendarFeeds)
+    .where(and(
+      eq(calendarFeeds.workspaceId, actor.workspaceId), isNull(calendarFeeds.revokedAt),
+      can(actor.role, 'feeds.manage') ? undefined : eq(calendarFeeds.createdBy, actor.userId),
+    ))
+    .orderBy(desc(calendarFeeds.createdAt), desc(calendarFeeds.id));
+  const stillIds = [...new Set(rows.map((r) => r.stillId).filter((v): v is number => v !== null))];
+  const userIds = [...new Set(rows.flatMap((r) => [r.personId, r.createdById]).filter((v): v is number => v !== null))];
+  const [stillRows, userRows] = await Promise.all([
+    stillIds.length ? db.select({ id: stills.id, name: stills.name }).from(stills).where(and(eq(stills.workspaceId, actor.workspaceId), inArray(stills.id, stillIds))) : [],
+    userIds.length ? db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, userIds)) : [],
+  ]);
+  const stillName = new Map(stillRows.map((s) => [s.id, s.name]));
+  const userName = new Map(userRows.map((u) => [u.id, u.name]));
+  return rows.map((r) => ({
+    ...r,
+    stillName: r.stillId !== null ? stillName.get(r.stillId) ?? null : null,
+    personName: r.personId !== null ? userName.get(r.personId) ?? null : null,
+    createdByName: r.createdById !== null ? userName.get(r.createdById) ?? null : null,
+  }));
+}
+
+export function feedJson(f: FeedListRow) {
+  return {
+    id: f.id, name: f.name, scope: f.scope, stillId: f.stillId, stillName: f.stillName, personId: f.personId, personName: f.personName,
+    createdAt: f.createdAt.toISOString(), createdById: f.createdById, createdByName: f.createdByName,
+    lastFetchedAt: f.lastFetchedAt ? f.lastFetchedAt.toISOString() : null,
+  };
+}
+
+/** Create a feed; the plain token is returned this once and never stored. */
+export async function createFeed(actor: Actor, input: CreateFeedInput): Promise<{ feed: FeedListRow; token: string; url: string; webcal: string }> {
+  const db = getDb();
+  let stillId: number | null = null;
+  let personId: number | null = null;
+  let defaultName = 'Whole distillery';
+  if (input.scope === 'still') {
+    if (!input.stillId) throw invalid('stillId', 'Choose a still.');
+    const [s] = await db.select({ id: stills.id, name: stills.name }).from(stills)
+      .where(and(eq(stills.id, input.stillId), eq(stills.workspaceId, actor.workspaceId))).limit(1);
+    if (!s) throw invalid('stillId', 'That still is not in this distillery.');
+    stillId = s.id;
+    defaultName = s.name;
+  } else if (input.scope === 'person') {
+    personId = input.personId ?? actor.userId;
+    if (personId !== actor.userId && !can(actor.role, 'feeds.manage')) {
+      throw new HttpError(403, 'forbidden', 'You can subscribe to your own runs; a manager can make a feed of someone else\'s.');
+    }
+    const [m] = await db.select({ name: users.name }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
+      .where(and(eq(memberships.workspaceId, actor.workspaceId), eq(memberships.userId, personId))).limit(1);
+    if (!m) throw invalid('personId', 'That person is not a member of this distillery.');
+    defaultName = personId === actor.userId ? 'My runs' : `${m.name}'s runs`;
+  }
+  const [{ count }] = await db.select({ count: sql<number>`COUNT(*)` }).from(calendarFeeds)
+    .where(and(eq(calendarFeeds.workspaceId, actor.workspaceId), eq(calendarFeeds.createdBy, actor.userId), isNull(calendarFeeds.revokedAt)));
+  if (Number(count) >= MAX_FEEDS_PER_PERSON) {
+    throw new HttpError(409, 'too_many', `You already have ${MAX_FEEDS_PER_PERSON} feeds here; revoke one you no longer use first.`);
+  }
+  const token = newToken();
+  const name = input.name ?? defaultName;
+  const id = await db.transaction(async (tx) => {
+    const [row] = await tx.insert(calendarFeeds).values({
+      workspaceId: actor.workspaceId, scope: input.scope, stillId, personId, name, tokenHash: hashToken(token), createdBy: actor.userId,
+    }).$returningId();
+    await audit({ workspaceId: actor.workspaceId, userId: actor.userId, action: 'feed.create', entityType: 'calendar_feed', entityId: row!.id, details: { scope: input.scope, stillId, personId, name } }, tx);
+    return row!.id;
+  });
+  const feed = (await listFeeds({ ...actor, role: 'manager' })).find((f) => f.id === id)!;
+  return { feed, token, ...feedUrls(token) };
+}
+
+/** Revoke a feed: the creator, or a manager. Someone else's feed is "not found" (its existence is not revealed). */
+export async function revokeFeed(actor: Actor, id: number): Promise<void> {
+  const db = getDb();
+  const [row] = await db.select({ id: calendarFeeds.id, createdBy: calendarFeeds.createdBy }).from(calendarFeeds)
+    .where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, actor.workspaceId), isNull(calendarFeeds.revokedAt))).limit(1);
+  if (!row || (row.createdBy !== actor.userId && !can(actor.role, 'feeds.manage'))) throw notFound('No such feed.');
+  await db.transaction(async (tx) => {
+    await tx.update(calendarFeeds).set({ revokedAt: new Date() }).where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, actor.workspaceId)));
+    await audit({ workspaceId: actor.workspaceId, userId: actor.userId, action: 'feed.revoke', entityType: 'calendar_feed', entityId: id }, tx);
+  });
+}
+
+export interface FeedRecord {
+  id: number;
+  workspaceId: number;
+  scope: FeedScope;
+  stillId: number | null;
+  personId: number | null;
+  name: string;
+  lastFetchedAt: Date | null;
+}
+
+/** The live feed a token opens, or null (unknown, revoked, or its owner has left the distillery). */
+export async function feedForToken(token: string): Promise<FeedRecord | null> {
+  if (!TOKEN_SHAPE.test(token)) return null;
+  const db = getDb();
+  const [row] = await db.select({
+    id: calendarFeeds.id, workspaceId: calendarFeeds.workspaceId, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId,
+    personId: calendarFeeds.personId, name: calendarFeeds.name, lastFetchedAt: calendarFeeds.lastFetchedAt, createdBy: calendarFeeds.createdBy,
+  }).from(calendarFeeds).where(and(eq(calendarFeeds.tokenHash, hashToken(token)), isNull(calendarFeeds.revokedAt))).limit(1);
+  if (!row) return null;
+  // A feed lives only as long as its creator (and, for a person feed, that person) belongs here.
+  const needed = [row.createdBy, row.personId].filter((v): v is number => v !== null);
+  if (needed.length) {
+    const present = await db.select({ userId: memberships.userId }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
+      .where(and(eq(memberships.workspaceId, row.workspaceId), inArray(memberships.userId, needed), isNull(users.disabledAt)));
+    if (new Set(present.map((p) => p.userId)).size !== new Set(needed).size) return null;
+  }
+  if (row.scope === 'still' && row.stillId === null) return null;
+  if (row.scope === 'person' && row.personId === null) return null;
+  return row;
+}
+
+/** Record the fetch, at most every few minutes per feed (a calendar app polls often). */
+export async function stampFetched(feed: FeedRecord, now = new Date()): Promise<void> {
+  if (feed.lastFetchedAt && now.getTime() - feed.lastFetchedAt.getTime() < FETCH_STAMP_EVERY_MS) return;
+  await getDb().update(calendarFeeds).set({ lastFetchedAt: now })
+    .where(and(eq(calendarFeeds.id, feed.id), or(isNull(calendarFeeds.lastFetchedAt), lt(calendarFeeds.lastFetchedAt, new Date(now.getTime() - FETCH_STAMP_EVERY_MS)))));
+}
+
+function uidHost(): string {
+  try {
+    const host = new URL(env().PUBLIC_URL).hostname;
+    return /^[A-Za-z0-9.-]+$/.test(host) && !host.startsWith('.') && !host.endsWith('.') ? host : 'plateau.invalid';
+  } catch {
+    return 'plateau.invalid';
+  }
+}
+
+const maxDate = (...ds: Array<Date | null | undefined>): Date | null => {
+  let best: Date | null = null;
+  for (const d of ds) if (d && (!best || d.getTime() > best.getTime())) best = d;
+  return best;
+};
+
+export interface RenderedFeed {
+  body: string;
+  etag: string;
+  lastModified: Date;
+  eventCount: number;
+}
+
+interface LoadedRun extends Run {
+  sequence: number;
+  updatedAt: Date;
+}
+
+/** Build the calendar of one feed. */
+export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<RenderedFeed> {
+  const db = getDb();
+  const ws = feed.workspaceId;
+  const from = new Date(now.getTime() - FEED_DAYS_BACK * DAY_MS);
+  const to = new Date(now.getTime() + FEED_DAYS_AHEAD * DAY_MS);
+
+  const [wsRow] = await db.select({ name: workspaces.name, timeZone: workspaces.timeZone, updatedAt: workspaces.updatedAt }).from(workspaces).where(eq(workspaces.id, ws)).limit(1);
+  if (!wsRow) throw notFound();
+
+  // Every run of the distillery in the window: warnings need the other stills' runs (operator
+  // double-booked, spirit runs and their feeds) even when the feed shows one still or person.
+  const runRows = await db.select({
+    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
+    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, sequence: runs.sequence, updatedAt: runs.updatedAt,
+  }).from(runs).where(and(eq(runs.workspaceId, ws), lt(runs.startsAt, to), gt(runs.endsAt, from)));
+  const byId = new Map<number, LoadedRun>(runRows.map((r) => [r.id, { ...r, ferments: [], feeds: [], lowWinesLitres: null }]));
+
+  // Feeding runs of spirit runs can sit outside the window: load them too (one level).
+  const ids = [...byId.keys()];
+  const feedLinks = ids.length ? await db.select({ runId: runFeeds.runId, feedRunId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds)
+    .where(and(eq(runFeeds.workspaceId, ws), inArray(runFeeds.runId, ids))) : [];
+  const outside = [...new Set(feedLinks.map((l) => l.feedRunId).filter((id) => !byId.has(id)))];
+  const extra = new Map<number, LoadedRun>();
+  if (outside.length) {
+    const rows = await db.select({
+      id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
+      operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, sequence: runs.sequence, updatedAt: runs.updatedAt,
+    }).from(runs).where(and(eq(runs.workspaceId, ws), inArray(runs.id, outside)));
+    for (const r of rows) extra.set(r.id, { ...r, ferments: [], feeds: [], lowWinesLitres: null });
+  }
+  for (const l of feedLinks) byId.get(l.runId)?.feeds.push({ runId: l.feedRunId, litres: l.litres });
+  const all = (id: number) => byId.get(id) ?? extra.get(id);
+  const allIds = [...ids, ...extra.keys()];
+  const charges = allIds.length ? await db.select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres }).from(runFerments)
+    .where(and(eq(runFerments.workspaceId, ws), inArray(runFerments.runId, allIds))) : [];
+  for (const c of charges) all(c.runId)?.ferments.push({ fermentId: c.fermentId, litres: c.litres });
+
+  const fermentIds = [...new Set(charges.map((c) => c.fermentId))];
+  const [fermentRows, forecasts, readingStamps, stillRows] = await Promise.all([
+    fermentIds.length ? db.select({ id: ferments.id, code: ferments.code, volumeLitres: ferments.volumeLitres, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt, updatedAt: ferments.updatedAt })
+      .from(ferments).where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, fermentIds))) : [],
+    getForecasts(ws, fermentIds, now),
+    fermentIds.length ? db.select({ fermentId: readings.fermentId, at: sql<Date | string>`MAX(${readings.updatedAt})` }).from(readings)
+      .where(and(eq(readings.workspaceId, ws), inArray(readings.fermentId, fermentIds))).groupBy(readings.fermentId) : [],
+    listStills(ws, { includeInactive: true }),
+  ]);
+  const fermentChanged = new Map<number, Date>();
+  for (const f of fermentRows) fermentChanged.set(f.id, f.updatedAt);
+  for (const r of readingStamps) {
+    const at = r.at instanceof Date ? r.at : new Date(`${String(r.at).replace(' ', 'T')}Z`);
+    fermentChanged.set(r.fermentId, maxDate(fermentChanged.get(r.fermentId), at)!);
+  }
+  const states = new Map<number, FermentState>();
+  for (const f of fermentRows) {
+    const fc = forecasts.get(f.id);
+    const status = fc?.status ?? 'insufficient_data';
+    states.set(f.id, {
+      id: f.id, code: f.code, volumeLitres: f.volumeLitres, pitchedAt: f.pitchedAt, emptiedAt: f.emptiedAt, status,
+      readyAt: fc?.readyAt ?? null, readyP10: fc?.readyP10 ?? null, readyP90: fc?.readyP90 ?? null,
+      confirmedAt: status === 'finished' ? fc?.ruleMetAt ?? null : null,
+    });
+  }
+  const stillById = new Map(stillRows.map((s) => [s.id, s]));
+
+  // Operators' names.
+  const operatorIds = [...new Set(runRows.map((r) => r.operatorId).filter((v): v is number => v !== null))];
+  const people = operatorIds.length ? await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, operatorIds)) : [];
+  const personName = new Map(people.map((p) => [p.id, p.name]));
+
+  // Event status: ferment-charged runs first, then spirit runs from their feeds (memoised, cycle-safe).
+  const statusMemo = new Map<number, EventStatus>();
+  const eventStatus = (run: LoadedRun, depth = 0): EventStatus => {
+    const known = statusMemo.get(run.id);
+    if (known) return known;
+    const feeds = depth > 3 ? [] : run.feeds.map((f) => {
+      const feedRun = all(f.runId);
+      return feedRun ? { runStatus: feedRun.status as RunStatus, eventStatus: eventStatus(feedRun, depth + 1) } : { runStatus: 'cancelled' as RunStatus };
+    });
+    const status = runEventStatus({
+      runType: run.type as RunType,
+      runStatus: run.status as RunStatus,
+      ferments: run.ferments.map((c) => states.get(c.fermentId) ?? { status: 'insufficient_data' as const, confirmedAt: null }),
+      feeds,
+    });
+    statusMemo.set(run.id, status);
+    return status;
+  };
+  const changedAt = (run: LoadedRun, depth = 0): Date => {
+    let at = maxDate(run.updatedAt, ...run.ferments.map((c) => fermentChanged.get(c.fermentId)))!;
+    if (depth < 3) for (const f of run.feeds) {
+      const feedRun = all(f.runId);
+      if (feedRun) at = maxDate(at, changedAt(feedRun, depth + 1))!;
+    }
+    return at;
+  };
+
+  const scheduleRuns = [...byId.values()];
+  const inScope = scheduleRuns.filter((r) => feed.scope === 'workspace'
+    || (feed.scope === 'still' && r.stillId === feed.stillId)
+    || (feed.scope === 'person' && r.operatorId === feed.personId));
+  inScope.sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime() || a.id - b.id);
+
+  const base = env().PUBLIC_URL.replace(/\/+$/, '');
+  const host = uidHost();
+  const events: FeedEvent[] = [];
+  let lastModified = maxDate(wsRow.updatedAt, new Date(0))!;
+  for (const run of inScope) {
+    const still = stillById.get(run.stillId);
+    const stillName = still?.name ?? 'a retired still';
+    // Warnings matter while a run is still to come; a run under way or done keeps its record only.
+    const warnings = still && (run.status === 'planned' || run.status === 'confirmed')
+      ? computeRunWarnings(run, { still: toScheduleStill(still), runs: scheduleRuns, ferments: states, timeZone: wsRow.timeZone, now })
+      : [];
+    const url = `${base}/runs/${run.id}`;
+    const modified = changedAt(run);
+    lastModified = maxDate(lastModified, modified)!;
+    events.push({
+      uid: uidForRun(run.id, ws, host),
+      start: run.startsAt,
+      end: run.endsAt,
+      title: runEventTitle(run.type as RunType, stillName),
+      description: describeRunEvent({
+        runType: run.type as RunType,
+        stillName,
+        ferments: run.ferments.map((c) => ({ ...(states.get(c.fermentId) ?? { code: `#${c.fermentId}`, status: 'insufficient_data' as const, readyAt: null, readyP10: null, readyP90: null, confirmedAt: null, emptiedAt: null }), litres: c.litres })),
+        chargeLitres: run.chargeLitres ?? (run.ferments.length ? run.ferments.reduce((s, c) => s + c.litres, 0) : run.feeds.length ? run.feeds.reduce((s, f) => s + f.litres, 0) : null),
+        operatorName: run.operatorId !== null ? personName.get(run.operatorId) ?? null : null,
+        warnings,
+        url,
+        timeZone: wsRow.timeZone,
+      }),
+      location: stillName,
+      url,
+      status: eventStatus(run),
+      sequence: run.sequence,
+      lastModified: modified,
+    });
+  }
+
+  const body = await buildFeedAsync({ name: `${wsRow.name} · ${feed.name}`, events, now });
+  const etag = `"${createHash('sha256').update(body).digest('base64url').slice(0, 32)}"`;
+  // HTTP dates have whole seconds.
+  const lm = new Date(Math.floor(lastModified.getTime() / 1000) * 1000);
+  return { body, etag, lastModified: lm, eventCount: events.length };
+}
+
+/** True when the client's copy is current (If-None-Match wins over If-Modified-Since, RFC 9110 §13.2.2). */
+export function notModified(headers: Headers, etag: string, lastModified: Date): boolean {
+  const inm = headers.get('if-none-match');
+  if (inm !== null) {
+    if (inm.trim() === '*') return true;
+    return inm.split(',').map((t) => t.trim().replace(/^W\//, '')).includes(etag);
+  }
+  const ims = headers.get('if-modified-since');
+  if (ims !== null) {
+    const t = Date.parse(ims);
+    return Number.isFinite(t) && lastModified.getTime() <= t;
+  }
+  return false;
+}

@@ -1,0 +1,347 @@
+/**
+ * Notifications by e-mail, always through the outbox (never sent directly): the mail is
+ * written in the same transaction as the change that causes it, or with the claim that
+ * makes it happen once.
+ *
+ * - a ferment turned stalled or souring -> managers and planners;
+ * - a run is now booked before its wash's predicted ready time -> planners;
+ * - a run moved, was cancelled, or got a new operator -> its operator (old and new) and
+ *   planners, never the person who made the change;
+ * - the daily digest (src/server/digest.ts).
+ * Each person chooses which they receive in each distillery (memberships.notify_prefs).
+ */
+import { and, eq, inArray, isNull } from 'drizzle-orm';
+import { getDb, type Db } from '../db/client';
+import { fermentForecasts, ferments, jobClaims, memberships, runFerments, runs, stills, users, workspaces, type Role } from '../db/schema';
+import { RUN_TYPE_LABELS, shortDate } from '../lib/board';
+import type { BoardRun } from '../lib/board';
+import { wallClock } from '../lib/schedule';
+import { env } from '../config';
+import { enqueue } from './mail/outbox';
+import { escapeHtml } from './mail/templates';
+import type { RunChange, Tx } from './runs';
+
+export type Writer = Pick<Db, 'insert' | 'select' | 'update'>;
+
+export const NOTIFY_KINDS = ['ferment_trouble', 'run_early', 'run_changes', 'digest'] as const;
+export type NotifyKind = (typeof NOTIFY_KINDS)[number];
+export type NotifyPrefs = Record<NotifyKind, boolean>;
+
+export interface NotifyKindInfo {
+  kind: NotifyKind;
+  label: string;
+  hint: string;
+  /** Roles that may receive it at all. */
+  roles: readonly Role[];
+  /** Roles for whom it is on until they choose otherwise. */
+  onByDefault: readonly Role[];
+}
+
+export const NOTIFY_KIND_INFO: readonly NotifyKindInfo[] = [
+  {
+    kind: 'ferment_trouble', label: 'A ferment stalls or sours',
+    hint: 'When the readings show a wash stuck above its finishing range, or signs of souring, with the runs it puts at risk.',
+    roles: ['manager', 'planner', 'distiller'], onByDefault: ['manager', 'planner'],
+  },
+  {
+    kind: 'run_early', label: 'A run is booked before its wash is ready',
+    hint: 'When someone books or moves a run to start before the predicted ready time of a wash it takes.',
+    roles: ['manager', 'planner'], onByDefault: ['planner'],
+  },
+  {
+    kind: 'run_changes', label: 'My runs change',
+    hint: 'When a run you operate is moved, cancelled or handed to someone else; planners hear about every run.',
+    roles: ['manager', 'planner', 'distiller', 'staff'], onByDefault: ['manager', 'planner', 'distiller', 'staff'],
+  },
+  {
+    kind: 'digest', label: 'Daily digest',
+    hint: "Today's and tomorrow's runs, at 06:00 distillery time.",
+    roles: ['manager', 'planner', 'distiller', 'staff'], onByDefault: [],
+  },
+];
+
+const INFO = new Map(NOTIFY_KIND_INFO.map((i) => [i.kind, i]));
+
+/** What a person receives: their own choice where they made one, else the default for their role. */
+export function effectivePrefs(role: Role, stored: Record<string, boolean> | null | undefined): NotifyPrefs {
+  const out = {} as NotifyPrefs;
+  for (const info of NOTIFY_KIND_INFO) {
+    const eligible = info.roles.includes(role);
+    const chosen = stored?.[info.kind];
+    out[info.kind] = eligible && (typeof chosen === 'boolean' ? chosen : info.onByDefault.includes(role));
+  }
+  return out;
+}
+
+export async function getNotifyPrefs(workspaceId: number, userId: number): Promise<{ role: Role; prefs: NotifyPrefs; kinds: NotifyKindInfo[] } | null> {
+  const [m] = await getDb().select({ role: memberships.role, prefs: memberships.notifyPrefs }).from(memberships)
+    .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId))).limit(1);
+  if (!m) return null;
+  return { role: m.role, prefs: effectivePrefs(m.role, m.prefs), kinds: NOTIFY_KIND_INFO.filter((i) => i.roles.includes(m.role)) };
+}
+
+/** Save a person's choices (only kinds their role may receive are kept). */
+export async function setNotifyPrefs(workspaceId: number, userId: number, changes: Partial<Record<NotifyKind, boolean>>): Promise<NotifyPrefs> {
+  const db = getDb();
+  return db.transaction(async (tx) => {
+    const [m] = await tx.select({ role: memberships.role, prefs: memberships.notifyPrefs }).from(memberships)
+      .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId))).for('update').limit(1);
+    if (!m) throw new Error('not a member');
+    const next: Record<string, boolean> = { ...(m.prefs ?? {}) };
+    for (const [kind, on] of Object.entries(changes) as Array<[NotifyKind, boolean | undefined]>) {
+      const info = INFO.get(kind);
+      if (info && info.roles.includes(m.role) && typeof on === 'boolean') next[kind] = on;
+    }
+    await tx.update(memberships).set({ notifyPrefs: next }).where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)));
+    return effectivePrefs(m.role, next);
+  });
+}
+
+export interface Member { id: number; email: string; name: string; role: Role; prefs: NotifyPrefs }
+
+/** Active members of a workspace with their effective preferences. */
+export async function membersOf(db: Pick<Db, 'select'>, workspaceId: number): Promise<Member[]> {
+  const rows = await db.select({ id: users.id, email: users.email, name: users.name, role: memberships.role, prefs: memberships.notifyPrefs })
+    .from(memberships).innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.workspaceId, workspaceId), isNull(users.disabledAt)));
+  return rows.map((r) => ({ id: r.id, email: r.email, name: r.name, role: r.role, prefs: effectivePrefs(r.role, r.prefs) }));
+}
+
+// ---------------------------------------------------------------------------------------
+// Words and mail bodies
+
+/** 'Tue 3 Dec 06:00' on the distillery's clock. */
+export function mailWhen(date: Date, timeZone: string): string {
+  const w = wallClock(date, timeZone);
+  return `${shortDate(w.ymd, w.weekday)} ${w.hm}`;
+}
+
+export interface MailParts { subject: string; text: string; html: string }
+
+const e = escapeHtml;
+
+/** Plateau's small HTML shell for notices (plain paragraphs, one link to the board). */
+export function noticeMail(subject: string, paragraphs: string[], link: { label: string; href: string } | null, footer: string): MailParts {
+  const text = [...paragraphs, ...(link ? [`${link.label}: ${link.href}`] : []), '', footer].join('\n\n').replace(/\n\n\n+/g, '\n\n');
+  const body = paragraphs.map((p) => `<p style="margin:0 0 14px;white-space:pre-line">${e(p)}</p>`).join('\n');
+  const button = link
+    ? `<p style="margin:20px 0"><a href="${e(link.href)}" style="display:inline-block;background:#22302d;color:#ffffff;padding:10px 18px;border-radius:6px;text-decoration:none;font-weight:600">${e(link.label)}</a></p>`
+    : '';
+  const html = `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><title>${e(subject)}</title></head>
+<body style="margin:0;background:#f4f3ef;font-family:Barlow,Arial,sans-serif;color:#1d2321">
+<div style="max-width:560px;margin:0 auto;padding:24px">
+<p style="font-size:20px;font-weight:700;margin:0 0 16px">Plateau</p>
+<div style="background:#ffffff;border:1px solid #d5d8d2;border-radius:8px;padding:20px">
+<h1 style="font-size:20px;margin:0 0 14px">${e(subject)}</h1>
+${body}
+${button}
+</div>
+<p style="font-size:12px;color:#4a5350;margin:16px 0 0">${e(footer)}</p>
+</div></body></html>`;
+  return { subject, text, html };
+}
+
+const base = () => env().PUBLIC_URL.replace(/\/+$/, '');
+const prefsFooter = (workspaceName: string) =>
+  `You get this because of your notification choices in ${workspaceName}. Change them at ${base()}/settings/notifications`;
+
+export interface RunWords { type: BoardRun['type']; stillName: string; startsAt: Date }
+
+/** 'Stripping run on Wash Still 2 moved to Tue 3 Dec 06:00 (was Mon 2 Dec 07:00)'; the still is named again when it changed. */
+export function movedSentence(before: RunWords, after: RunWords, timeZone: string): string {
+  const label = RUN_TYPE_LABELS[after.type];
+  if (before.stillName !== after.stillName) {
+    return `${label} on ${before.stillName} moved to ${after.stillName}, ${mailWhen(after.startsAt, timeZone)} (was ${mailWhen(before.startsAt, timeZone)})`;
+  }
+  return `${label} on ${after.stillName} moved to ${mailWhen(after.startsAt, timeZone)} (was ${mailWhen(before.startsAt, timeZone)})`;
+}
+
+// ---------------------------------------------------------------------------------------
+// Run changes
+
+interface WorkspaceInfo { name: string; timeZone: string }
+
+async function workspaceInfo(db: Pick<Db, 'select'>, workspaceId: number): Promise<WorkspaceInfo> {
+  const [w] = await db.select({ name: workspaces.name, timeZone: workspaces.timeZone }).from(workspaces).where(eq(workspaces.id, workspaceId)).limit(1);
+  return w ?? { name: 'your distillery', timeZone: 'UTC' };
+}
+
+async function stillNames(db: Pick<Db, 'select'>, workspaceId: number, ids: number[]): Promise<Map<number, string>> {
+  if (!ids.length) return new Map();
+  const rows = await db.select({ id: stills.id, name: stills.name }).from(stills).where(and(eq(stills.workspaceId, workspaceId), inArray(stills.id, [...new Set(ids)])));
+  return new Map(rows.map((r) => [r.id, r.name]));
+}
+
+/**
+ * Called by the runs service inside the transaction of every run change. Enqueues the
+ * mails the change calls for; they commit with the change or not at all.
+ */
+export async function notifyRunChanged(tx: Tx, change: RunChange): Promise<void> {
+  const { before, after, actorId, workspaceId, kind } = change;
+  if (kind === 'start' || kind === 'finish') return;
+  const moved = before !== null && (before.stillId !== after.stillId || before.startsAt.getTime() !== after.startsAt.getTime());
+  const cancelled = kind === 'cancel';
+  const operatorChanged = (before?.operatorId ?? null) !== after.operatorId;
+  const earlyCheck = after.status === 'planned' || after.status === 'confirmed';
+  if (!moved && !cancelled && !operatorChanged && !earlyCheck) return;
+
+  const ws = await workspaceInfo(tx, workspaceId);
+  const members = await membersOf(tx, workspaceId);
+  const byId = new Map(members.map((m) => [m.id, m]));
+  const names = await stillNames(tx, workspaceId, [after.stillId, ...(before ? [before.stillId] : [])]);
+  const actor = byId.get(actorId)?.name ?? 'Someone';
+  const afterWords: RunWords = { type: after.type, stillName: names.get(after.stillId) ?? 'a still', startsAt: after.startsAt };
+  const beforeWords: RunWords | null = before ? { type: before.type, stillName: names.get(before.stillId) ?? 'a still', startsAt: before.startsAt } : null;
+  const link = { label: 'Open the run', href: `${base()}/runs/${after.id}` };
+  const label = RUN_TYPE_LABELS[after.type];
+  const at = `${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}–${wallClock(after.endsAt, ws.timeZone).hm}`;
+
+  if (moved || cancelled || operatorChanged) {
+    const oldOp = before?.operatorId ?? null;
+    const newOp = after.operatorId;
+    const recipients = new Map<number, Member>();
+    for (const id of [oldOp, newOp]) {
+      const m = id !== null ? byId.get(id) : undefined;
+      if (m) recipients.set(m.id, m);
+    }
+    // Planners hear of every move and cancellation, and of a run handed over.
+    if (kind !== 'create') for (const m of members) if (m.role === 'planner') recipients.set(m.id, m);
+    recipients.delete(actorId);
+    for (const m of recipients.values()) {
+      if (!m.prefs.run_changes) continue;
+      const lines: string[] = [];
+      let subject: string;
+      if (cancelled) {
+        subject = `${label} on ${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}, was cancelled`;
+        lines.push(`${actor} cancelled the ${label.toLowerCase()} on ${at}.`);
+        if (m.id === oldOp) lines.push('You were down to operate it; that time is free again.');
+      } else if (moved && beforeWords) {
+        subject = movedSentence(beforeWords, afterWords, ws.timeZone);
+        lines.push(`${subject}.`, `Moved by ${actor}. It now runs ${at}.`);
+      } else if (m.id === newOp) {
+        subject = `You are operating the ${label.toLowerCase()} on ${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}`;
+        lines.push(`${actor} put you down to operate the ${label.toLowerCase()} on ${at}.`);
+      } else if (m.id === oldOp) {
+        subject = `You are no longer operating the ${label.toLowerCase()} on ${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}`;
+        lines.push(`${actor} took you off the ${label.toLowerCase()} on ${at}.`);
+      } else {
+        const who = newOp !== null ? byId.get(newOp)?.name ?? 'someone' : 'nobody yet';
+        subject = `${label} on ${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}: operator is now ${who}`;
+        lines.push(`${actor} changed who operates the ${label.toLowerCase()} on ${at}: now ${who}.`);
+      }
+      if (!cancelled && operatorChanged && moved) {
+        if (m.id === newOp) lines.push('You are now its operator.');
+        else if (m.id === oldOp) lines.push('You are no longer its operator.');
+      }
+      if (!cancelled && after.type !== 'cleaning' && after.type !== 'maintenance') lines.push('Never leave a running still unattended.');
+      const mail = noticeMail(subject, lines, link, prefsFooter(ws.name));
+      await enqueue(tx, { workspaceId, kind: cancelled ? 'run_cancelled' : moved ? 'run_moved' : 'run_assigned', to: m.email, ...mail });
+    }
+  }
+
+  if (earlyCheck && after.ferments.length) await notifyBookedEarly(tx, change, ws, members, afterWords, link);
+}
+
+/** Planners hear when a run now starts before a linked wash's predicted ready time (and did not before). */
+async function notifyBookedEarly(tx: Tx, change: RunChange, ws: WorkspaceInfo, members: Member[], words: RunWords, link: { label: string; href: string }): Promise<void> {
+  const { before, after, actorId, workspaceId } = change;
+  const ids = after.ferments.map((c) => c.fermentId);
+  const rows = await tx.select({ fermentId: fermentForecasts.fermentId, status: fermentForecasts.status, readyAt: fermentForecasts.readyAt, code: ferments.code })
+    .from(fermentForecasts).innerJoin(ferments, eq(ferments.id, fermentForecasts.fermentId))
+    .where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, ids), isNull(ferments.emptiedAt)));
+  const wasEarly = (fermentId: number, readyAt: Date) => before !== null
+    && (before.status === 'planned' || before.status === 'confirmed')
+    && before.ferments.some((c) => c.fermentId === fermentId) && before.startsAt.getTime() < readyAt.getTime();
+  const early = rows.filter((r) => r.readyAt && !['finished', 'stalled', 'souring'].includes(r.status)
+    && after.startsAt.getTime() < r.readyAt.getTime() && !wasEarly(r.fermentId, r.readyAt));
+  if (!early.length) return;
+  const label = RUN_TYPE_LABELS[after.type];
+  const actor = members.find((m) => m.id === actorId)?.name ?? 'Someone';
+  const subject = `${label} on ${words.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}, starts before its wash is ready`;
+  const lines = [
+    `${actor} ${change.kind === 'create' ? 'booked' : 'moved'} the ${label.toLowerCase()} on ${words.stillName} to start ${mailWhen(after.startsAt, ws.timeZone)}.`,
+    ...early.map((r) => `Wash ${r.code} is predicted ready only at ${mailWhen(r.readyAt!, ws.timeZone)}: it will most likely still be fermenting.`),
+    'Check the readings, or move the run after the ready window.',
+  ];
+  const mail = noticeMail(subject, lines, link, prefsFooter(ws.name));
+  for (const m of members) {
+    if (m.id === actorId || !m.prefs.run_early || m.role !== 'planner' && m.role !== 'manager') continue;
+    await enqueue(tx, { workspaceId, kind: 'run_early', to: m.email, ...mail });
+  }
+}
+
+// ---------------------------------------------------------------------------------------
+// Ferment status
+
+/** MariaDB duplicate key, or a Galera certification failure on the claim. */
+export function isClaimTaken(err: unknown): boolean {
+  let x: unknown = err;
+  for (let depth = 0; x && depth < 5; depth++) {
+    const errno = (x as { errno?: number }).errno;
+    const code = (x as { code?: string }).code;
+    if (errno === 1062 || code === 'ER_DUP_ENTRY' || errno === 1213 || code === 'ER_LOCK_DEADLOCK') return true;
+    x = (x as { cause?: unknown }).cause;
+  }
+  return false;
+}
+
+/** Insert a once-only claim inside `tx`; false when another instance (or an earlier call) holds it. */
+export async function claimOnce(tx: Pick<Db, 'insert'>, workspaceId: number, job: string, jobKey: string): Promise<boolean> {
+  try {
+    await tx.insert(jobClaims).values({ workspaceId, job, jobKey, claimedBy: `${env().PLATEAU_INSTANCE}-${process.pid}` });
+    return true;
+  } catch (err) {
+    if (isClaimTaken(err)) return false;
+    throw err;
+  }
+}
+
+export interface FermentStatusChange { workspaceId: number; fermentId: number; before: string | null; after: string }
+
+/**
+ * Called where a ferment's forecast is recomputed. When the status has just turned
+ * stalled or souring, tells the managers and planners (once per ferment, status and local
+ * day, whichever instance noticed first), naming the runs it puts at risk. Never throws:
+ * a failed notice must not break the forecast.
+ */
+export async function notifyFermentStatusChange(db: Pick<Db, 'transaction'>, change: FermentStatusChange): Promise<boolean> {
+  const { workspaceId, fermentId, before, after } = change;
+  if (after !== 'stalled' && after !== 'souring') return false;
+  if (before === after) return false;
+  try {
+    return await db.transaction(async (tx) => {
+      const ws = await workspaceInfo(tx, workspaceId);
+      const day = wallClock(new Date(), ws.timeZone).ymd;
+      const [f] = await tx.select({ code: ferments.code, emptiedAt: ferments.emptiedAt }).from(ferments).where(and(eq(ferments.id, fermentId), eq(ferments.workspaceId, workspaceId))).limit(1);
+      // An emptied ferment's forecast is frozen history: nothing to act on.
+      if (!f || f.emptiedAt) return false;
+      // The claim commits with the mails: a second instance's insert fails and sends nothing.
+      if (!(await claimOnce(tx, workspaceId, `ferment_${after}`, `${fermentId}:${day}`))) return false;
+      const now = new Date();
+      const atRisk = await tx.select({ id: runs.id, type: runs.type, startsAt: runs.startsAt, stillName: stills.name })
+        .from(runFerments).innerJoin(runs, eq(runs.id, runFerments.runId)).innerJoin(stills, eq(stills.id, runs.stillId))
+        .where(and(eq(runFerments.workspaceId, workspaceId), eq(runFerments.fermentId, fermentId), inArray(runs.status, ['planned', 'confirmed'])));
+      const upcoming = atRisk.filter((r) => r.startsAt.getTime() > now.getTime()).sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime());
+      const subject = after === 'stalled' ? `Wash ${f.code} has stalled` : `Wash ${f.code} shows signs of souring`;
+      const lines = [
+        after === 'stalled'
+          ? `The readings of wash ${f.code} have stopped falling above its finishing range: it is stuck, not finished. Check temperature, yeast health and nutrients before it goes anywhere near a still.`
+          : `The readings of wash ${f.code} point to souring (gravity below the normal range, or a falling pH). Taste and smell it, and check pH, before it goes to a still.`,
+        upcoming.length
+          ? `Runs it is booked into:\n${upcoming.map((r) => `- ${RUN_TYPE_LABELS[r.type]} on ${r.stillName}, ${mailWhen(r.startsAt, ws.timeZone)}`).join('\n')}`
+          : 'It is not booked into any run yet.',
+      ];
+      const mail = noticeMail(subject, lines, { label: 'Open the ferment', href: `${base()}/ferments/${fermentId}` }, prefsFooter(ws.name));
+      for (const m of await membersOf(tx, workspaceId)) {
+        if (!m.prefs.ferment_trouble) continue;
+        await enqueue(tx, { workspaceId, kind: `ferment_${after}`, to: m.email, ...mail });
+      }
+      return true;
+    });
+  } catch (err) {
+    console.error('[plateau] ferment notice failed:', err instanceof Error ? err.message : String(err));
+    return false;
+  }
+}
+
