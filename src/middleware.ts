@@ -76,6 +76,10 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
     if (isApi) return withHeaders(jsonError(isDbUnavailable(err) ? 503 : 500, isDbUnavailable(err) ? 'unavailable' : 'internal', 'Something went wrong on our side.'));
     throw err;
   }
+  // An /api path that fell through to the HTML 404 page (e.g. an id that cannot be routed) answers JSON.
+  if (isApi && response.status === 404 && (response.headers.get('content-type') ?? '').includes('text/html')) {
+    return withHeaders(jsonError(404, 'not_found', 'No such API route.'));
+  }
   return withHeaders(response, isStatic);
 });
 

@@ -7,7 +7,7 @@ import { newToken, hashToken } from './auth/tokens';
 import { enqueue } from './mail/outbox';
 import { signUpConfirmMail, alreadyRegisteredMail, passwordResetMail } from './mail/templates';
 import { env } from '../config';
-import { errorResponse, jsonError, readLimitedText, MAX_JSON_BYTES, zodFields, notFound } from './http';
+import { errorResponse, jsonError, readLimitedText, readForm, MAX_JSON_BYTES, zodFields, notFound } from './http';
 import { getDb } from '../db/client';
 import { users } from '../db/schema';
 import { verifyPassword, hashPassword, needsRehash, dummyPasswordHash } from './auth/password';
@@ -231,7 +231,7 @@ export async function readInput(ctx: APIContext): Promise<{ raw: unknown; isForm
   if (isForm) {
     const declared = Number(ctx.request.headers.get('content-length') ?? '0');
     if (declared > MAX_JSON_BYTES) throw new HttpError(413, 'too_large', 'The request body is too large.');
-    const form = await ctx.request.formData();
+    const form = await readForm(ctx.request);
     const raw: Record<string, string> = {};
     for (const [k, v] of form.entries()) if (typeof v === 'string') raw[k] = v;
     return { raw, isForm };

@@ -156,6 +156,34 @@ export async function readLimitedText(request: Request, limit: number): Promise<
   return Buffer.concat(chunks).toString('utf8');
 }
 
+/**
+ * Work done after a write has committed (read-backs, warnings, forecasts) must not turn a
+ * stored change into an error answer: on failure it logs and gives the fallback, so the
+ * client is never told to retry a write that happened.
+ */
+export async function afterCommit<T>(work: () => Promise<T>, fallback: T): Promise<T> {
+  try {
+    return await work();
+  } catch (err) {
+    console.error('[plateau] after-commit work failed:', err instanceof Error ? err.message : String(err));
+    return fallback;
+  }
+}
+
+/** A PATCH body must change something: an empty object is a 400, not a no-op write. */
+export function nonEmpty<T extends z.ZodObject>(schema: T) {
+  return schema.refine((o: Record<string, unknown>) => Object.values(o).some((v) => v !== undefined), { message: 'Send at least one field to change.' });
+}
+
+/** Parse a form body; a malformed one is the client's error (400), never a 500. */
+export async function readForm(request: Request): Promise<FormData> {
+  try {
+    return await request.formData();
+  } catch {
+    throw new HttpError(400, 'invalid_form', 'The form body could not be read.');
+  }
+}
+
 /** Route params are ids: positive integers, else 404 (an id that cannot exist is not found). */
 export function idParam(value: string | undefined): number {
   if (!value || !/^\d{1,15}$/.test(value)) throw notFound();

@@ -4,7 +4,7 @@ import { ferments, readings, users } from '../db/schema';
 import { correctReading, GravityInputError, sgToBrix, type ReadingMethod, type ReadingUnit } from '../lib/gravity';
 import { parseTemperatureToC, temperatureUnitFor, formatTemperature } from '../lib/units';
 import { audit } from './audit';
-import { HttpError, conflict, invalid, notFound } from './http';
+import { HttpError, conflict, invalid, notFound, afterCommit } from './http';
 import type { WorkspaceSettings } from './workspaces';
 import { CLOCK_SKEW_MS, getFerment, parseWorkspaceTime } from './ferments';
 import { recomputeForecast } from './forecasts';
@@ -165,7 +165,8 @@ export async function addReading(ws: WorkspaceSettings, userId: number, fermentI
     return row!.id;
   });
   await recomputeForecast(ws.id, fermentId, now);
-  return (await listReadings(ws.id, fermentId)).find((r) => r.id === id)!;
+  const stored = { id, fermentId, takenAt: entry.takenAt, method: entry.method, rawValue: entry.value, rawUnit: entry.unit, sampleTempC: entry.sampleTempC, correctedSg: corrected.sg, lowConfidence: corrected.lowConfidence };
+  return afterCommit(async () => (await listReadings(ws.id, fermentId)).find((r) => r.id === id)!, stored as never);
 }
 
 const AUDITED = ['takenAt', 'method', 'rawValue', 'rawUnit', 'sampleTempC', 'sampleTempUnit', 'correctedSg', 'lowConfidence', 'fermentTempC', 'ph', 'note'] as const;

@@ -68,7 +68,19 @@ const transports = new Map<string, Transporter>();
 function transportFor(url: string): Transporter {
   let t = transports.get(url);
   if (!t) {
-    t = nodemailer.createTransport(url, { connectionTimeout: 5000, greetingTimeout: 5000, socketTimeout: 10000 } as never);
+    // Timeouts go in the transport options (a second argument would only set message defaults),
+    // so a hung SMTP server cannot block the sender loop.
+    const u = new URL(url);
+    t = nodemailer.createTransport({
+      host: u.hostname,
+      port: Number(u.port || (u.protocol === 'smtps:' ? 465 : 25)),
+      secure: u.protocol === 'smtps:',
+      auth: u.username ? { user: decodeURIComponent(u.username), pass: decodeURIComponent(u.password) } : undefined,
+      ignoreTLS: u.searchParams.get('ignoreTLS') === 'true',
+      connectionTimeout: 5000,
+      greetingTimeout: 5000,
+      socketTimeout: 10000,
+    });
     transports.set(url, t);
   }
   return t;

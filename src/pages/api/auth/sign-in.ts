@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { z } from 'zod';
 import { signIn } from '../../../server/accounts';
 import { setSessionCookie } from '../../../server/auth/session';
-import { errorResponse, json, jsonError, zodFields, HttpError } from '../../../server/http';
+import { errorResponse, json, jsonError, zodFields, HttpError, readForm } from '../../../server/http';
 import { clientIp } from '../../../server/request';
 
 const Body = z.object({
@@ -15,7 +15,7 @@ const Body = z.object({
 export const POST: APIRoute = async (ctx) => {
   const isForm = (ctx.request.headers.get('content-type') ?? '').includes('application/x-www-form-urlencoded');
   try {
-    const raw = isForm ? Object.fromEntries(await ctx.request.formData()) : await ctx.request.json().catch(() => null);
+    const raw = isForm ? Object.fromEntries(await readForm(ctx.request)) : await ctx.request.json().catch(() => null);
     const parsed = Body.safeParse(raw);
     if (!parsed.success) {
       if (isForm) return ctx.redirect('/sign-in?error=invalid', 303);

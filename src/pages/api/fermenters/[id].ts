@@ -1,9 +1,9 @@
-import { route, json, idParam } from '../../../server/http';
+import { route, json, idParam, nonEmpty } from '../../../server/http';
 import { updateFermenter } from '../../../server/vessels';
 import { parseVolumeToLitres, volumeUnitFor } from '../../../lib/units';
 import { fermenterBody } from './index';
 
-export const PATCH = route({ action: 'vessels.manage', body: fermenterBody.partial() }, async ({ ctx, auth, body, params }) => {
+export const PATCH = route({ action: 'vessels.manage', body: nonEmpty(fermenterBody.partial()) }, async ({ ctx, auth, body, params }) => {
   const id = idParam(params.id);
   const units = ctx.locals.workspace!.units;
   const { capacity, ...rest } = body;
