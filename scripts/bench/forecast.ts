@@ -1,10 +1,12 @@
 /**
  * Forecast backtest:
- *   npm run bench:forecast -- [folder] [--json] [--predictions FILE]
+ *   npm run bench:forecast -- [folder] [--json] [--predictions FILE] [--no-history]
  * The folder holds CSV files with columns ferment,wash_type,taken_at,sg (ISO 8601 UTC;
  * first reading of a ferment = OG at pitch; an optional low_confidence column flags
  * lower-confidence readings). A truth.json beside them (synthetic sets) enables the
- * curve oracle. Default folder: tests/fixtures/ferments/synthetic.
+ * curve oracle. Default folder: tests/fixtures/ferments/synthetic. Each forecast is given its
+ * wash type's past pitch-to-ready durations from the OTHER finished ferments of the folder
+ * (leave-one-out, as baseline (a)); --no-history measures the forecast without them.
  */
 import { readdirSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { join } from 'node:path';
@@ -65,6 +67,7 @@ export function timeOneForecast(runs = 300): number {
 function main() {
   const args = process.argv.slice(2);
   const json = args.includes('--json');
+  const useHistory = !args.includes('--no-history');
   const pi = args.indexOf('--predictions');
   const predFile = pi >= 0 ? args[pi + 1] : null;
   const folder = args.find((a, i) => !a.startsWith('--') && !(pi >= 0 && i === pi + 1)) ?? 'tests/fixtures/ferments/synthetic';
@@ -74,6 +77,7 @@ function main() {
   const report = runBacktest(ferments, {
     ranges: DEFAULT_RANGES,
     truth,
+    useHistory,
     onForecast: predFile
       ? (f, asOf, fc) =>
           lines.push(
@@ -92,14 +96,14 @@ function main() {
   const wallMs = performance.now() - t0;
   if (predFile) writeFileSync(predFile, lines.join('\n') + '\n');
   const oneForecastMedianMs = timeOneForecast();
-  const full = { folder, ...report, timing: { ...report.timing, replayWallMs: wallMs, oneForecast40ReadingsMedianMs: oneForecastMedianMs } };
+  const full = { folder, useHistory, ...report, timing: { ...report.timing, replayWallMs: wallMs, oneForecast40ReadingsMedianMs: oneForecastMedianMs } };
   if (json) {
     console.log(JSON.stringify(full));
     return;
   }
   const d = (x: number | null) => (x === null ? '   -  ' : x.toFixed(2).padStart(6));
   const pct = (x: number | null) => (x === null ? '-' : `${(100 * x).toFixed(1)} %`);
-  console.log(`folder ${folder}: ${report.ferments} ferments, ${report.forecasts} forecasts`);
+  console.log(`folder ${folder}: ${report.ferments} ferments, ${report.forecasts} forecasts${useHistory ? ', history leave-one-out' : ', no history'}`);
   console.log(`outcomes: ${JSON.stringify(report.outcome)}`);
   console.log('ready-time MAE (days)   ours  oracle  wash-median  last-two   (n)');
   for (const c of ['25', '50', '75'] as const) {

@@ -3,6 +3,7 @@ import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
 import { getDb } from '../db/client';
 import { fermentForecasts, ferments, forecastHistory, readings, washTypes, workspaces } from '../db/schema';
 import { forecastFerment, type Forecast, type ForecastStatus } from '../lib/forecast';
+import { notifyFermentStatusChange } from './notify';
 
 /** What the board and the ferments list need from a forecast. */
 export interface ForecastSummary {
@@ -155,7 +156,7 @@ async function forecastsFor(workspaceId: number, fermentIds: number[], now: Date
     }
     const forecast = compute(f, rs, settings, now);
     await store(workspaceId, f.id, key, forecast, now);
-    if (hit?.status !== forecast.status) await (await import('./notify')).notifyFermentStatusChange(getDb(), { workspaceId, fermentId: f.id, before: hit?.status ?? null, after: forecast.status });
+    if (hit?.status !== forecast.status) await notifyFermentStatusChange(getDb(), { workspaceId, fermentId: f.id, before: hit?.status ?? null, after: forecast.status });
     out.set(f.id, forecast);
   }
   return out;

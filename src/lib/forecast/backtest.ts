@@ -30,6 +30,12 @@ export interface BacktestOptions {
   /** Called for each scored checkpoint with the errors in days (predicted minus actual). */
   onCheckpoint?: (ferment: BacktestFerment, checkpoint: string, errors: { ours: number; oracle: number | null }, f: Forecast) => void;
   now?: () => number;
+  /**
+   * Give each forecast the wash type's past pitch-to-ready durations (ForecastInput.history),
+   * taken leave-one-out from the OTHER finished ferments of the set, never the one forecast
+   * (default true; the same pool baseline (a) uses).
+   */
+  useHistory?: boolean;
 }
 
 export interface ErrorStats {
@@ -133,12 +139,19 @@ export function runBacktest(ferments: BacktestFerment[], o: BacktestOptions): Ba
 
   for (const p of prepared) {
     const { f, sorted, pitchedAt, og, range } = p;
+    const history =
+      o.useHistory === false
+        ? undefined
+        : prepared
+            .filter((q) => q !== p && q.outcome === 'finished' && q.ruleAt !== null && q.f.washType === f.washType)
+            .map((q) => ((q.ruleAt as number) - q.pitchedAt) / DAY_MS);
     const base = {
       og,
       pitchedAt: new Date(pitchedAt),
       terminalRange: range,
       stableDays,
       tolerance,
+      history,
     };
     // Checkpoint times: first reading at which the drop reaches 25/50/75 % of OG -> final.
     const cpTimes = new Map<string, number>();

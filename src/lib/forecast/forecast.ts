@@ -101,7 +101,7 @@ function fitFerment(data: FitData, input: ForecastInput): Array<{ fit: ModelFit;
     const f = fitModel(kind, data, {
       start: input.og,
       priors: priorsFor(kind, input),
-      noise: C.readingNoise,
+      noise: C.priorNoise,
       outlierFloor: 0.0006,
       fallbackStart: fallbackStart(kind, input, tLast),
       lowGuess: low,
@@ -172,6 +172,24 @@ const empty: Omit<Forecast, 'status' | 'reason'> = {
   lastSg: null,
   dropPerDay: null,
 };
+
+/**
+ * Shift of the fitted ready time toward this wash type's past pitch-to-ready durations:
+ * a precision-weighted blend of the fit (spread from its resampling) and the history
+ * (median and robust spread of the past durations still possible as of now). Early on the
+ * fit is loose and the history counts; once the curve's bend is seen the fit dominates.
+ */
+function historyShift(history: readonly number[] | undefined, fitted: number, q10: number, q90: number, nowDays: number): number {
+  const h = C.history;
+  if (!h.enabled || !history) return 0;
+  const still = history.filter((d) => Number.isFinite(d) && d > nowDays).sort((a, b) => a - b);
+  if (still.length < h.minCount) return 0;
+  const mid = median(still);
+  const spread = Math.max(h.minSpreadDays, 1.4826 * median(still.map((d) => Math.abs(d - mid))));
+  const own = Math.max(h.minSpreadDays, (q90 - q10) / 2.563);
+  const w = Math.min(h.maxWeight, (own * own) / (own * own + h.lambda * spread * spread));
+  return w * (mid - fitted);
+}
 
 /** Forecast for one ferment as of `input.now`. Pure and deterministic for a given seed. */
 export function forecastFerment(input: ForecastInput): Forecast {
@@ -296,7 +314,7 @@ export function forecastFerment(input: ForecastInput): Forecast {
       for (const i of used) eps[i] = dof >= 3 ? res[Math.floor(rand() * res.length)] * inflate : normal(rand) * gaussianSd;
       perturbations.push(eps);
     }
-    for (const th of bootstrapThetas(m, fitData, { start: input.og, priors: priorsFor(m.kind, input), noise: C.readingNoise }, perturbations)) {
+    for (const th of bootstrapThetas(m, fitData, { start: input.og, priors: priorsFor(m.kind, input), noise: C.priorNoise }, perturbations)) {
       if (!th.every(Number.isFinite)) continue;
       if (m === fit) fgReps.push(fgOf({ kind: m.kind, theta: th }));
       readyReps.push(readyFrom(th, m.kind).ready ?? 400);
@@ -340,9 +358,13 @@ export function forecastFerment(input: ForecastInput): Forecast {
   }
   if (status === 'stalled' || status === 'souring' || point.ready === null) return out;
 
-  const ready = C.pointFromReplicates && readyReps.length >= 5 ? Math.max(quantileSorted(readyReps, 0.5), floorDays, nowDays) : point.ready;
-  const q10 = readyReps.length >= 5 ? quantileSorted(readyReps, 0.1) : ready;
-  const q90 = readyReps.length >= 5 ? quantileSorted(readyReps, 0.9) : ready;
+  const fitted = C.pointFromReplicates && readyReps.length >= 5 ? Math.max(quantileSorted(readyReps, 0.5), floorDays, nowDays) : point.ready;
+  let q10 = readyReps.length >= 5 ? quantileSorted(readyReps, 0.1) : fitted;
+  let q90 = readyReps.length >= 5 ? quantileSorted(readyReps, 0.9) : fitted;
+  const shift = historyShift(input.history, fitted, q10, q90, nowDays);
+  const ready = Math.max(fitted + shift, floorDays, nowDays);
+  q10 += ready - fitted;
+  q90 += ready - fitted;
   const remaining = Math.max(0, ready - nowDays);
   const extra = C.interval.perRemaining * remaining + C.interval.floorDays;
   let p10 = ready - C.interval.widen * Math.max(0, ready - q10) - extra;

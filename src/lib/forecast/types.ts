@@ -46,6 +46,11 @@ export interface ForecastInput {
   /** Allowed spread of the stable readings (product default 0.001). */
   tolerance: number;
   now: Date;
+  /**
+   * Optional: past pitch-to-ready durations, in days, of this wash type's finished ferments
+   * in the same workspace (this ferment excluded). Blended in while the fit is still loose.
+   */
+  history?: number[];
   /** Seed of the resampling that gives the interval; the same input and seed give the same forecast. */
   seed?: number;
 }

@@ -1,0 +1,143 @@
+import { memo, useRef, useState } from 'react';
+import { useDraggable } from '@dnd-kit/core';
+import type { BoardRun, WindowPlacement } from '../../lib/board';
+import { RUN_STATUS_LABELS, RUN_TYPE_LABELS } from '../../lib/board';
+import type { Warning } from '../../lib/schedule';
+import { WarningBadges } from './WarningBadges';
+
+export interface RunBlockProps {
+  run: BoardRun;
+  x: number;
+  width: number;
+  cleaningWidth: number;
+  rowHeight: number;
+  fermentCodes: string;
+  chargeText: string;
+  operatorText: string;
+  timeText: string;
+  warnings: readonly Warning[];
+  placement: WindowPlacement;
+  canMove: boolean;
+  compact: boolean;
+  onOpen: (runId: number) => void;
+  onResize: (runId: number, deltaX: number) => void;
+  onResizeKey: (runId: number, steps: number) => void;
+}
+
+const TYPE_CLASS: Record<BoardRun['type'], string> = {
+  stripping: 'run-stripping',
+  spirit: 'run-spirit',
+  redistillation: 'run-redistillation',
+  cleaning: 'run-cleaning',
+  maintenance: 'run-maintenance',
+};
+
+const SHORT: Record<BoardRun['type'], string> = { stripping: 'Strip', spirit: 'Spirit', redistillation: 'Redist.', cleaning: 'Clean', maintenance: 'Maint.' };
+
+const PLACEMENT_TEXT: Record<WindowPlacement, string> = {
+  before: 'starts before its wash is ready',
+  inside: 'starts inside its wash’s ready window',
+  after: 'starts after its wash is ready',
+  unknown: '',
+};
+
+function RunBlockInner(p: RunBlockProps) {
+  const movable = p.canMove && (p.run.status === 'planned' || p.run.status === 'confirmed');
+  const { attributes, listeners, setNodeRef, transform, isDragging } = useDraggable({
+    id: `run:${p.run.id}`,
+    data: { kind: 'run', runId: p.run.id },
+    disabled: !movable,
+  });
+  const [resizeDx, setResizeDx] = useState(0);
+  const startX = useRef<number | null>(null);
+
+  const label = `${RUN_TYPE_LABELS[p.run.type]}, ${RUN_STATUS_LABELS[p.run.status].toLowerCase()}, ${p.timeText}${p.fermentCodes ? `, wash ${p.fermentCodes}` : ''}${p.chargeText ? `, ${p.chargeText}` : ''}${p.operatorText ? `, ${p.operatorText}` : ''}${p.placement !== 'unknown' ? `, ${PLACEMENT_TEXT[p.placement]}` : ''}${p.warnings.length ? `, ${p.warnings.length} warning${p.warnings.length > 1 ? 's' : ''}` : ''}`;
+  const width = Math.max(6, p.width + resizeDx);
+  const style: React.CSSProperties = {
+    left: p.x,
+    width: width + p.cleaningWidth,
+    height: p.rowHeight - 10,
+    transform: transform ? `translate3d(${transform.x}px, ${transform.y}px, 0)` : undefined,
+    zIndex: isDragging ? 30 : undefined,
+  };
+
+  return (
+    <>
+    <div
+      ref={setNodeRef}
+      className={`run-block ${TYPE_CLASS[p.run.type]} status-${p.run.status} place-${p.placement}${isDragging ? ' is-dragging' : ''}${movable ? '' : ' is-fixed'}`}
+      style={style}
+      data-run-id={p.run.id}
+      data-testid={`run-${p.run.id}`}
+      {...attributes}
+      {...listeners}
+      aria-roledescription={movable ? 'movable run' : 'run'}
+      aria-label={label}
+      title={label}
+      onKeyDown={(e) => {
+        if (e.key === 'Enter') {
+          e.preventDefault();
+          p.onOpen(p.run.id);
+          return;
+        }
+        listeners?.onKeyDown?.(e);
+      }}
+      onClick={(e) => {
+        e.stopPropagation();
+        p.onOpen(p.run.id);
+      }}
+    >
+      <div className="run-body" style={{ width }}>
+        <div className="run-line1">
+          <span className="run-type">{p.compact ? SHORT[p.run.type].slice(0, 1) : p.width < 90 ? SHORT[p.run.type] : RUN_TYPE_LABELS[p.run.type]}</span>
+          {!p.compact && p.fermentCodes && <span className="run-codes">{p.fermentCodes}</span>}
+        </div>
+        {!p.compact && (
+          <div className="run-line2">
+            {p.chargeText && <span>{p.chargeText}</span>}
+            {p.operatorText && <span className="run-op">{p.operatorText}</span>}
+          </div>
+        )}
+        <WarningBadges warnings={p.warnings} compact={p.compact} />
+      </div>
+      {p.cleaningWidth > 0 && <div className="run-cleaning-tail" style={{ width: p.cleaningWidth }} aria-hidden="true" />}
+    </div>
+      {movable && !p.compact && !isDragging && (
+        <button
+          type="button"
+          className="run-resize"
+          style={{ left: p.x + width - 10, top: 4, height: p.rowHeight - 10 }}
+          aria-label={`Change the length of this ${RUN_TYPE_LABELS[p.run.type].toLowerCase()}: left and right arrows shorten or lengthen it by a slot`}
+          onPointerDown={(e) => {
+            e.stopPropagation();
+            e.preventDefault();
+            startX.current = e.clientX;
+            (e.target as HTMLElement).setPointerCapture(e.pointerId);
+          }}
+          onPointerMove={(e) => {
+            if (startX.current !== null) setResizeDx(e.clientX - startX.current);
+          }}
+          onPointerUp={(e) => {
+            if (startX.current === null) return;
+            const dx = e.clientX - startX.current;
+            startX.current = null;
+            setResizeDx(0);
+            if (Math.abs(dx) > 2) p.onResize(p.run.id, dx);
+          }}
+          onPointerCancel={() => {
+            startX.current = null;
+            setResizeDx(0);
+          }}
+          onClick={(e) => e.stopPropagation()}
+          onKeyDown={(e) => {
+            e.stopPropagation();
+            if (e.key === 'ArrowRight') { e.preventDefault(); p.onResizeKey(p.run.id, 1); }
+            if (e.key === 'ArrowLeft') { e.preventDefault(); p.onResizeKey(p.run.id, -1); }
+          }}
+        />
+      )}
+    </>
+  );
+}
+
+export const RunBlock = memo(RunBlockInner);

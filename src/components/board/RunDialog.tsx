@@ -1,0 +1,227 @@
+import { useEffect, useMemo, useRef, useState } from 'react';
+import type { Board, BoardRun } from '../../lib/board';
+import { defaultRunMinutes, RUN_STATUS_LABELS, RUN_TYPE_LABELS, SAFETY_CAUTIONS, toFermentState, toScheduleRun, toScheduleStill } from '../../lib/board';
+import { computeRunWarnings, wallClock, zonedDateTime, type RunType, type Warning } from '../../lib/schedule';
+import { formatVolume, parseVolumeToLitres, volumeForDisplay, volumeUnitFor, type UnitSystem } from '../../lib/units';
+
+export interface DialogDraft {
+  /** Null when booking a new run. */
+  run: BoardRun | null;
+  stillId: number;
+  startsAt: Date;
+  type: RunType;
+  ferments: Array<{ fermentId: number; litres: number }>;
+}
+
+export interface RunDialogProps {
+  board: Board;
+  draft: DialogDraft;
+  units: UnitSystem;
+  canBook: boolean;
+  canOperate: boolean;
+  busy: boolean;
+  error: string | null;
+  onClose: () => void;
+  onSave: (body: Record<string, unknown>, run: BoardRun | null) => void;
+  onAction: (action: 'cancel' | 'start' | 'finish', run: BoardRun) => void;
+}
+
+const TYPES: RunType[] = ['stripping', 'spirit', 'redistillation', 'cleaning', 'maintenance'];
+
+function localInput(date: Date, tz: string): string {
+  const w = wallClock(date, tz);
+  return `${w.ymd}T${w.hm}`;
+}
+
+function fromLocalInput(value: string, tz: string): Date | null {
+  const m = /^(\d{4}-\d{2}-\d{2})T(\d{2}:\d{2})/.exec(value);
+  return m ? zonedDateTime(m[1]!, m[2]!, tz) : null;
+}
+
+export function RunDialog(p: RunDialogProps) {
+  const { board, draft } = p;
+  const tz = board.timeZone;
+  const ref = useRef<HTMLDialogElement>(null);
+  const existing = draft.run;
+  const editable = p.canBook && (!existing || existing.status === 'planned' || existing.status === 'confirmed');
+  const unit = volumeUnitFor(p.units);
+  const toUnit = (l: number | null) => (l === null ? '' : String(Math.round(volumeForDisplay(l, p.units) * 10) / 10));
+
+  const [type, setType] = useState<RunType>(existing?.type ?? draft.type);
+  const [stillId, setStillId] = useState(existing?.stillId ?? draft.stillId);
+  const [start, setStart] = useState(localInput(existing?.startsAt ?? draft.startsAt, tz));
+  const [status, setStatus] = useState<'planned' | 'confirmed'>(existing?.status === 'confirmed' ? 'confirmed' : 'planned');
+  const [operatorId, setOperatorId] = useState<string>(existing?.operatorId ? String(existing.operatorId) : '');
+  const [lines, setLines] = useState(existing?.ferments ?? draft.ferments);
+  const [feeds, setFeeds] = useState(existing?.feeds ?? []);
+  const [charge, setCharge] = useState(toUnit(existing ? existing.chargeLitres : draft.ferments.reduce((s, l) => s + l.litres, 0) || null));
+  const [notes, setNotes] = useState(existing?.notes ?? '');
+  const still = board.stills.find((s) => s.id === stillId) ?? board.stills[0]!;
+  const chargeLitres = charge.trim() === '' ? null : parseVolumeToLitres(Number(charge), unit);
+  const suggested = defaultRunMinutes(still, type, chargeLitres, existing?.chargeAbv ?? null);
+  const [minutes, setMinutes] = useState<string>(existing ? String(Math.round((existing.endsAt.getTime() - existing.startsAt.getTime()) / 60000)) : '');
+  const duration = minutes.trim() === '' ? suggested : Number(minutes);
+
+  useEffect(() => {
+    const d = ref.current;
+    if (d && !d.open) d.showModal();
+  }, []);
+
+  const startsAt = fromLocalInput(start, tz);
+  const preview: Warning[] = useMemo(() => {
+    if (!startsAt || !(duration > 0)) return [];
+    const run = toScheduleRun({
+      id: existing?.id ?? -1, stillId, type, status: existing && !editable ? existing.status : status, startsAt,
+      endsAt: new Date(startsAt.getTime() + duration * 60000), operatorId: operatorId ? Number(operatorId) : null,
+      chargeLitres, chargeAbv: null, ferments: type === 'stripping' || type === 'redistillation' ? lines : [],
+      feeds: type === 'spirit' || type === 'redistillation' ? feeds : [], lowWinesLitres: existing?.lowWinesLitres ?? null, version: 0, sequence: 0, notes: null,
+    });
+    return computeRunWarnings(run, {
+      still: toScheduleStill(still), runs: board.runs.filter((r) => r.id !== existing?.id).map(toScheduleRun),
+      ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: tz, now: board.now,
+    });
+  }, [start, duration, stillId, type, status, operatorId, chargeLitres, lines, feeds]);
+
+  const openFerments = board.ferments.filter((f) => !f.emptiedAt || lines.some((l) => l.fermentId === f.id));
+  const strippingRuns = board.runs.filter((r) => r.type === 'stripping' && r.status !== 'cancelled' && r.id !== existing?.id);
+  const stillName = (id: number) => board.stills.find((s) => s.id === id)?.name ?? 'a retired still';
+
+  function submit(e: React.FormEvent) {
+    e.preventDefault();
+    if (!startsAt) return;
+    const endsAt = new Date(startsAt.getTime() + duration * 60000);
+    const body: Record<string, unknown> = {
+      stillId, type, status, startsAt: startsAt.toISOString(), endsAt: endsAt.toISOString(),
+      operatorId: operatorId ? Number(operatorId) : null, chargeLitres, notes: notes.trim() || null,
+      ferments: type === 'stripping' || type === 'redistillation' ? lines.filter((l) => l.litres > 0) : [],
+      feeds: type === 'spirit' || type === 'redistillation' ? feeds.filter((l) => l.litres > 0) : [],
+    };
+    if (existing) body.version = existing.version;
+    p.onSave(body, existing);
+  }
+
+  const heading = existing ? `${RUN_TYPE_LABELS[existing.type]} on ${stillName(existing.stillId)}` : 'Book a run';
+  return (
+    <dialog ref={ref} className="run-dialog" aria-labelledby="run-dialog-title" onClose={p.onClose} onCancel={(e) => { e.preventDefault(); p.onClose(); }}>
+      <form onSubmit={submit} className="flex flex-col gap-3">
+        <div className="flex items-start justify-between gap-3">
+          <div>
+            <h2 id="run-dialog-title">{heading}</h2>
+            {existing && <p className="text-sm text-ink-soft">{RUN_STATUS_LABELS[existing.status]} · version {existing.version} · <a href={`/runs/${existing.id}`}>Open the run page</a></p>}
+          </div>
+          <button type="button" className="btn btn-quiet" onClick={p.onClose} aria-label="Close">✕</button>
+        </div>
+        {p.error && <p className="field-error" role="alert">{p.error}</p>}
+        <fieldset disabled={!editable || p.busy} className="grid grid-cols-1 gap-3 sm:grid-cols-2">
+          <div className="field">
+            <label htmlFor="rd-type">Run type</label>
+            <select id="rd-type" className="input" value={type} onChange={(e) => setType(e.target.value as RunType)}>
+              {TYPES.map((t) => <option key={t} value={t}>{RUN_TYPE_LABELS[t]}</option>)}
+            </select>
+          </div>
+          <div className="field">
+            <label htmlFor="rd-still">Still</label>
+            <select id="rd-still" className="input" value={stillId} onChange={(e) => setStillId(Number(e.target.value))}>
+              {board.stills.map((s) => <option key={s.id} value={s.id}>{s.name} ({formatVolume(s.capacityLitres, p.units)})</option>)}
+            </select>
+          </div>
+          <div className="field">
+            <label htmlFor="rd-start">Starts ({tz})</label>
+            <input id="rd-start" className="input" type="datetime-local" step={1800} value={start} onChange={(e) => setStart(e.target.value)} required />
+          </div>
+          <div className="field">
+            <label htmlFor="rd-minutes">Length in minutes</label>
+            <input id="rd-minutes" className="input" type="number" min={1} max={10080} placeholder={String(suggested)} value={minutes} onChange={(e) => setMinutes(e.target.value)} />
+            <span className="text-xs text-ink-soft">Estimate: {suggested} min (heat-up of the charge on {still.heatingKw} kW plus {still.typicalMinutes[type]} min typical{still.cleaningAfterRunMinutes && (type === 'stripping' || type === 'spirit' || type === 'redistillation') ? `; then ${still.cleaningAfterRunMinutes} min cleaning` : ''}).</span>
+          </div>
+          <div className="field">
+            <label htmlFor="rd-charge">Charge ({unit === 'L' ? 'litres' : 'US gallons'})</label>
+            <input id="rd-charge" className="input" type="number" min={0} step="any" value={charge} onChange={(e) => setCharge(e.target.value)} />
+            <span className="text-xs text-ink-soft">Working capacity {formatVolume(still.capacityLitres, p.units)}</span>
+          </div>
+          <div className="field">
+            <label htmlFor="rd-operator">Operator</label>
+            <select id="rd-operator" className="input" value={operatorId} onChange={(e) => setOperatorId(e.target.value)}>
+              <option value="">Nobody yet</option>
+              {board.people.filter((x) => x.role !== 'staff').map((x) => <option key={x.id} value={x.id}>{x.name}</option>)}
+            </select>
+          </div>
+          <div className="field">
+            <label htmlFor="rd-status">Booking</label>
+            <select id="rd-status" className="input" value={status} onChange={(e) => setStatus(e.target.value as 'planned' | 'confirmed')}>
+              <option value="planned">Planned</option>
+              <option value="confirmed">Confirmed</option>
+            </select>
+          </div>
+          {(type === 'stripping' || type === 'redistillation') && (
+            <div className="field sm:col-span-2">
+              <span className="label">Washes in the charge</span>
+              {lines.map((l, i) => (
+                <div key={i} className="flex flex-wrap items-center gap-2">
+                  <label className="sr-only" htmlFor={`rd-f-${i}`}>Wash {i + 1}</label>
+                  <select id={`rd-f-${i}`} className="input" value={l.fermentId} onChange={(e) => setLines(lines.map((x, j) => (j === i ? { ...x, fermentId: Number(e.target.value) } : x)))}>
+                    {openFerments.map((f) => <option key={f.id} value={f.id}>{f.code} ({formatVolume(f.volumeLitres, p.units)}, {f.status.replace('_', ' ')})</option>)}
+                  </select>
+                  <label className="sr-only" htmlFor={`rd-fl-${i}`}>Litres of wash {i + 1}</label>
+                  <input id={`rd-fl-${i}`} className="input w-28" type="number" min={0} step="any" value={toUnit(l.litres)}
+                    onChange={(e) => setLines(lines.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))} />
+                  <span>{unit}</span>
+                  <button type="button" className="btn btn-quiet" onClick={() => setLines(lines.filter((_, j) => j !== i))}>Remove</button>
+                </div>
+              ))}
+              {openFerments.length > 0 && (
+                <button type="button" className="btn btn-quiet self-start" onClick={() => setLines([...lines, { fermentId: openFerments[0]!.id, litres: 0 }])}>Add a wash</button>
+              )}
+            </div>
+          )}
+          {(type === 'spirit' || type === 'redistillation') && (
+            <div className="field sm:col-span-2">
+              <span className="label">Low wines from stripping runs</span>
+              {feeds.map((l, i) => (
+                <div key={i} className="flex flex-wrap items-center gap-2">
+                  <label className="sr-only" htmlFor={`rd-r-${i}`}>Feeding run {i + 1}</label>
+                  <select id={`rd-r-${i}`} className="input" value={l.runId} onChange={(e) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, runId: Number(e.target.value) } : x)))}>
+                    {strippingRuns.map((r) => <option key={r.id} value={r.id}>{stillName(r.stillId)} {localInput(r.startsAt, tz).replace('T', ' ')}</option>)}
+                  </select>
+                  <label className="sr-only" htmlFor={`rd-rl-${i}`}>Litres from feeding run {i + 1}</label>
+                  <input id={`rd-rl-${i}`} className="input w-28" type="number" min={0} step="any" value={toUnit(l.litres)}
+                    onChange={(e) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))} />
+                  <span>{unit}</span>
+                  <button type="button" className="btn btn-quiet" onClick={() => setFeeds(feeds.filter((_, j) => j !== i))}>Remove</button>
+                </div>
+              ))}
+              {strippingRuns.length > 0 && (
+                <button type="button" className="btn btn-quiet self-start" onClick={() => setFeeds([...feeds, { runId: strippingRuns[0]!.id, litres: 0 }])}>Add a feeding run</button>
+              )}
+            </div>
+          )}
+          <div className="field sm:col-span-2">
+            <label htmlFor="rd-notes">Notes</label>
+            <textarea id="rd-notes" className="input" rows={2} value={notes} onChange={(e) => setNotes(e.target.value)} />
+          </div>
+        </fieldset>
+        {preview.length > 0 && (
+          <ul className="run-dialog-warnings" aria-label="Warnings for this booking">
+            {preview.map((w, i) => <li key={i} className={`wl wl-${w.severity}`}>{w.message}</li>)}
+          </ul>
+        )}
+        <details className="caution">
+          <summary className="font-semibold">Before you run a still</summary>
+          <ul className="mt-2 list-disc pl-5 text-sm">{SAFETY_CAUTIONS.map((c) => <li key={c}>{c}</li>)}</ul>
+        </details>
+        <div className="flex flex-wrap gap-2">
+          {editable && <button type="submit" className="btn" disabled={p.busy}>{existing ? 'Save changes' : 'Book run'}</button>}
+          {existing && p.canOperate && (existing.status === 'planned' || existing.status === 'confirmed') && (
+            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('start', existing)}>Start run</button>
+          )}
+          {existing && p.canOperate && existing.status === 'running' && (
+            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('finish', existing)}>Finish run</button>
+          )}
+          {existing && p.canBook && (existing.status === 'planned' || existing.status === 'confirmed') && (
+            <button type="button" className="btn btn-danger ml-auto" disabled={p.busy} onClick={() => p.onAction('cancel', existing)}>Cancel this run</button>
+          )}
+        </div>
+      </form>
+    </dialog>
+  );
+}

@@ -1,0 +1,286 @@
+/**
+ * The board's read side: stills, runs, ferments with their forecasts, fermenters and
+ * people for a time range, in one payload; plus warnings and move suggestions.
+ */
+import { and, asc, eq, gt, gte, inArray, isNull, lt, ne, or, sql } from 'drizzle-orm';
+import { getDb } from '../db/client';
+import { fermentForecasts, fermenters, ferments, memberships, runFerments, runs, users, washTypes } from '../db/schema';
+import {
+  boardWarnings, dehydrateRun, notBeforeForRisk, toFermentState, toScheduleRun, toScheduleStill,
+  type BoardFerment, type BoardFermentJson, type BoardPayload, type BoardRun, type BoardStill,
+} from '../lib/board';
+import { computeRunWarnings, findEarliestSlots, type FermentStatus, type Slot, type Warning } from '../lib/schedule';
+import { getForecasts } from './forecasts';
+import { notFound } from './http';
+import { attachLines, getRun } from './runs';
+import { listStills } from './stills';
+
+const DAY_MS = 86_400_000;
+const HOUR_MS = 3_600_000;
+/** Runs this far either side of the range come along, so warnings at its edges see their neighbours. */
+const CONTEXT_MS = 3 * DAY_MS;
+export const MAX_RANGE_DAYS = 50;
+
+export interface BoardScope { id: number; timeZone: string; stableDays: number }
+
+type FermentBase = Omit<BoardFerment, 'status' | 'reason' | 'readyAt' | 'readyP10' | 'readyP90' | 'confirmedAt' | 'lastSg' | 'predictedFg'>;
+
+/**
+ * Forecast state of ferments. Cached forecasts computed within the current hour are
+ * trusted as they are (every change of readings recomputes them at once, and their cache
+ * key changes only by the hour otherwise); the rest go through getForecasts.
+ */
+async function withForecasts(workspaceId: number, base: FermentBase[], now: Date): Promise<BoardFerment[]> {
+  if (base.length === 0) return [];
+  const db = getDb();
+  const ids = base.map((f) => f.id);
+  const hourStart = new Date(Math.floor(now.getTime() / HOUR_MS) * HOUR_MS);
+  const cached = await db.select({
+    fermentId: fermentForecasts.fermentId, status: fermentForecasts.status, readyAt: fermentForecasts.readyAt,
+    readyP10: fermentForecasts.readyP10, readyP90: fermentForecasts.readyP90, ruleMetAt: fermentForecasts.ruleMetAt,
+    predictedFg: fermentForecasts.predictedFg, computedAt: fermentForecasts.computedAt,
+    reason: sql<string | null>`JSON_UNQUOTE(JSON_EXTRACT(${fermentForecasts.payload}, '$.reason'))`,
+    lastSg: sql<string | null>`JSON_EXTRACT(${fermentForecasts.payload}, '$.lastSg')`,
+  }).from(fermentForecasts).where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, ids)));
+  const fresh = new Map<number, { status: string; reason: string; readyAt: Date | null; readyP10: Date | null; readyP90: Date | null; ruleMetAt: Date | null; predictedFg: number | null; lastSg: number | null }>();
+  const baseById = new Map(base.map((b) => [b.id, b]));
+  for (const c of cached) {
+    const f = baseById.get(c.fermentId);
+    if (c.computedAt.getTime() >= hourStart.getTime() || (f?.emptiedAt && c.computedAt.getTime() >= f.emptiedAt.getTime())) {
+      fresh.set(c.fermentId, { ...c, reason: c.reason ?? '', lastSg: c.lastSg === null || c.lastSg === 'null' ? null : Number(c.lastSg) });
+    }
+  }
+  const missing = ids.filter((id) => !fresh.has(id));
+  if (missing.length) {
+    const computed = await getForecasts(workspaceId, missing, now);
+    for (const [id, f] of computed) fresh.set(id, f);
+  }
+  return base.map((f) => {
+    const fc = fresh.get(f.id);
+    return {
+      ...f,
+      status: (fc?.status ?? 'insufficient_data') as FermentStatus,
+      reason: fc?.reason ?? 'No forecast yet.',
+      readyAt: fc?.readyAt ?? null, readyP10: fc?.readyP10 ?? null, readyP90: fc?.readyP90 ?? null,
+      confirmedAt: fc?.status === 'finished' ? fc.ruleMetAt ?? null : null,
+      lastSg: fc?.lastSg ?? null, predictedFg: fc?.predictedFg ?? null,
+    };
+  });
+}
+
+const fermentColumns = {
+  id: ferments.id, code: ferments.code, volumeLitres: ferments.volumeLitres, fermenterId: ferments.fermenterId,
+  washCategory: washTypes.category, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt,
+};
+
+export function fermentJson(f: BoardFerment): BoardFermentJson {
+  const iso = (d: Date | null) => (d ? d.toISOString() : null);
+  return {
+    ...f, pitchedAt: iso(f.pitchedAt), emptiedAt: iso(f.emptiedAt), readyAt: iso(f.readyAt),
+    readyP10: iso(f.readyP10), readyP90: iso(f.readyP90), confirmedAt: iso(f.confirmedAt),
+  };
+}
+
+export interface BoardData {
+  stills: BoardStill[];
+  runs: BoardRun[];
+  ferments: BoardFerment[];
+  fermenters: BoardPayload['fermenters'];
+  people: BoardPayload['people'];
+}
+
+/**
+ * Everything the board draws for [from, to): the active stills, runs overlapping the range
+ * (and a few days either side), the stripping runs feeding them, other runs drawing on the
+ * same ferments, the ferments in their fermenters or linked to those runs, with forecasts.
+ */
+export async function loadBoardData(scope: BoardScope, from: Date, to: Date, now: Date): Promise<BoardData> {
+  const db = getDb();
+  const ws = scope.id;
+  const ctxFrom = new Date(from.getTime() - CONTEXT_MS);
+  const ctxTo = new Date(to.getTime() + CONTEXT_MS);
+  const runColumns = {
+    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
+    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
+  };
+  const [stillRows, runRows, fermenterRows, people, openFerments] = await Promise.all([
+    listStills(ws),
+    db.select(runColumns).from(runs)
+      .where(and(eq(runs.workspaceId, ws), lt(runs.startsAt, ctxTo), gt(runs.endsAt, ctxFrom)))
+      .orderBy(asc(runs.startsAt), asc(runs.id)),
+    db.select({ id: fermenters.id, name: fermenters.name, capacityLitres: fermenters.capacityLitres }).from(fermenters)
+      .where(and(eq(fermenters.workspaceId, ws), eq(fermenters.active, true))).orderBy(asc(fermenters.position), asc(fermenters.id)),
+    db.select({ id: users.id, name: users.name, role: memberships.role }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
+      .where(eq(memberships.workspaceId, ws)).orderBy(asc(users.name)),
+    db.select(fermentColumns).from(ferments).innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
+      .where(and(eq(ferments.workspaceId, ws), lt(ferments.pitchedAt, ctxTo), or(isNull(ferments.emptiedAt), gte(ferments.emptiedAt, ctxFrom)))),
+  ]);
+
+  // Runs outside the window that matter to runs inside it: feeders, and other runs on the same washes.
+  const inRange = await attachLines(db, ws, runRows, { from: ctxFrom, to: ctxTo });
+  const have = new Set(inRange.map((r) => r.id));
+  const fermentIds = new Set<number>(openFerments.map((f) => f.id));
+  const extraRunIds = new Set<number>();
+  for (const r of inRange) {
+    for (const f of r.feeds) if (!have.has(f.runId)) extraRunIds.add(f.runId);
+    for (const c of r.ferments) fermentIds.add(c.fermentId);
+  }
+  const linkedFermentIds = inRange.flatMap((r) => r.ferments.map((c) => c.fermentId));
+  if (linkedFermentIds.length) {
+    const sharing = await db.select({ runId: runFerments.runId }).from(runFerments)
+      .where(and(eq(runFerments.workspaceId, ws), inArray(runFerments.fermentId, [...new Set(linkedFermentIds)])));
+    for (const s of sharing) if (!have.has(s.runId)) extraRunIds.add(s.runId);
+  }
+  let allRuns = inRange;
+  if (extraRunIds.size) {
+    const extraRows = await db.select(runColumns).from(runs).where(and(eq(runs.workspaceId, ws), inArray(runs.id, [...extraRunIds])));
+    const extra = await attachLines(db, ws, extraRows);
+    for (const r of extra) for (const c of r.ferments) fermentIds.add(c.fermentId);
+    allRuns = [...inRange, ...extra];
+  }
+  const openIds = new Set(openFerments.map((f) => f.id));
+  const missingFerments = [...fermentIds].filter((id) => !openIds.has(id));
+  const linkedFerments = missingFerments.length
+    ? await db.select(fermentColumns).from(ferments).innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
+      .where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, missingFerments)))
+    : [];
+  const fermentList = await withForecasts(ws, [...openFerments, ...linkedFerments], now);
+  return { stills: stillRows, runs: allRuns, ferments: fermentList, fermenters: fermenterRows, people };
+}
+
+/**
+ * A fingerprint of everything the board payload is made of in one workspace: the latest
+ * change and the count of runs, stills, closures, ferments, forecasts, fermenters and
+ * members. Every write to those tables moves it (rows are only ever updated with a new
+ * updated_at, or inserted/deleted, which moves a count).
+ */
+async function boardFingerprint(workspaceId: number): Promise<string> {
+  const w = workspaceId;
+  const [rows] = await getDb().execute(sql`SELECT
+    (SELECT CONCAT(COUNT(*), '/', COALESCE(SUM(version), 0), '/', COALESCE(MAX(updated_at), '')) FROM runs WHERE workspace_id = ${w}) AS r,
+    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM stills WHERE workspace_id = ${w}) AS s,
+    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM still_closures WHERE workspace_id = ${w}) AS c,
+    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM ferments WHERE workspace_id = ${w}) AS f,
+    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(computed_at), '')) FROM ferment_forecasts WHERE workspace_id = ${w}) AS p,
+    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM fermenters WHERE workspace_id = ${w}) AS v,
+    (SELECT COUNT(*) FROM memberships WHERE workspace_id = ${w}) AS m`) as unknown as [Array<Record<string, unknown>>];
+  return JSON.stringify(rows[0] ?? {});
+}
+
+/** Recently built payloads, reused while the workspace's fingerprint is unchanged (and for at most CACHE_MS). */
+const CACHE_MS = 15_000;
+const CACHE_MAX = 64;
+const cache = new Map<string, { fingerprint: string; at: number; hour: number; body: string }>();
+
+/**
+ * The board payload as a JSON string, served from a short cache while nothing in the
+ * workspace changed: the 30-second refresh of every open board then costs one small query.
+ */
+export async function getBoardJson(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<string> {
+  const key = `${scope.id}|${scope.timeZone}|${scope.stableDays}|${from.getTime()}|${to.getTime()}`;
+  const fingerprint = await boardFingerprint(scope.id);
+  const hit = cache.get(key);
+  const hour = Math.floor(now.getTime() / HOUR_MS);
+  if (hit && hit.fingerprint === fingerprint && hit.hour === hour && now.getTime() - hit.at < CACHE_MS) return hit.body;
+  const body = JSON.stringify(await getBoard(scope, from, to, now));
+  // Only cache what was built from the state the fingerprint describes.
+  if ((await boardFingerprint(scope.id)) === fingerprint) {
+    if (cache.size >= CACHE_MAX) cache.delete(cache.keys().next().value!);
+    cache.set(key, { fingerprint, at: now.getTime(), hour, body });
+  }
+  return body;
+}
+
+export async function getBoard(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<BoardPayload> {
+  const data = await loadBoardData(scope, from, to, now);
+  return {
+    range: { from: from.toISOString(), to: to.toISOString() },
+    timeZone: scope.timeZone,
+    now: now.toISOString(),
+    stableDays: scope.stableDays,
+    stills: data.stills.map(({ id, name, kind, capacityLitres, heatingKw, operatingHours, closures, cleaningAfterRunMinutes, typicalMinutes, position }) => ({
+      id, name, kind, capacityLitres, heatingKw, operatingHours, closures, cleaningAfterRunMinutes, typicalMinutes, position,
+    })),
+    runs: data.runs.map(dehydrateRun),
+    ferments: data.ferments.map(fermentJson),
+    fermenters: data.fermenters,
+    people: data.people,
+  };
+}
+
+/** The board data around one run (a week either side), for its warnings and its page. */
+export async function runContext(scope: BoardScope, run: BoardRun, now = new Date()): Promise<BoardData> {
+  return loadBoardData(scope, new Date(run.startsAt.getTime() - 4 * DAY_MS), new Date(run.endsAt.getTime() + 4 * DAY_MS), now);
+}
+
+export async function warningsForRun(scope: BoardScope, run: BoardRun, now = new Date()): Promise<Warning[]> {
+  const data = await runContext(scope, run, now);
+  const still = data.stills.find((s) => s.id === run.stillId);
+  if (!still) return [];
+  const others = data.runs.filter((r) => r.id !== run.id).map(toScheduleRun);
+  return computeRunWarnings(toScheduleRun(run), {
+    still: toScheduleStill(still), runs: [...others, toScheduleRun(run)],
+    ferments: new Map(data.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: scope.timeZone, now,
+  });
+}
+
+/** All warnings of the runs on the board for a range (the server side of the island's badges). */
+export async function boardWarningsFor(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<Map<number, Warning[]>> {
+  const data = await loadBoardData(scope, from, to, now);
+  return boardWarnings({ stills: data.stills, runs: data.runs, ferments: data.ferments, timeZone: scope.timeZone, now });
+}
+
+export interface Suggestions {
+  runId: number;
+  notBefore: string;
+  slots: Array<{ stillId: number; startsAt: string; endsAt: string }>;
+}
+
+/**
+ * Earliest feasible slots for a run at risk: on its still or another that takes the
+ * charge, after its washes' ready windows (a fresh stability period for a stalled or
+ * souring wash), inside operating hours, without overlapping anything (cleaning slots
+ * included). The run's own still comes first on equal start times.
+ */
+export async function suggestSlots(scope: BoardScope, runId: number, now = new Date(), limit = 3): Promise<Suggestions> {
+  const run = await getRun(scope.id, runId);
+  if (run.status === 'cancelled' || run.status === 'done' || run.status === 'running') throw notFound('That run is not open to a move.');
+  const horizonDays = 28;
+  const probe = await loadBoardData(scope, now, new Date(now.getTime() + (horizonDays + 2) * DAY_MS), now);
+  const notBefore = notBeforeForRisk(run, probe.ferments.length ? probe.ferments : [], now, scope.stableDays);
+  const data = notBefore.getTime() > now.getTime() + DAY_MS
+    ? await loadBoardData(scope, notBefore, new Date(notBefore.getTime() + (horizonDays + 2) * DAY_MS), now)
+    : probe;
+  const own = data.stills.find((s) => s.id === run.stillId);
+  const ordered = [...(own ? [own] : []), ...data.stills.filter((s) => s.id !== run.stillId)].map(toScheduleStill);
+  const charge = run.chargeLitres ?? run.ferments.reduce((s, c) => s + c.litres, 0);
+  const slots: Slot[] = findEarliestSlots({
+    durationMinutes: Math.max(1, Math.round((run.endsAt.getTime() - run.startsAt.getTime()) / 60_000)),
+    chargeLitres: charge,
+    notBefore,
+    stills: ordered,
+    runs: data.runs.map(toScheduleRun),
+    timeZone: scope.timeZone,
+    excludeRunId: run.id,
+    type: run.type,
+    limit,
+    horizonDays,
+    slotMinutes: 30,
+  });
+  return {
+    runId: run.id,
+    notBefore: notBefore.toISOString(),
+    slots: slots.map((s) => ({ stillId: s.stillId, startsAt: s.startsAt.toISOString(), endsAt: s.endsAt.toISOString() })),
+  };
+}
+
+/** Today's runs per still for the day view (local day in the distillery's zone). */
+export async function dayRuns(scope: BoardScope, from: Date, to: Date): Promise<BoardRun[]> {
+  const db = getDb();
+  const rows = await db.select({
+    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
+    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
+  }).from(runs).where(and(eq(runs.workspaceId, scope.id), ne(runs.status, 'cancelled'), lt(runs.startsAt, to), gt(runs.endsAt, from)))
+    .orderBy(asc(runs.startsAt));
+  return attachLines(db, scope.id, rows);
+}

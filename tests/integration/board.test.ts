@@ -1,0 +1,62 @@
+import { describe, it, expect, beforeAll } from 'vitest';
+import type { Client } from '../helpers/api';
+import { addFerment, at, boardFixture, iso, type BoardFixture } from './board-fixture';
+
+const DAY = 86_400_000;
+
+describe('board API', () => {
+  let fx: BoardFixture;
+  let planner: Client;
+  let stalled: number;
+  let runId: number;
+  beforeAll(async () => {
+    fx = await boardFixture('Board API Distillery');
+    planner = await fx.client('planner');
+    // A grain wash pitched at 1.065 holding at 1.022 for days: stuck far above the 1.002–1.008 finish (common practice).
+    stalled = await addFerment(fx, { code: 'ST-1', fermenter: 0, pitchedDaysAgo: 9, og: 1.065, holdAt: 1.022 });
+    const r = await planner.post('/api/runs', { stillId: fx.stills.ws1, type: 'stripping', startsAt: iso(at(3, 6)), endsAt: iso(at(3, 12)), ferments: [{ fermentId: stalled, litres: 2400 }] });
+    expect(r.status, r.text).toBe(201);
+    runId = r.json.run.id;
+    expect(r.json.warnings.map((w: { code: string }) => w.code)).toContain('ferment_stalled');
+  });
+
+  it('returns stills, runs with their washes, ferments with forecast state, fermenters and people for a range', async () => {
+    const staff = await fx.client('staff');
+    const r = await staff.get(`/api/board?from=${encodeURIComponent(iso(at(-1)))}&to=${encodeURIComponent(iso(at(7)))}`);
+    expect(r.status, r.text).toBe(200);
+    expect(r.json.stills.map((s: { name: string }) => s.name)).toEqual(['Wash Still 1', 'Wash Still 2', 'Small Still']);
+    const run = r.json.runs.find((x: { id: number }) => x.id === runId);
+    expect(run.ferments).toEqual([{ fermentId: stalled, litres: 2400 }]);
+    const f = r.json.ferments.find((x: { id: number }) => x.id === stalled);
+    expect(f.status).toBe('stalled');
+    expect(r.json.fermenters).toHaveLength(3);
+    expect(r.json.people.length).toBeGreaterThanOrEqual(4);
+  });
+
+  it('refuses a range that is backwards or longer than 50 days', async () => {
+    expect((await planner.get(`/api/board?from=${encodeURIComponent(iso(at(7)))}&to=${encodeURIComponent(iso(at(1)))}`)).status).toBe(400);
+    expect((await planner.get(`/api/board?from=${encodeURIComponent(iso(at(0)))}&to=${encodeURIComponent(iso(at(60)))}`)).status).toBe(400);
+    expect((await planner.get('/api/board?from=yesterday&to=tomorrow')).status).toBe(400);
+  });
+
+  it('proposes the earliest free slots for a run on a stalled wash after a fresh stable period, and moves it in one step', async () => {
+    const r = await planner.get(`/api/board/suggestions?runId=${runId}`);
+    expect(r.status, r.text).toBe(200);
+    const notBefore = Date.parse(r.json.notBefore);
+    expect(notBefore).toBeGreaterThanOrEqual(Date.now() + 3 * DAY - 60_000); // 3 stable days (product default)
+    expect(r.json.slots.length).toBeGreaterThan(0);
+    for (const s of r.json.slots) {
+      expect(Date.parse(s.startsAt)).toBeGreaterThanOrEqual(notBefore);
+      // The small still cannot take a 2400 L charge.
+      expect(s.stillId).not.toBe(fx.stills.small);
+    }
+    const slot = r.json.slots[0];
+    const current = await planner.get(`/api/runs/${runId}`);
+    const moved = await planner.patch(`/api/runs/${runId}`, { version: current.json.run.version, stillId: slot.stillId, startsAt: slot.startsAt, endsAt: slot.endsAt });
+    expect(moved.status, moved.text).toBe(200);
+    expect(moved.json.run.startsAt).toBe(slot.startsAt);
+    expect(moved.json.run.sequence).toBe(current.json.run.sequence + 1);
+    const staff = await fx.client('staff');
+    expect((await staff.get(`/api/board/suggestions?runId=${runId}`)).status).toBe(403);
+  });
+});
