@@ -177,6 +177,15 @@ describe('forecastFerment on awkward series', () => {
     expect(hoursOf(f.readyAt)!).toBeGreaterThanOrEqual(192);
     expect(f.reason).toMatch(/held at 0\.99[56] for 1 of 3 days/);
   });
+  it('an early forecast moves toward the wash type history, not past it; fewer than 3 past ferments change nothing', () => {
+    const base = input([1.07, 1.062, 1.048], RANGES.sugar);
+    const plain = forecastFerment(base).readyAt!.getTime();
+    // Past sugar washes confirmed 20 days after pitch (far later than this fit): the blend pulls later.
+    const withHistory = forecastFerment({ ...base, history: [19.5, 20, 20.5, 21] }).readyAt!.getTime();
+    expect(withHistory).toBeGreaterThan(plain);
+    expect(withHistory).toBeLessThan(T0 + 20.25 * 24 * H);
+    expect(forecastFerment({ ...base, history: [20, 21] }).readyAt!.getTime()).toBe(plain);
+  });
   it('is deterministic for a given seed', () => {
     const a = forecastFerment(input([1.07, 1.062, 1.048, 1.03], RANGES.sugar, { seed: 3 }));
     const b = forecastFerment(input([1.07, 1.062, 1.048, 1.03], RANGES.sugar, { seed: 3 }));
