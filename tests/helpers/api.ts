@@ -19,7 +19,15 @@ export class Client {
     let payload: BodyInit | undefined;
     if (body instanceof FormData || typeof body === 'string') payload = body as BodyInit;
     else if (body !== undefined) { payload = JSON.stringify(body); h['content-type'] ??= 'application/json'; }
-    const res = await fetch(this.base + path, { method, headers: h, body: payload, redirect: 'manual' });
+    let res: Response;
+    try {
+      res = await fetch(this.base + path, { method, headers: h, body: payload, redirect: 'manual' });
+    } catch (err) {
+      // A pooled keep-alive socket the server had just closed: undici reports ECONNRESET before
+      // the request was written. Try once more on a fresh connection.
+      if ((err as { cause?: { code?: string } }).cause?.code !== 'ECONNRESET') throw err;
+      res = await fetch(this.base + path, { method, headers: h, body: payload, redirect: 'manual' });
+    }
     const setCookie = res.headers.getSetCookie?.() ?? [];
     for (const c of setCookie) {
       const [pair] = c.split(';');

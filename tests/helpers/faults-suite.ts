@@ -251,19 +251,27 @@ export function faultSuite(o: FaultOptions): void {
       for (let k = 0; k < o.killAttempts; k++) {
         const uploadId = await stage();
         const before = await count();
-        // Attempt 0 is deterministic: audit_log is write-locked by another session, so the import
+        // Attempt 0 is deterministic: the end of audit_log is row-locked by another session, so the import
         // writes its readings and then waits at its audit row, inside its transaction, and is killed
         // there. The others are killed at spread fractions of the control's duration, wherever they are.
         const locker = k === 0 ? await mysql.createConnection({ uri: databaseUrl() }) : null;
         let sawRows = false;
         let c: ReturnType<typeof startChild>;
         try {
-          if (locker) await locker.query('LOCK TABLES audit_log WRITE');
+          // An InnoDB next-key lock on the newest audit row and the gap above it: the import's own
+          // audit insert (its last statement) waits there, after its readings are written.
+          if (locker) { await locker.query('START TRANSACTION'); await locker.query('SELECT id FROM audit_log ORDER BY id DESC LIMIT 1 FOR UPDATE'); }
           c = startChild(uploadId);
           const t0 = Date.now();
           if (k === 0) {
+            // The import's audit row is written inside its transaction after all its readings: a
+            // session waiting on that insert is an import caught mid-transaction.
+            const waitingAtAudit = async () => {
+              const [rows] = await getPool().query("SELECT COUNT(*) AS n FROM information_schema.processlist WHERE info LIKE 'insert into `audit_log`%' AND info LIKE ?", [`%${uploadId}%`]);
+              return Number((rows as Array<{ n: number }>)[0]!.n) > 0;
+            };
             while (Date.now() - t0 < 60_000 && !c.state.doneAt) {
-              if (await bigTrx().catch(() => false)) { sawRows = true; break; }
+              if (await waitingAtAudit().catch(() => false)) { sawRows = true; break; }
               await sleep(20);
             }
           } else {
@@ -277,7 +285,7 @@ export function faultSuite(o: FaultOptions): void {
           c.child.kill('SIGKILL');
           await c.exited;
         } finally {
-          if (locker) { await locker.query('UNLOCK TABLES'); await locker.end(); }
+          if (locker) { await locker.query('ROLLBACK'); await locker.end(); }
         }
         // The server rolls back the dropped connection's transaction: wait until it has.
         for (let i = 0; i < 200 && (await bigTrx()); i++) await sleep(25);

@@ -74,7 +74,8 @@ export function fuzzSuite(opts: { numRuns: number; label: string; seed?: number 
       });
       const routeProblems: string[] = [];
       await fc.assert(fc.asyncProperty(input, async (inp) => {
-        const p = await send(r.route, r.method, fx, inp, baseQuery);
+        // A destructive route may legitimately succeed (e.g. delete the workspace): every run gets a fresh fixture.
+        const p = await send(r.route, r.method, DESTRUCTIVE.has(name) ? await buildFixture() : fx, inp, baseQuery);
         requests++;
         statuses[String(p.status)] = (statuses[String(p.status)] ?? 0) + 1;
         const found = judge(p);

@@ -85,6 +85,13 @@ async function snapshotWorkspace(workspaceId: number): Promise<string> {
       continue;
     }
     if (!('workspaceId' in cols)) continue;
+    // Background work may touch these while the case runs: the outbox sender marks mail sent,
+    // and any read may refresh the forecast cache. Compare what a request could have changed.
+    if (tableName === 'mail_outbox') {
+      out[name] = await db.select({ id: schema.mailOutbox.id, to: schema.mailOutbox.toAddress, subject: schema.mailOutbox.subject }).from(schema.mailOutbox).where(eq(schema.mailOutbox.workspaceId, workspaceId)).orderBy(schema.mailOutbox.id);
+      continue;
+    }
+    if (tableName === 'ferment_forecasts' || tableName === 'forecast_history') continue;
     out[name] = await db.select().from(table).where(eq((table as unknown as { workspaceId: never }).workspaceId, workspaceId));
   }
   return JSON.stringify(out);

@@ -535,7 +535,7 @@ export default function BoardIsland(props: BoardIslandProps) {
         <DndContext id="plateau-board" sensors={sensors} collisionDetection={collision} onDragStart={onDragStart} onDragMove={onDragMove} onDragEnd={onDragEnd}
           onDragCancel={finishDrag}
           accessibility={{ announcements, screenReaderInstructions: { draggable: 'To move a run, press space to pick it up. Arrow keys move it by one slot or one still, shift and arrow by a day. Press space again to drop it and save, or escape to put it back. Enter opens its details.' } }}>
-          <div className="board-scroll" ref={scrollRef} data-testid="board-scroll">
+          <div className="board-scroll" ref={scrollRef} data-testid="board-scroll" tabIndex={0} role="region" aria-label="Still board timeline (scroll sideways with the arrow keys)">
             <div className="board-canvas" style={{ width: LABEL_W + width }}>
               <div className="board-head" style={{ height: HEADER_H }}>
                 <div className="corner" style={{ width: LABEL_W }}>Stills</div>
