@@ -14,6 +14,7 @@ import { getForecasts } from './forecasts';
 import { notFound } from './http';
 import { attachLines, getRun } from './runs';
 import { listStills } from './stills';
+import { SnapshotCache } from './snapshot-cache';
 
 const DAY_MS = 86_400_000;
 const HOUR_MS = 3_600_000;
@@ -148,29 +149,8 @@ export async function loadBoardData(scope: BoardScope, from: Date, to: Date, now
   return { stills: stillRows, runs: allRuns, ferments: fermentList, fermenters: fermenterRows, people };
 }
 
-/**
- * A fingerprint of everything the board payload is made of in one workspace: the latest
- * change and the count of runs, stills, closures, ferments, forecasts, fermenters and
- * members. Every write to those tables moves it (rows are only ever updated with a new
- * updated_at, or inserted/deleted, which moves a count).
- */
-async function boardFingerprint(workspaceId: number): Promise<string> {
-  const w = workspaceId;
-  const [rows] = await getDb().execute(sql`SELECT
-    (SELECT CONCAT(COUNT(*), '/', COALESCE(SUM(version), 0), '/', COALESCE(MAX(updated_at), '')) FROM runs WHERE workspace_id = ${w}) AS r,
-    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM stills WHERE workspace_id = ${w}) AS s,
-    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM still_closures WHERE workspace_id = ${w}) AS c,
-    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM ferments WHERE workspace_id = ${w}) AS f,
-    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(computed_at), '')) FROM ferment_forecasts WHERE workspace_id = ${w}) AS p,
-    (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM fermenters WHERE workspace_id = ${w}) AS v,
-    (SELECT COUNT(*) FROM memberships WHERE workspace_id = ${w}) AS m`) as unknown as [Array<Record<string, unknown>>];
-  return JSON.stringify(rows[0] ?? {});
-}
-
-/** Recently built payloads, reused while the workspace's fingerprint is unchanged (and for at most CACHE_MS). */
-const CACHE_MS = 15_000;
-const CACHE_MAX = 64;
-const cache = new Map<string, { fingerprint: string; at: number; hour: number; body: string }>();
+/** Recently built payloads, reused while the workspace's fingerprint is unchanged (and for at most 15 s). */
+const boardCache = new SnapshotCache<string>(15_000);
 
 /**
  * The board payload as a JSON string, served from a short cache while nothing in the
@@ -178,17 +158,7 @@ const cache = new Map<string, { fingerprint: string; at: number; hour: number; b
  */
 export async function getBoardJson(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<string> {
   const key = `${scope.id}|${scope.timeZone}|${scope.stableDays}|${from.getTime()}|${to.getTime()}`;
-  const fingerprint = await boardFingerprint(scope.id);
-  const hit = cache.get(key);
-  const hour = Math.floor(now.getTime() / HOUR_MS);
-  if (hit && hit.fingerprint === fingerprint && hit.hour === hour && now.getTime() - hit.at < CACHE_MS) return hit.body;
-  const body = JSON.stringify(await getBoard(scope, from, to, now));
-  // Only cache what was built from the state the fingerprint describes.
-  if ((await boardFingerprint(scope.id)) === fingerprint) {
-    if (cache.size >= CACHE_MAX) cache.delete(cache.keys().next().value!);
-    cache.set(key, { fingerprint, at: now.getTime(), hour, body });
-  }
-  return body;
+  return boardCache.get(scope.id, key, now, async () => JSON.stringify(await getBoard(scope, from, to, now)));
 }
 
 export async function getBoard(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<BoardPayload> {

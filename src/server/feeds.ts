@@ -23,6 +23,7 @@ import { notFound, invalid, HttpError } from './http';
 import { hashToken, newToken } from './auth/tokens';
 import { listStills } from './stills';
 import type { Role } from '../db/schema';
+import { SnapshotCache } from './snapshot-cache';
 
 const DAY_MS = 86_400_000;
 export const FEED_DAYS_BACK = 30;
@@ -222,6 +223,14 @@ interface LoadedRun extends Run {
 }
 
 /** Build the calendar of one feed. */
+/** Rendered feeds, reused while the workspace is unchanged (at most 5 minutes: the window slides with time). */
+const feedCache = new SnapshotCache<RenderedFeed>(5 * 60_000, 256);
+
+/** The feed as served: from the cache while nothing in the workspace changed, else rendered anew. */
+export function renderFeedCached(feed: FeedRecord, now = new Date()): Promise<RenderedFeed> {
+  return feedCache.get(feed.workspaceId, `feed-${feed.id}`, now, () => renderFeed(feed, now));
+}
+
 export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<RenderedFeed> {
   const db = getDb();
   const ws = feed.workspaceId;

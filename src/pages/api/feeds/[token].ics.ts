@@ -5,7 +5,7 @@
  */
 import type { APIRoute } from 'astro';
 import { errorResponse, jsonError } from '../../../server/http';
-import { feedForToken, notModified, renderFeed, stampFetched } from '../../../server/feeds';
+import { feedForToken, notModified, renderFeedCached, stampFetched } from '../../../server/feeds';
 import { ensureDigestScheduler } from '../../../server/digest';
 
 const FEED_HEADERS = {
@@ -22,7 +22,7 @@ export const GET: APIRoute = async (ctx) => {
     const feed = await feedForToken(ctx.params.token ?? '');
     if (!feed) return notFound();
     const now = new Date();
-    const rendered = await renderFeed(feed, now);
+    const rendered = await renderFeedCached(feed, now);
     await stampFetched(feed, now).catch(() => {});
     const headers = {
       ...FEED_HEADERS,
