@@ -121,6 +121,7 @@ describe.runIf(APPS.length >= 2 && NODES.length === 3)('Plateau on a Galera clus
     figures.outbox = { messages: ids.length, delivered: got.length, distinct: new Set(got).size, senderInstances: senders.length };
     expect(new Set(got).size).toBe(ids.length);
     expect(got).toHaveLength(ids.length);
+    expect(senders.length).toBeGreaterThanOrEqual(1);
   });
 
   it('survives a node leaving and rejoining with nothing lost', async () => {

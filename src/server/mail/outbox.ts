@@ -107,7 +107,8 @@ export async function deliverDue(opts: DeliverOptions): Promise<DeliverResult> {
     const mine = and(eq(mailOutbox.id, row.id), eq(mailOutbox.claimedBy, opts.instanceId));
     try {
       await transport.sendMail({ from, to: row.toAddress, subject: row.subject, text: row.textBody, html: row.htmlBody, messageId: row.messageId });
-      await db.update(mailOutbox).set({ status: 'sent', sentAt: new Date(), claimedBy: null, claimUntil: null, lastError: null }).where(mine);
+      // claimed_by stays on a sent row: it names the instance that delivered it.
+      await db.update(mailOutbox).set({ status: 'sent', sentAt: new Date(), claimUntil: null, lastError: null }).where(mine);
       result.sent++;
     } catch (err) {
       const attempts = row.attempts + 1;
