@@ -7,6 +7,7 @@
  */
 import { TZDate } from '@date-fns/tz';
 import { addDays, addHours, startOfDay } from 'date-fns';
+import { mulberry32 } from '../src/lib/forecast/prng';
 
 export const DEMO_TZ = 'Europe/London';
 export const DEMO_PASSWORD = 'plateau-demo';
@@ -48,17 +49,8 @@ export interface DemoFerment {
   notes: string; emptiedAt: Date | null; readings: DemoReading[]; ingredients: Array<[string, number]>;
 }
 
-/** Small deterministic PRNG (mulberry32) so the demo is the same every time it loads. */
-function prng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The demo is the same every time it loads: a seeded PRNG. */
+const prng = mulberry32;
 
 /** Local wall-clock time in the demo zone, `days` from today at hh:mm. */
 export function localAt(now: Date, days: number, hh: number, mm = 0): Date {

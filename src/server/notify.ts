@@ -18,7 +18,7 @@ import type { BoardRun } from '../lib/board';
 import { wallClock } from '../lib/schedule';
 import { env } from '../config';
 import { enqueue } from './mail/outbox';
-import { escapeHtml } from './mail/templates';
+import { escapeHtml, shell, type MailContent } from './mail/templates';
 import type { RunChange, Tx } from './runs';
 
 export type Writer = Pick<Db, 'insert' | 'select' | 'update'>;
@@ -116,29 +116,15 @@ export function mailWhen(date: Date, timeZone: string): string {
   return `${shortDate(w.ymd, w.weekday)} ${w.hm}`;
 }
 
-export interface MailParts { subject: string; text: string; html: string }
+type MailParts = MailContent;
+export type { MailParts };
 
 const e = escapeHtml;
 
 /** Plateau's small HTML shell for notices (plain paragraphs, one link to the board). */
 export function noticeMail(subject: string, paragraphs: string[], link: { label: string; href: string } | null, footer: string): MailParts {
   const text = [...paragraphs, ...(link ? [`${link.label}: ${link.href}`] : []), '', footer].join('\n\n').replace(/\n\n\n+/g, '\n\n');
-  const body = paragraphs.map((p) => `<p style="margin:0 0 14px;white-space:pre-line">${e(p)}</p>`).join('\n');
-  const button = link
-    ? `<p style="margin:20px 0"><a href="${e(link.href)}" style="display:inline-block;background:#22302d;color:#ffffff;padding:10px 18px;border-radius:6px;text-decoration:none;font-weight:600">${e(link.label)}</a></p>`
-    : '';
-  const html = `<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><title>${e(subject)}</title></head>
-<body style="margin:0;background:#f4f3ef;font-family:Barlow,Arial,sans-serif;color:#1d2321">
-<div style="max-width:560px;margin:0 auto;padding:24px">
-<p style="font-size:20px;font-weight:700;margin:0 0 16px">Plateau</p>
-<div style="background:#ffffff;border:1px solid #d5d8d2;border-radius:8px;padding:20px">
-<h1 style="font-size:20px;margin:0 0 14px">${e(subject)}</h1>
-${body}
-${button}
-</div>
-<p style="font-size:12px;color:#4a5350;margin:16px 0 0">${e(footer)}</p>
-</div></body></html>`;
+  const html = shell(subject, paragraphs.map((p) => `<span style="white-space:pre-line">${e(p)}</span>`), link ?? undefined, footer);
   return { subject, text, html };
 }
 

@@ -8,8 +8,8 @@ export function escapeHtml(value: string): string {
   return value.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
 }
 
-/** The shared HTML shell: paragraphs (already escaped by `p`) and an optional button. */
-function shell(title: string, paragraphs: string[], action?: { label: string; href: string }, footer?: string): string {
+/** The shared HTML shell: paragraphs (already escaped HTML) and an optional button. Used by every mail. */
+export function shell(title: string, paragraphs: string[], action?: { label: string; href: string }, footer?: string): string {
   const body = paragraphs.map((p) => `<p style="margin:0 0 14px">${p}</p>`).join('\n');
   const button = action
     ? `<p style="margin:20px 0"><a href="${escapeHtml(action.href)}" style="display:inline-block;background:#22302d;color:#ffffff;padding:10px 18px;border-radius:6px;text-decoration:none;font-weight:600">${escapeHtml(action.label)}</a></p>
