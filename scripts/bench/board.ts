@@ -30,10 +30,10 @@ if (!['127.0.0.1', 'localhost'].includes(new URL(BASE).hostname)) { console.erro
 
 const DAY = 86_400_000;
 const HOUR = 3_600_000;
-const PASSWORD = 'board bench password 42';
+export const PASSWORD = 'board bench password 42';
 const TZ = 'Europe/London';
 
-async function build() {
+export async function build() {
   const db = getDb();
   const tag = Date.now().toString(36);
   const [ws] = await db.insert(t.workspaces).values({ name: `Board bench ${tag}`, timeZone: TZ }).$returningId();
@@ -167,4 +167,4 @@ async function main() {
   await closeDb();
 }
 
-main().catch(async (err) => { console.error(err); await closeDb(); process.exit(1); });
+if (process.argv[1]?.endsWith('board.ts')) main().catch(async (err) => { console.error(err); await closeDb(); process.exit(1); });
