@@ -30,7 +30,7 @@ trap cleanup INT TERM EXIT
 HOST="$HOST" PORT="$PORT" node dist/server/entry.mjs &
 APP_PID=$!
 for _ in $(seq 1 100); do curl -fs "http://$HOST:$PORT/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
-feed_token="$(cat .data/demo-feed-token 2>/dev/null || true)"
+feed_token="$(cat ".data/demo-feed-token-$DB_NAME" 2>/dev/null || true)"
 cat <<MSG
 
   Plateau is running:  http://$HOST:$PORT

@@ -12,7 +12,8 @@ import { correctReading } from '../src/lib/gravity';
 import { alcoholmeterCorrection, laa } from '../src/lib/alcohol';
 import { DEMO_FERMENTERS, DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STILLS, DEMO_TZ, DEMO_WASH_TYPES, DEMO_WORKSPACE, demoFerments, demoRuns } from './demo';
 
-export const DEMO_FEED_TOKEN_FILE = '.data/demo-feed-token';
+/** The demo feed's plain token, kept (mode 600) per database so `npm start` can print its URL. */
+export const demoFeedTokenFile = (dbName = process.env.DB_NAME ?? 'plateau') => `.data/demo-feed-token-${dbName.replace(/[^A-Za-z0-9_-]/g, '_')}`;
 
 export async function loadDemo(opts: { force?: boolean; now?: Date; quiet?: boolean; db?: Db; tokenFile?: string | null } = {}): Promise<{ created: boolean; workspaceId: number; feedToken: string | null }> {
   const db = opts.db ?? getDb();
@@ -101,7 +102,7 @@ export async function loadDemo(opts: { force?: boolean; now?: Date; quiet?: bool
     await tx.insert(t.calendarFeeds).values({ workspaceId: wsId, scope: 'workspace', name: 'Whole distillery', tokenHash: hashToken(feedToken), createdBy: userIds.get(DEMO_PEOPLE[0].email)! });
     return wsId;
   });
-  const tokenFile = opts.tokenFile === undefined ? DEMO_FEED_TOKEN_FILE : opts.tokenFile;
+  const tokenFile = opts.tokenFile === undefined ? demoFeedTokenFile() : opts.tokenFile;
   if (tokenFile) {
     mkdirSync('.data', { recursive: true });
     writeFileSync(tokenFile, feedToken + '\n', { mode: 0o600 });
