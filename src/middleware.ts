@@ -1,6 +1,6 @@
 import { defineMiddleware } from 'astro:middleware';
 import { lucia, SESSION_ABSOLUTE_MS, setSessionCookie, clearSessionCookie } from './server/auth/session';
-import { membershipsOf, workspaceSettings } from './server/workspaces';
+import { membershipsWithSettings } from './server/workspaces';
 import { cspForHtml, BASE_SECURITY_HEADERS } from './server/csp';
 import { jsonError } from './server/http';
 import { isDbUnavailable } from './server/db-errors';
@@ -47,10 +47,11 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
           if (session.fresh) setSessionCookie(cookies, session.id, secure);
           locals.user = { id: user.id, email: user.email, name: user.name };
           locals.sessionId = session.id;
-          locals.memberships = await membershipsOf(user.id);
-          const chosen = locals.memberships.find((m) => m.workspaceId === session.workspaceId) ?? locals.memberships[0];
+          const mine = await membershipsWithSettings(user.id);
+          locals.memberships = mine.map(({ workspaceId, name, role }) => ({ workspaceId, name, role }));
+          const chosen = mine.find((m) => m.workspaceId === session.workspaceId) ?? mine[0];
           if (chosen) {
-            locals.workspace = await workspaceSettings(chosen.workspaceId);
+            locals.workspace = chosen.settings;
             locals.role = chosen.role;
           }
         }
