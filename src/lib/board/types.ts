@@ -1,5 +1,5 @@
 /** Shapes the board API sends and the board island reads. Times travel as ISO strings. */
-import type { Closure, FermentStatus, OperatingHours, RunStatus, RunType } from '../schedule';
+import type { Closure, FermentStatus, OperatingHours, Run, RunStatus, RunType } from '../schedule';
 
 export type StillKind = 'pot' | 'column' | 'reflux';
 
@@ -65,18 +65,8 @@ export interface BoardPayload {
 }
 
 /** A run with real Dates, as the pure rules want it (plus what the board shows). */
-export interface BoardRun {
-  id: number;
-  stillId: number;
-  type: RunType;
-  status: RunStatus;
-  startsAt: Date;
-  endsAt: Date;
-  operatorId: number | null;
-  chargeLitres: number | null;
+export interface BoardRun extends Run {
   chargeAbv: number | null;
-  ferments: Array<{ fermentId: number; litres: number }>;
-  feeds: Array<{ runId: number; litres: number }>;
   lowWinesLitres: number | null;
   version: number;
   sequence: number;
