@@ -136,10 +136,13 @@ export function errorResponse(err: unknown): Response {
 }
 
 /** Read a request body up to `limit` bytes; null when larger (refused early, by header or by stream). */
-export async function readLimitedText(request: Request, limit: number): Promise<string | null> {
+export async function readLimitedBytes(request: Request, limit: number): Promise<Buffer | null> {
   const declared = Number(request.headers.get('content-length') ?? '0');
-  if (declared > limit) return null;
-  if (!request.body) return '';
+  if (Number.isFinite(declared) && declared > limit) {
+    await request.body?.cancel().catch(() => {});
+    return null;
+  }
+  if (!request.body) return Buffer.alloc(0);
   const reader = request.body.getReader();
   const chunks: Uint8Array[] = [];
   let total = 0;
@@ -153,7 +156,13 @@ export async function readLimitedText(request: Request, limit: number): Promise<
     }
     chunks.push(value);
   }
-  return Buffer.concat(chunks).toString('utf8');
+  return Buffer.concat(chunks);
+}
+
+/** The same, decoded as UTF-8. */
+export async function readLimitedText(request: Request, limit: number): Promise<string | null> {
+  const bytes = await readLimitedBytes(request, limit);
+  return bytes === null ? null : bytes.toString('utf8');
 }
 
 /**

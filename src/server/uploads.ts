@@ -5,7 +5,7 @@ import { readingUploads, readings } from '../db/schema';
 import { MAX_UPLOAD_BYTES, MAX_UPLOAD_ROWS, parseLoggerCsv, type LoggerRow } from '../lib/csv';
 import { temperatureUnitFor } from '../lib/units';
 import { audit } from './audit';
-import { HttpError, conflict, notFound } from './http';
+import { HttpError, conflict, notFound, readLimitedBytes } from './http';
 import type { WorkspaceSettings } from './workspaces';
 import { getFerment } from './ferments';
 import { deriveCorrected } from './readings';
@@ -31,30 +31,13 @@ export async function readUploadText(request: Request): Promise<string> {
   const type = request.headers.get('content-type') ?? '';
   const multipart = type.toLowerCase().startsWith('multipart/form-data');
   const limit = MAX_UPLOAD_BYTES + (multipart ? MULTIPART_OVERHEAD : 0);
-  const declared = Number(request.headers.get('content-length') ?? '0');
-  if (Number.isFinite(declared) && declared > limit) {
-    await request.body?.cancel().catch(() => {});
-    throw tooLarge();
-  }
   if (!request.body) throw new HttpError(400, 'invalid', 'Send the CSV file as the request body.', { file: 'No file was sent.' });
-  const reader = request.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    total += value.byteLength;
-    if (total > limit) {
-      await reader.cancel().catch(() => {});
-      throw tooLarge();
-    }
-    chunks.push(value);
-  }
-  const bytes = Buffer.concat(chunks);
+  const bytes = await readLimitedBytes(request, limit);
+  if (bytes === null) throw tooLarge();
   if (!multipart) return bytes.toString('utf8');
   let form: FormData;
   try {
-    form = await new Response(bytes, { headers: { 'content-type': type } }).formData();
+    form = await new Response(new Uint8Array(bytes), { headers: { 'content-type': type } }).formData();
   } catch {
     throw new HttpError(400, 'invalid', 'The multipart body could not be read.', { file: 'The upload could not be read.' });
   }
