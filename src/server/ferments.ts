@@ -63,6 +63,18 @@ const fermentColumns = {
 };
 
 /** One ferment of the workspace, or 404. */
+/** For pages: the ferment named by a route param, or null when it is not this workspace's (render the 404). */
+export async function fermentForPage(workspaceId: number, param: string | undefined): Promise<FermentRecord | null> {
+  const id = Number(param);
+  if (!Number.isSafeInteger(id) || id <= 0) return null;
+  try {
+    return await getFerment(workspaceId, id);
+  } catch (e) {
+    if (e instanceof HttpError && e.status === 404) return null;
+    throw e;
+  }
+}
+
 export async function getFerment(workspaceId: number, id: number): Promise<FermentRecord> {
   const db = getDb();
   const [row] = await db.select(fermentColumns).from(ferments)

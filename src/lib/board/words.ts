@@ -1,6 +1,6 @@
 /** The board's words: run names, announcements for screen readers, what changed after a conflict. */
 import { wallClock } from '../schedule';
-import type { RunStatus, RunType } from '../schedule';
+import type { Run, RunStatus, RunType } from '../schedule';
 
 export const RUN_TYPE_LABELS: Record<RunType, string> = {
   stripping: 'Stripping run',
@@ -51,16 +51,8 @@ export function cancelledDragMessage(type: RunType, stillName: string, startsAt:
   return `Move cancelled. ${RUN_TYPE_LABELS[type]} stays on ${stillName}, ${dayAndTime(startsAt, timeZone)}`;
 }
 
-export interface ComparableRun {
-  stillId: number;
-  type: RunType;
-  status: RunStatus;
-  startsAt: Date;
-  endsAt: Date;
-  operatorId: number | null;
-  chargeLitres: number | null;
-  notes: string | null;
-}
+/** The fields of a run a person notices changing. */
+export type ComparableRun = Pick<Run, 'stillId' | 'type' | 'status' | 'startsAt' | 'endsAt' | 'operatorId' | 'chargeLitres'> & { notes: string | null };
 
 /**
  * What another person changed, in words, comparing the run the island held
