@@ -56,6 +56,7 @@ ensure_user() {
           GRANT ALL PRIVILEGES ON \`plateau%\`.* TO '$DB_APP_USER'@'127.0.0.1';
           GRANT ALL PRIVILEGES ON \`plateau%\`.* TO '$DB_APP_USER'@'localhost';
           GRANT RELOAD, PROCESS, LOCK TABLES ON *.* TO '$DB_APP_USER'@'127.0.0.1';
+          GRANT RELOAD, PROCESS, LOCK TABLES ON *.* TO '$DB_APP_USER'@'localhost';
           FLUSH PRIVILEGES;"
 }
 

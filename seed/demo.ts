@@ -97,6 +97,14 @@ export function demoFerments(now: Date): DemoFerment[] {
   };
   const grainRecipe: Array<[string, number]> = [['Distilling malt', 720], ['Water (for reference, not counted)', 0]];
   const sugarRecipe: Array<[string, number]> = [['Cane sugar', 560]];
+  // Older washes (five to eight weeks ago), emptied after holding steady: the history the
+  // forecasts of the same wash types learn from.
+  add({ code: 'QR-094', category: 'grain', fermenter: null, volume: 2400, pitchedAt: p(-56), og: 1.061, yeast: 'Distiller\'s M strain', notes: '', emptiedAt: p(-45, 6), ingredients: grainRecipe }, { og: 1.061, fg: 1.005, k: 0.85, lagDays: 0.4 }, 94);
+  add({ code: 'QR-095', category: 'sugar', fermenter: null, volume: 2400, pitchedAt: p(-54), og: 1.079, yeast: 'Turbo-style blend', notes: '', emptiedAt: p(-43, 6), ingredients: sugarRecipe }, { og: 1.079, fg: 0.995, k: 0.7, lagDays: 0.3 }, 95);
+  add({ code: 'QR-096', category: 'grain', fermenter: null, volume: 2400, pitchedAt: p(-49), og: 1.063, yeast: 'Distiller\'s M strain', notes: '', emptiedAt: p(-38, 6), ingredients: grainRecipe }, { og: 1.063, fg: 1.005, k: 0.8, lagDays: 0.5 }, 96);
+  add({ code: 'QR-097', category: 'sugar', fermenter: null, volume: 2400, pitchedAt: p(-47), og: 1.081, yeast: 'Turbo-style blend', notes: '', emptiedAt: p(-36, 6), ingredients: sugarRecipe }, { og: 1.081, fg: 0.996, k: 0.65, lagDays: 0.3 }, 97);
+  add({ code: 'QR-098', category: 'sugar', fermenter: null, volume: 2400, pitchedAt: p(-42), og: 1.080, yeast: 'Turbo-style blend', notes: '', emptiedAt: p(-31, 6), ingredients: sugarRecipe }, { og: 1.080, fg: 0.995, k: 0.75, lagDays: 0.3 }, 98);
+  add({ code: 'QR-099', category: 'grain', fermenter: null, volume: 2400, pitchedAt: p(-40), og: 1.060, yeast: 'Distiller\'s M strain', notes: '', emptiedAt: p(-29, 6), ingredients: grainRecipe }, { og: 1.060, fg: 1.004, k: 0.9, lagDays: 0.4 }, 99);
   // Past, emptied into stripping runs.
   add({ code: 'QR-101', category: 'grain', fermenter: null, volume: 2400, pitchedAt: p(-24), og: 1.062, yeast: 'Distiller\'s M strain', notes: 'Unpeated malt.', emptiedAt: p(-17, 6), ingredients: grainRecipe }, { og: 1.062, fg: 1.005, k: 0.9, lagDays: 0.4 }, 101);
   add({ code: 'QR-102', category: 'sugar', fermenter: null, volume: 2400, pitchedAt: p(-23), og: 1.080, yeast: 'Turbo-style blend', notes: '', emptiedAt: p(-15, 6), ingredients: sugarRecipe }, { og: 1.080, fg: 0.995, k: 0.6, lagDays: 0.3 }, 102);

@@ -9,6 +9,7 @@ import * as t from '../src/db/schema';
 import { hashPassword } from '../src/server/auth/password';
 import { newToken, hashToken } from '../src/server/auth/tokens';
 import { correctReading } from '../src/lib/gravity';
+import { getForecasts, replayForecastHistory } from '../src/server/forecasts';
 import { alcoholmeterCorrection, laa } from '../src/lib/alcohol';
 import { DEMO_FERMENTERS, DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STILLS, DEMO_TZ, DEMO_WASH_TYPES, DEMO_WORKSPACE, demoFerments, demoRuns } from './demo';
 
@@ -102,6 +103,15 @@ export async function loadDemo(opts: { force?: boolean; now?: Date; quiet?: bool
     await tx.insert(t.calendarFeeds).values({ workspaceId: wsId, scope: 'workspace', name: 'Whole distillery', tokenHash: hashToken(feedToken), createdBy: userIds.get(DEMO_PEOPLE[0].email)! });
     return wsId;
   });
+  // Forecasts for every ferment, then what they would have said over the past weeks, so the
+  // board has ready windows at once and the forecast-accuracy report has a history. (Only on the
+  // app's own database: the forecaster reads and writes through it.)
+  if (!opts.db) {
+    const ids = (await db.select({ id: t.ferments.id }).from(t.ferments).where(eq(t.ferments.workspaceId, workspaceId))).map((r) => r.id);
+    await getForecasts(workspaceId, ids, now);
+    await getForecasts(workspaceId, ids, now); // again, now that finished washes inform the running ones
+    await replayForecastHistory(workspaceId, ids, now);
+  }
   const tokenFile = opts.tokenFile === undefined ? demoFeedTokenFile() : opts.tokenFile;
   if (tokenFile) {
     mkdirSync('.data', { recursive: true });

@@ -5,6 +5,8 @@ const schema = z.object({
   DATABASE_URL: z.string().optional(),
   DB_PORT: z.coerce.number().int().default(3307),
   DB_NAME: z.string().default('plateau'),
+  /** The project-local MariaDB's Unix socket (scripts/lib.sh sets it); used instead of TCP when present and DATABASE_URL is unset. */
+  DB_SOCKET: z.string().optional(),
   DB_APP_USER: z.string().default('plateau'),
   DB_APP_PASSWORD: z.string().default('plateau-local-dev'),
   SMTP_URL: z.string().default('smtp://127.0.0.1:2525'),
@@ -18,6 +20,8 @@ const schema = z.object({
   OUTBOX_POLL_MS: z.coerce.number().int().min(200).default(2000),
   /** Where the fake SMTP server keeps messages (development and tests only). */
   MAILBOX_DIR: z.string().default('.data/mailbox'),
+  /** How long a workspace fingerprint read is trusted before the database is asked again, ms (board and feed caches). */
+  PLATEAU_FINGERPRINT_TTL_MS: z.coerce.number().int().min(0).max(60_000).default(2000),
 });
 
 export type Env = z.infer<typeof schema>;

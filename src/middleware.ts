@@ -1,9 +1,9 @@
 import { defineMiddleware } from 'astro:middleware';
 import { lucia, SESSION_ABSOLUTE_MS, setSessionCookie, clearSessionCookie } from './server/auth/session';
-import { membershipsWithSettings } from './server/workspaces';
 import { cspForHtml, BASE_SECURITY_HEADERS } from './server/csp';
 import { jsonError } from './server/http';
 import { isDbUnavailable } from './server/db-errors';
+import { forgetFingerprints } from './server/snapshot-cache';
 // Starts the mail outbox sender once per server process.
 import './server/mail/start';
 
@@ -47,7 +47,7 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
           if (session.fresh) setSessionCookie(cookies, session.id, secure);
           locals.user = { id: user.id, email: user.email, name: user.name };
           locals.sessionId = session.id;
-          const mine = await membershipsWithSettings(user.id);
+          const mine = user.memberships;
           locals.memberships = mine.map(({ workspaceId, name, role }) => ({ workspaceId, name, role }));
           const chosen = mine.find((m) => m.workspaceId === session.workspaceId) ?? mine[0];
           if (chosen) {
@@ -76,6 +76,9 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
   } catch (err) {
     if (isApi) return withHeaders(jsonError(isDbUnavailable(err) ? 503 : 500, isDbUnavailable(err) ? 'unavailable' : 'internal', 'Something went wrong on our side.'));
     throw err;
+  } finally {
+    // Whatever a write touched, this process's remembered fingerprints may now be out of date.
+    if (STATE_CHANGING.has(request.method)) forgetFingerprints();
   }
   // An /api path that fell through to the HTML 404 page (e.g. an id that cannot be routed) answers JSON.
   if (isApi && response.status === 404 && (response.headers.get('content-type') ?? '').includes('text/html')) {

@@ -1,3 +1,5 @@
+import { gzipSync } from 'node:zlib';
+import { createHash } from 'node:crypto';
 /**
  * The board's read side: stills, runs, ferments with their forecasts, fermenters and
  * people for a time range, in one payload; plus warnings and move suggestions.
@@ -150,15 +152,25 @@ export async function loadBoardData(scope: BoardScope, from: Date, to: Date, now
 }
 
 /** Recently built payloads, reused while the workspace's fingerprint is unchanged (and for at most 15 s). */
-const boardCache = new SnapshotCache<string>(15_000);
+// Kept while the workspace's fingerprint and the hour are unchanged, for at most five minutes
+// (forecast statuses move with time alone); the island draws "now" from its own clock.
+const boardCache = new SnapshotCache<BoardBody>(5 * 60_000);
+
+/** The board as bytes ready to send: plain and gzip-compressed JSON and a validator. */
+export interface BoardBody { json: Uint8Array<ArrayBuffer>; gzip: Uint8Array<ArrayBuffer>; etag: string }
+
+function boardBody(payload: BoardPayload): BoardBody {
+  const json = new Uint8Array(Buffer.from(JSON.stringify(payload)));
+  return { json, gzip: new Uint8Array(gzipSync(json, { level: 6 })), etag: `W/"${createHash('sha1').update(json).digest('base64url')}"` };
+}
 
 /**
  * The board payload as a JSON string, served from a short cache while nothing in the
  * workspace changed: the 30-second refresh of every open board then costs one small query.
  */
-export async function getBoardJson(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<string> {
+export async function getBoardBody(scope: BoardScope, from: Date, to: Date, now = new Date(), opts: { fresh?: boolean } = {}): Promise<BoardBody> {
   const key = `${scope.id}|${scope.timeZone}|${scope.stableDays}|${from.getTime()}|${to.getTime()}`;
-  return boardCache.get(scope.id, key, now, async () => JSON.stringify(await getBoard(scope, from, to, now)));
+  return boardCache.get(scope.id, key, now, async () => boardBody(await getBoard(scope, from, to, now)), opts);
 }
 
 export async function getBoard(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<BoardPayload> {

@@ -9,8 +9,10 @@ export function isDbUnavailable(err: unknown): boolean {
   for (let depth = 0; e && depth < 5; depth++) {
     const code = (e as { code?: string }).code;
     if (code && UNAVAILABLE_CODES.has(code)) return true;
+    // The local instance's Unix socket is gone while it is stopped.
+    if (code === 'ENOENT' && (e as { syscall?: string }).syscall === 'connect') return true;
     const msg = (e as { message?: string }).message ?? '';
-    if (/connect ECONNREFUSED|Connection lost|closed state|Pool is closed|connect ETIMEDOUT/i.test(msg)) return true;
+    if (/connect ECONNREFUSED|connect ENOENT|Connection lost|closed state|Pool is closed|connect ETIMEDOUT/i.test(msg)) return true;
     e = (e as { cause?: unknown }).cause;
   }
   return false;

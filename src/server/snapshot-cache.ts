@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { getDb } from '../db/client';
+import { env } from '../config';
 
 const HOUR_MS = 3_600_000;
 
@@ -24,25 +25,70 @@ export async function workspaceFingerprint(workspaceId: number): Promise<string>
 }
 
 /**
+ * How long a fingerprint read is trusted without asking the database again. Within one server
+ * process every state-changing API request forgets all fingerprints as it completes (see
+ * `forgetFingerprints`, called by the middleware), so a person always sees their own change at
+ * once; a change made through another instance, or by a background job, shows within this time.
+ */
+export const FINGERPRINT_TTL_MS = env().PLATEAU_FINGERPRINT_TTL_MS;
+
+const fingerprints = new Map<number, { value: string; at: number }>();
+let epoch = 0;
+
+/** Forget every remembered fingerprint: something may have changed. */
+export function forgetFingerprints(): void {
+  epoch++;
+  fingerprints.clear();
+}
+
+/** The workspace's fingerprint, read at most once per FINGERPRINT_TTL_MS between changes. */
+export async function currentFingerprint(workspaceId: number, nowMs = Date.now()): Promise<string> {
+  const hit = fingerprints.get(workspaceId);
+  if (hit && nowMs - hit.at < FINGERPRINT_TTL_MS) return hit.value;
+  return freshFingerprint(workspaceId, nowMs);
+}
+
+async function freshFingerprint(workspaceId: number, nowMs = Date.now()): Promise<string> {
+  const startedIn = epoch;
+  const value = await workspaceFingerprint(workspaceId);
+  // A change that completed while the query ran may not be in it: do not remember it then.
+  if (startedIn === epoch) {
+    if (fingerprints.size > 1000) fingerprints.clear();
+    fingerprints.set(workspaceId, { value, at: nowMs });
+  }
+  return value;
+}
+
+/**
  * Values built from a workspace's state, reused while its fingerprint is unchanged, within the
  * same hour (forecast statuses move with time alone) and for at most `maxAgeMs`. A value is
- * only kept when the fingerprint did not move while it was being built.
+ * only kept when the fingerprint did not move while it was being built. Concurrent requests
+ * for the same missing value share one build.
  */
 export class SnapshotCache<T> {
   private entries = new Map<string, { fingerprint: string; at: number; hour: number; value: T }>();
+  private building = new Map<string, Promise<T>>();
   constructor(private maxAgeMs: number, private maxEntries = 64) {}
 
-  async get(workspaceId: number, key: string, now: Date, build: () => Promise<T>): Promise<T> {
-    const fingerprint = await workspaceFingerprint(workspaceId);
+  /** `fresh`: read the fingerprint now rather than trust a recent read (the client just changed something). */
+  async get(workspaceId: number, key: string, now: Date, build: () => Promise<T>, opts: { fresh?: boolean } = {}): Promise<T> {
+    const fingerprint = opts.fresh ? await freshFingerprint(workspaceId, now.getTime()) : await currentFingerprint(workspaceId, now.getTime());
     const hour = Math.floor(now.getTime() / HOUR_MS);
     const hit = this.entries.get(key);
     if (hit && hit.fingerprint === fingerprint && hit.hour === hour && now.getTime() - hit.at < this.maxAgeMs) return hit.value;
-    const value = await build();
-    if ((await workspaceFingerprint(workspaceId)) === fingerprint) {
-      this.entries.delete(key);
-      if (this.entries.size >= this.maxEntries) this.entries.delete(this.entries.keys().next().value!);
-      this.entries.set(key, { fingerprint, at: now.getTime(), hour, value });
-    }
-    return value;
+    const flightKey = `${key}|${fingerprint}|${hour}`;
+    const inFlight = this.building.get(flightKey);
+    if (inFlight) return inFlight;
+    const job = (async () => {
+      const value = await build();
+      if ((await freshFingerprint(workspaceId)) === fingerprint) {
+        this.entries.delete(key);
+        if (this.entries.size >= this.maxEntries) this.entries.delete(this.entries.keys().next().value!);
+        this.entries.set(key, { fingerprint, at: now.getTime(), hour, value });
+      }
+      return value;
+    })();
+    this.building.set(flightKey, job);
+    try { return await job; } finally { this.building.delete(flightKey); }
   }
 }

@@ -24,7 +24,7 @@ export async function membershipsOf(userId: number): Promise<Array<{ workspaceId
     .orderBy(asc(workspaces.name));
 }
 
-function toSettings(row: typeof workspaces.$inferSelect): WorkspaceSettings {
+export function toSettings(row: typeof workspaces.$inferSelect): WorkspaceSettings {
   return {
     id: row.id, name: row.name, timeZone: row.timeZone, units: row.units, calibrationTempC: row.calibrationTempC,
     stableDays: row.stableDays, stableTolerance: row.stableTolerance, wortCorrectionFactor: row.wortCorrectionFactor, isDemo: row.isDemo,
@@ -36,16 +36,6 @@ export async function workspaceSettings(workspaceId: number): Promise<WorkspaceS
   return row ? toSettings(row) : null;
 }
 
-/** A person's memberships with each workspace's settings, in one query (the middleware's per-request read). */
-export async function membershipsWithSettings(userId: number): Promise<Array<{ workspaceId: number; name: string; role: Role; settings: WorkspaceSettings }>> {
-  const rows = await getDb()
-    .select({ role: memberships.role, ws: workspaces })
-    .from(memberships)
-    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
-    .where(eq(memberships.userId, userId))
-    .orderBy(asc(workspaces.name));
-  return rows.map((r) => ({ workspaceId: r.ws.id, name: r.ws.name, role: r.role, settings: toSettings(r.ws) }));
-}
 
 export async function roleIn(userId: number, workspaceId: number): Promise<Role | null> {
   const [row] = await getDb().select({ role: memberships.role }).from(memberships)

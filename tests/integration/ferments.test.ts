@@ -4,7 +4,8 @@ import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers/api';
 import { insertDefaultWashTypes } from '../../src/server/vessels';
-import { getForecasts } from '../../src/server/forecasts';
+import { getForecast, getForecasts, historyFor } from '../../src/server/forecasts';
+import { forecastFerment } from '../../src/lib/forecast';
 
 describe('fermenters, wash types and ferments', () => {
   let ws: TestWorkspace;
@@ -144,5 +145,63 @@ describe('forecast wiring', () => {
     // Another workspace's ids give nothing.
     const other = await createTestWorkspace('Forecast stranger');
     expect((await getForecasts(other.workspaceId, [id])).size).toBe(0);
+  });
+
+  it('learns from the wash type\'s finished ferments: same type only, not itself, only those finished by then', async () => {
+    const DAY = 86_400_000;
+    const ws = await createTestWorkspace('Forecast history');
+    await insertDefaultWashTypes(ws.workspaceId);
+    const p = await ws.client('planner');
+    const types = (await p.get('/api/wash-types')).json.washTypes;
+    const sugar = types.find((w: any) => w.category === 'sugar');
+    const grain = types.find((w: any) => w.category === 'grain');
+    const db = getDb();
+    // Four sugar washes confirmed stable 6–7 days after pitching, one grain wash after 12 days (invented history).
+    const past = [
+      { type: sugar.id, days: 6.0, ago: 60 }, { type: sugar.id, days: 6.5, ago: 50 }, { type: sugar.id, days: 7.0, ago: 40 },
+      { type: sugar.id, days: 6.5, ago: 30 }, { type: grain.id, days: 12, ago: 45 },
+    ];
+    for (const [i, h] of past.entries()) {
+      const pitchedAt = new Date(Date.now() - h.ago * DAY);
+      const ruleMetAt = new Date(pitchedAt.getTime() + h.days * DAY);
+      const [f] = await db.insert(t.ferments).values({
+        workspaceId: ws.workspaceId, code: `H-${i + 1}`, washTypeId: h.type, volumeLitres: 1000, pitchedAt, og: 1.08,
+        emptiedAt: new Date(ruleMetAt.getTime() + DAY), emptiedReason: 'distilled',
+      }).$returningId();
+      await db.insert(t.fermentForecasts).values({
+        fermentId: f!.id, workspaceId: ws.workspaceId, inputKey: 'seeded', status: 'finished', ruleMetAt, readyAt: ruleMetAt,
+        readyP10: ruleMetAt, readyP90: ruleMetAt, payload: {}, computedAt: new Date(),
+      });
+    }
+    // A sugar wash 1.5 days in: the curve's bend not seen yet, so the fit is loose.
+    const pitched = new Date(Date.now() - 1.5 * DAY);
+    const live = (await p.post('/api/ferments', { code: 'H-LIVE', washTypeId: sugar.id, fermenterId: null, volume: 1000, pitchedAt: pitched.toISOString(), og: 1.08 })).json.ferment.id;
+    const series = [[0.25, 1.074], [0.5, 1.066], [0.75, 1.058], [1.0, 1.051], [1.25, 1.045], [1.5, 1.040]] as const;
+    for (const [d, sg] of series) {
+      const r = await p.post(`/api/ferments/${live}/readings`, { value: sg, unit: 'sg', method: 'digital', takenAt: new Date(pitched.getTime() + d * DAY - 60_000).toISOString() });
+      expect(r.status, r.text).toBe(201);
+    }
+    const now = new Date();
+    const withHistory = (await getForecast(ws.workspaceId, live, now))!;
+    expect(withHistory.history).not.toBeNull();
+    expect(withHistory.history!.count).toBe(4); // the grain wash is not counted
+    expect(withHistory.history!.medianDays).toBeCloseTo(6.5, 6);
+    // The same inputs without history, straight from the forecaster: history pulls toward 6.5 days.
+    const alone = forecastFerment({
+      readings: series.map(([d, sg]) => ({ takenAt: new Date(pitched.getTime() + d * DAY - 60_000), sg })), og: 1.08, pitchedAt: pitched,
+      terminalRange: { min: sugar.terminalMin, max: sugar.terminalMax }, stableDays: 3, tolerance: 0.001, now, seed: live,
+    });
+    expect(alone.history).toBeNull();
+    const days = (d: Date | null) => (d!.getTime() - pitched.getTime()) / DAY;
+    expect(withHistory.history!.weight).toBeGreaterThan(0.05);
+    expect(Math.abs(days(withHistory.readyAt) - 6.5)).toBeLessThan(Math.abs(days(alone.readyAt) - 6.5));
+
+    // The selection itself: a ferment emptied at day 35 ago only knows those emptied before then.
+    const finished = past.map((h, i) => {
+      const pitchedAt = new Date(now.getTime() - h.ago * DAY);
+      return { id: i + 1, washTypeId: h.type, pitchedAt, ruleMetAt: new Date(pitchedAt.getTime() + h.days * DAY), emptiedAt: new Date(pitchedAt.getTime() + (h.days + 1) * DAY) };
+    });
+    expect(historyFor({ id: 99, washTypeId: sugar.id, emptiedAt: new Date(now.getTime() - 35 * DAY) }, finished, now).sort()).toEqual([6, 6.5]);
+    expect(historyFor({ id: 2, washTypeId: sugar.id, emptiedAt: null }, finished, now).sort()).toEqual([6, 6.5, 7]);
   });
 });

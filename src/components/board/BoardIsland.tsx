@@ -120,11 +120,12 @@ export default function BoardIsland(props: BoardIslandProps) {
   }), [stillById, personById]);
 
   // ---- loading ----
-  const refresh = useCallback(async (w = win) => {
+  // Every refresh but the periodic one follows something we did, so it asks for fresh data.
+  const refresh = useCallback(async (w = win, fresh = true) => {
     const mine = ++requestNo.current;
-    const res = await api.board(w.start, w.end);
+    const res = await api.board(w.start, w.end, fresh);
     if (mine !== requestNo.current) return;
-    if (res.ok) setBoard(hydrateBoard(res.data));
+    if (res.ok) setBoard(hydrateBoard(res.data, new Date()));
     else setNotice({ tone: 'error', text: res.error.message });
   }, [win]);
 
@@ -138,11 +139,11 @@ export default function BoardIsland(props: BoardIslandProps) {
   const firstLoad = useRef(true);
   useEffect(() => {
     if (firstLoad.current) { firstLoad.current = false; return; }
-    void refresh(win);
+    void refresh(win, false);
   }, [win]);
 
   useEffect(() => {
-    const t = window.setInterval(() => { if (!draggingRef.current && document.visibilityState === 'visible') void refresh(); }, REFRESH_MS);
+    const t = window.setInterval(() => { if (!draggingRef.current && document.visibilityState === 'visible') void refresh(undefined, false); }, REFRESH_MS);
     return () => window.clearInterval(t);
   }, [refresh]);
 

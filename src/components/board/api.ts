@@ -12,11 +12,11 @@ export interface ApiError {
 
 export type Result<T> = { ok: true; data: T } | { ok: false; error: ApiError };
 
-async function call<T>(method: string, url: string, body?: unknown): Promise<Result<T>> {
+async function call<T>(method: string, url: string, body?: unknown, extraHeaders: Record<string, string> = {}): Promise<Result<T>> {
   try {
     const res = await fetch(url, {
       method,
-      headers: { accept: 'application/json', ...(body !== undefined ? { 'content-type': 'application/json' } : {}) },
+      headers: { accept: 'application/json', ...(body !== undefined ? { 'content-type': 'application/json' } : {}), ...extraHeaders },
       body: body !== undefined ? JSON.stringify(body) : undefined,
       credentials: 'same-origin',
     });
@@ -41,7 +41,9 @@ async function call<T>(method: string, url: string, body?: unknown): Promise<Res
 export interface RunAnswer { run: BoardRunJson; warnings?: Warning[] }
 
 export const api = {
-  board: (from: Date, to: Date) => call<BoardPayload>('GET', `/api/board?from=${encodeURIComponent(from.toISOString())}&to=${encodeURIComponent(to.toISOString())}`),
+  /** `fresh` after a change of ours: the server must not answer from what it remembered a moment ago. */
+  board: (from: Date, to: Date, fresh = false) =>
+    call<BoardPayload>('GET', `/api/board?from=${encodeURIComponent(from.toISOString())}&to=${encodeURIComponent(to.toISOString())}`, undefined, fresh ? { 'cache-control': 'no-cache' } : {}),
   createRun: (body: Record<string, unknown>) => call<RunAnswer>('POST', '/api/runs', body),
   updateRun: (id: number, body: Record<string, unknown>) => call<RunAnswer>('PATCH', `/api/runs/${id}`, body),
   cancelRun: (id: number, version: number) => call<RunAnswer>('POST', `/api/runs/${id}/cancel`, { version }),

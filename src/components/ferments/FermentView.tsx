@@ -11,6 +11,8 @@ export interface ViewReading {
 export interface ViewForecast {
   status: Status; reason: string; fit: { curve: Array<{ t: string; sg: number }> } | null; predictedFg: { value: number; p10: number; p90: number } | null;
   readyAt: string | null; readyP10: string | null; readyP90: string | null; ruleMetAt: string | null; stableSince: string | null; lastSg: number | null;
+  /** Absent in forecasts stored before the wash type's history was used. */
+  history?: { count: number; medianDays: number; weight: number } | null;
 }
 export interface FermentViewProps {
   fermentId: number;
@@ -76,6 +78,9 @@ export default function FermentView(p: FermentViewProps) {
           {f?.ruleMetAt ? <>Stability rule met {fmtDateTime(f.ruleMetAt, p.timeZone)}.</>
             : f?.readyP10 ? <>Ready (held {p.stableDays} days in range) likely {fmtDateTime(f.readyAt, p.timeZone)}; window {fmtWindow(f.readyP10, f.readyP90, p.timeZone)} (P10–P90).</>
               : p.emptied ? 'Emptied.' : 'No ready window yet.'}
+          {!f?.ruleMetAt && f?.readyP10 && f.history && f.history.weight >= 0.01 && (
+            <span data-testid="forecast-history"> Weighed {Math.round(f.history.weight * 100)} % toward {f.history.count} earlier washes of this type, which held steady a median {f.history.medianDays.toFixed(1)} days after pitching.</span>
+          )}
         </p>
         <dl className="mt-3 grid grid-cols-2 gap-x-4 gap-y-2 sm:grid-cols-4">
           <div><dt className="text-sm text-ink-soft">Current SG</dt><dd className="text-2xl font-bold tabular-nums" data-testid="current-sg">{fmtSg(stats.currentSg, 3)}</dd></div>

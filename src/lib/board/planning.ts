@@ -22,11 +22,12 @@ export function hydrateFerment(f: BoardFermentJson): BoardFerment {
   };
 }
 
-export function hydrateBoard(p: BoardPayload): Board {
+export function hydrateBoard(p: BoardPayload, clientNow?: Date): Board {
   return {
     range: { from: new Date(p.range.from), to: new Date(p.range.to) },
     timeZone: p.timeZone,
-    now: new Date(p.now),
+    // A cached payload's "now" is when it was built; the island passes its own clock.
+    now: clientNow && clientNow.getTime() > Date.parse(p.now) ? clientNow : new Date(p.now),
     stableDays: p.stableDays,
     stills: p.stills,
     runs: p.runs.map(hydrateRun),

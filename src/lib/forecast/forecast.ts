@@ -3,7 +3,7 @@ import { CALIBRATION as C } from './calibration';
 import { bootstrapThetas, fitModel, modelAt, type FitData, type ModelFit, type ModelKind, type Prior } from './fit';
 import { mulberry32, normal } from './prng';
 import { earliestPossibleStart, firstRuleMet, isDense, ruleSeriesOf, stabilityCheck, FLOAT_EPSILON, type TimedValue } from './stability';
-import type { Forecast, ForecastInput, ForecastStatus, Reading } from './types';
+import type { Forecast, ForecastHistoryUse, ForecastInput, ForecastStatus, Reading } from './types';
 
 const DAY_MS = 86_400_000;
 
@@ -171,6 +171,7 @@ const empty: Omit<Forecast, 'status' | 'reason'> = {
   stableSince: null,
   lastSg: null,
   dropPerDay: null,
+  history: null,
 };
 
 /**
@@ -179,16 +180,16 @@ const empty: Omit<Forecast, 'status' | 'reason'> = {
  * (median and robust spread of the past durations still possible as of now). Early on the
  * fit is loose and the history counts; once the curve's bend is seen the fit dominates.
  */
-function historyShift(history: readonly number[] | undefined, fitted: number, q10: number, q90: number, nowDays: number): number {
+function historyShift(history: readonly number[] | undefined, fitted: number, q10: number, q90: number, nowDays: number): { shift: number; used: ForecastHistoryUse | null } {
   const h = C.history;
-  if (!h.enabled || !history) return 0;
+  if (!h.enabled || !history) return { shift: 0, used: null };
   const still = history.filter((d) => Number.isFinite(d) && d > nowDays).sort((a, b) => a - b);
-  if (still.length < h.minCount) return 0;
+  if (still.length < h.minCount) return { shift: 0, used: null };
   const mid = median(still);
   const spread = Math.max(h.minSpreadDays, 1.4826 * median(still.map((d) => Math.abs(d - mid))));
   const own = Math.max(h.minSpreadDays, (q90 - q10) / 2.563);
   const w = Math.min(h.maxWeight, (own * own) / (own * own + h.lambda * spread * spread));
-  return w * (mid - fitted);
+  return { shift: w * (mid - fitted), used: { count: still.length, medianDays: mid, weight: w } };
 }
 
 /** Forecast for one ferment as of `input.now`. Pure and deterministic for a given seed. */
@@ -361,7 +362,8 @@ export function forecastFerment(input: ForecastInput): Forecast {
   const fitted = C.pointFromReplicates && readyReps.length >= 5 ? Math.max(quantileSorted(readyReps, 0.5), floorDays, nowDays) : point.ready;
   let q10 = readyReps.length >= 5 ? quantileSorted(readyReps, 0.1) : fitted;
   let q90 = readyReps.length >= 5 ? quantileSorted(readyReps, 0.9) : fitted;
-  const shift = historyShift(input.history, fitted, q10, q90, nowDays);
+  const { shift, used } = historyShift(input.history, fitted, q10, q90, nowDays);
+  out.history = used;
   const ready = Math.max(fitted + shift, floorDays, nowDays);
   q10 += ready - fitted;
   q90 += ready - fitted;

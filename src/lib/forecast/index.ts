@@ -4,5 +4,5 @@ export type { StabilityOptions, StabilityResult, DailyLevel, TimedValue } from '
 export { fitModel, logisticAt, firstOrderAt, modelAt } from './fit';
 export type { ModelKind, ModelFit, FitData, FitOptions, Prior } from './fit';
 export { FORECAST_STATUSES, STATUS_LABELS } from './types';
-export type { Forecast, ForecastInput, ForecastStatus, Reading, TerminalRange, FittedCurve } from './types';
+export type { Forecast, ForecastHistoryUse, ForecastInput, ForecastStatus, Reading, TerminalRange, FittedCurve } from './types';
 export { CALIBRATION } from './calibration';

@@ -80,4 +80,16 @@ export interface Forecast {
   lastSg: number | null;
   /** Current fall in SG per day (positive while falling). */
   dropPerDay: number | null;
+  /** How the wash type's past ferments entered the ready time, when they did. */
+  history: ForecastHistoryUse | null;
+}
+
+/** The wash type's past pitch-to-stable durations blended into a ready time. */
+export interface ForecastHistoryUse {
+  /** Past durations still possible as of now (longer than the time already elapsed). */
+  count: number;
+  /** Their median, days from pitching. */
+  medianDays: number;
+  /** Weight the history got against the fit (0 to the calibrated maximum). */
+  weight: number;
 }
