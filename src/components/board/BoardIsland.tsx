@@ -80,6 +80,8 @@ function StillLane(props: {
 }
 
 const MemoLane = memo(StillLane);
+const NO_CLOSED: Array<{ x: number; w: number }> = [];
+const NO_WINDOWS: Array<{ key: string; x: number; w: number; mid: number | null; code: string }> = [];
 
 export default function BoardIsland(props: BoardIslandProps) {
   const [board, setBoard] = useState<Board>(() => hydrateBoard(props.initial));
@@ -489,6 +491,19 @@ export default function BoardIsland(props: BoardIslandProps) {
     };
   }, [stillById, fermentById, personById, win.start, spec.pxPerHour, tz, zoom, props.units]);
 
+  // The run blocks, built once per board / window / warnings change: a drag's preview re-renders
+  // the island on every slot it crosses, and must not rebuild (or re-format) every block.
+  const blocksByStill = useMemo(() => {
+    const out = new Map<number, React.ReactNode[]>();
+    for (const [stillId, runs] of runsByStill) {
+      out.set(stillId, runs.map((r) => (
+        <RunBlock key={r.id} run={r} {...blockProps(r)} rowHeight={ROW_H} warnings={warnings.get(r.id) ?? NO_WARNINGS}
+          canMove={props.canMove} compact={compact} onOpen={openRun} onResize={onResize} onResizeKey={onResizeKey} />
+      )));
+    }
+    return out;
+  }, [runsByStill, blockProps, warnings, props.canMove, compact, openRun, onResize, onResizeKey]);
+
   const bars = useMemo(() => vesselBars(board.fermenters, board.ferments, board.runs), [board]);
   const bookable = useMemo(() => bookableFerments(board.ferments, board.runs), [board]);
   const nowX = xOf(board.now, win.start, spec.pxPerHour);
@@ -562,14 +577,8 @@ export default function BoardIsland(props: BoardIslandProps) {
                     <span className="font-semibold">{s.name}</span>
                     <span className="text-xs text-ink-soft">{s.kind} · {formatVolume(s.capacityLitres, props.units)}</span>
                   </div>
-                  <MemoLane still={s} index={i} width={width} closed={closedByStill.get(s.id) ?? []} windows={windowsByStill.get(s.id) ?? []} onEmptyClick={onEmptyClick} canBook={props.canBook}>
-                    {(runsByStill.get(s.id) ?? []).map((r) => {
-                      const bp = blockProps(r);
-                      return (
-                        <RunBlock key={r.id} run={r} {...bp} rowHeight={ROW_H} warnings={warnings.get(r.id) ?? NO_WARNINGS}
-                          canMove={props.canMove} compact={compact} onOpen={openRun} onResize={onResize} onResizeKey={onResizeKey} />
-                      );
-                    })}
+                  <MemoLane still={s} index={i} width={width} closed={closedByStill.get(s.id) ?? NO_CLOSED} windows={windowsByStill.get(s.id) ?? NO_WINDOWS} onEmptyClick={onEmptyClick} canBook={props.canBook}>
+                    {blocksByStill.get(s.id)}
                   </MemoLane>
                 </div>
               ))}

@@ -41,6 +41,34 @@ const PLACEMENT_TEXT: Record<WindowPlacement, string> = {
   unknown: '',
 };
 
+/**
+ * What a block shows. Kept apart and memoised: dnd-kit re-renders every draggable whenever the
+ * drop target under the pointer changes, and that must not redraw 500 blocks' contents.
+ */
+const RunBlockBody = memo(function RunBlockBody(p: {
+  type: BoardRun['type']; compact: boolean; width: number; narrow: boolean; fermentCodes: string; chargeText: string; operatorText: string;
+  warnings: readonly Warning[]; cleaningWidth: number;
+}) {
+  return (
+    <>
+      <div className="run-body" style={{ width: p.width }}>
+        <div className="run-line1">
+          <span className="run-type">{p.compact ? SHORT[p.type].slice(0, 1) : p.narrow ? SHORT[p.type] : RUN_TYPE_LABELS[p.type]}</span>
+          {!p.compact && p.fermentCodes && <span className="run-codes">{p.fermentCodes}</span>}
+        </div>
+        {!p.compact && (
+          <div className="run-line2">
+            {p.chargeText && <span>{p.chargeText}</span>}
+            {p.operatorText && <span className="run-op">{p.operatorText}</span>}
+          </div>
+        )}
+        <WarningBadges warnings={p.warnings} compact={p.compact} />
+      </div>
+      {p.cleaningWidth > 0 && <div className="run-cleaning-tail" style={{ width: p.cleaningWidth }} aria-hidden="true" />}
+    </>
+  );
+});
+
 function RunBlockInner(p: RunBlockProps) {
   const movable = p.canMove && (p.run.status === 'planned' || p.run.status === 'confirmed');
   const { attributes, listeners, setNodeRef, transform, isDragging } = useDraggable({
@@ -87,20 +115,8 @@ function RunBlockInner(p: RunBlockProps) {
         p.onOpen(p.run.id);
       }}
     >
-      <div className="run-body" style={{ width }}>
-        <div className="run-line1">
-          <span className="run-type">{p.compact ? SHORT[p.run.type].slice(0, 1) : p.width < 90 ? SHORT[p.run.type] : RUN_TYPE_LABELS[p.run.type]}</span>
-          {!p.compact && p.fermentCodes && <span className="run-codes">{p.fermentCodes}</span>}
-        </div>
-        {!p.compact && (
-          <div className="run-line2">
-            {p.chargeText && <span>{p.chargeText}</span>}
-            {p.operatorText && <span className="run-op">{p.operatorText}</span>}
-          </div>
-        )}
-        <WarningBadges warnings={p.warnings} compact={p.compact} />
-      </div>
-      {p.cleaningWidth > 0 && <div className="run-cleaning-tail" style={{ width: p.cleaningWidth }} aria-hidden="true" />}
+      <RunBlockBody type={p.run.type} compact={p.compact} width={width} narrow={p.width < 90} fermentCodes={p.fermentCodes}
+        chargeText={p.chargeText} operatorText={p.operatorText} warnings={p.warnings} cleaningWidth={p.cleaningWidth} />
     </div>
       {movable && !p.compact && !isDragging && (
         <button
