@@ -8,6 +8,7 @@ import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import mysql from 'mysql2/promise';
 import { execFileSync } from 'node:child_process';
 import { getDb, closeDb } from '../../src/db/client';
+import { FINGERPRINT_TTL_MS } from '../../src/server/snapshot-cache';
 import * as t from '../../src/db/schema';
 import { enqueue } from '../../src/server/mail/outbox';
 import { readMailbox } from '../../src/server/mail/fake-smtp';
@@ -93,6 +94,29 @@ describe.runIf(APPS.length >= 2 && NODES.length === 3)('Plateau on a Galera clus
     expect(statuses.filter((s) => s !== 200 && s !== 409)).toEqual([]);
     await waitForSync();
     for (let i = 0; i < NODES.length; i++) expect(await overlapsOnNode(i, ws.workspaceId)).toBe(0);
+  });
+
+  it('shows a move made through one instance on a board served by another: at once when asked fresh, else within the fingerprint TTL', async () => {
+    const created = await planners[0]!.post('/api/runs', { stillId, type: 'maintenance', startsAt: day(60, 6).toISOString(), durationMinutes: 120 });
+    expect(created.status, created.text).toBe(201);
+    const run = created.json.run;
+    const path = `/api/board?from=${encodeURIComponent(day(58, 0).toISOString())}&to=${encodeURIComponent(day(65, 0).toISOString())}`;
+    const startOn = async (client: Client, headers: Record<string, string> = {}) =>
+      (await client.get(path, headers)).json.runs.find((r: { id: number }) => r.id === run.id)?.startsAt;
+    await waitForSync();
+    // Instance 2 caches the board with the run at 06:00 ...
+    expect(await startOn(planners[1]!, { 'cache-control': 'no-cache' })).toBe(day(60, 6).toISOString());
+    // ... the run moves through instance 1 ...
+    const moved = await planners[0]!.patch(`/api/runs/${run.id}`, { version: run.version, startsAt: day(61, 8).toISOString(), endsAt: day(61, 10).toISOString() });
+    expect(moved.status, moved.text).toBe(200);
+    await waitForSync();
+    // ... and instance 2 shows it at once to a client asking fresh (the island does after its own changes).
+    expect(await startOn(planners[1]!, { 'cache-control': 'no-cache' })).toBe(day(61, 8).toISOString());
+    const again = await planners[0]!.patch(`/api/runs/${run.id}`, { version: moved.json.run.version, startsAt: day(62, 8).toISOString(), endsAt: day(62, 10).toISOString() });
+    expect(again.status, again.text).toBe(200);
+    await waitForSync();
+    await new Promise((r) => setTimeout(r, FINGERPRINT_TTL_MS + 300));
+    expect(await startOn(planners[1]!)).toBe(day(62, 8).toISOString());
   });
 
   it('sends every outbox message exactly once with a sender on every instance', async () => {
