@@ -156,4 +156,31 @@ describe('ferments in Chromium at phone width', () => {
     await checkPage(s, 'vessels-staff-phone');
     await s.context.close();
   });
+
+  it('a stalled wash reads "not ready" in the list and on its page, not "met"', async () => {
+    const p = await ws.client('planner');
+    const grain = (await p.get('/api/wash-types')).json.washTypes.find((w: { category: string }) => w.category === 'grain').id;
+    const start = new Date(Date.now() - 9 * DAY);
+    const f = await p.post('/api/ferments', { code: 'QX-209', washTypeId: grain, fermenterId: null, volume: 2400, pitchedAt: start.toISOString(), og: 1.065 });
+    const id = f.json.ferment.id;
+    // Falls for four days, then holds at 1.022 for five: stuck far above the 1.002–1.008 finish (common practice).
+    const sgs = [1.065, 1.05, 1.038, 1.029, 1.024, 1.022, 1.022, 1.022, 1.022, 1.022];
+    for (const [i, sg] of sgs.entries()) {
+      const r = await p.post(`/api/ferments/${id}/readings`, { value: sg, unit: 'sg', method: 'digital', takenAt: new Date(start.getTime() + i * DAY - 60_000 + (i === 0 ? 120_000 : 0)).toISOString() });
+      expect(r.status, r.text).toBe(201);
+    }
+    const t = await newPage(browser, DESKTOP);
+    await signInUi(t.page, ws.users.staff.email, TEST_PASSWORD);
+    await t.page.goto('/ferments');
+    const row = t.page.getByRole('row').filter({ hasText: 'QX-209' });
+    await row.waitFor();
+    expect(await row.textContent()).toContain('not ready');
+    expect(await row.textContent()).toContain('above range');
+    expect(await row.textContent()).not.toContain('met ');
+    await row.getByRole('link', { name: 'QX-209' }).click();
+    await t.page.getByTestId('status-tag').waitFor();
+    expect(await t.page.getByTestId('status-tag').textContent()).toBe('Stalled');
+    expect(await t.page.locator('#verdict-heading + p + p').textContent()).toContain('not ready to distil');
+    await t.context.close();
+  });
 });

@@ -75,7 +75,9 @@ export default function FermentView(p: FermentViewProps) {
           <span data-testid="status-reason">{f?.reason ?? 'no forecast yet'}</span>
         </p>
         <p className="mt-1 text-sm text-ink-soft">
-          {f?.ruleMetAt ? <>Stability rule met {fmtDateTime(f.ruleMetAt, p.timeZone)}.</>
+          {f?.ruleMetAt ? (f.status === 'stalled' ? <>Steady since {fmtDateTime(f.ruleMetAt, p.timeZone)}, but above the wash type’s finishing range: stalled, not ready to distil.</>
+            : f.status === 'souring' ? <>Steady since {fmtDateTime(f.ruleMetAt, p.timeZone)}, below the finishing range with signs of souring: check the wash before booking it.</>
+              : <>Stability rule met {fmtDateTime(f.ruleMetAt, p.timeZone)}.</>)
             : f?.readyP10 ? <>Ready (held {p.stableDays} days in range) likely {fmtDateTime(f.readyAt, p.timeZone)}; window {fmtWindow(f.readyP10, f.readyP90, p.timeZone)} (P10–P90).</>
               : p.emptied ? 'Emptied.' : 'No ready window yet.'}
           {!f?.ruleMetAt && f?.readyP10 && f.history && f.history.weight >= 0.01 && (
