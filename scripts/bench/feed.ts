@@ -95,3 +95,28 @@ console.log(`feed of ${EVENTS} events (${(bytes / 1024).toFixed(0)} KiB), every 
 console.log(`cold (empty cache), ${coldRuns} builds: ${stats(cold)}; CPU ${stats(coldCpu)}`);
 console.log(`warm (${CHANGED_PER_REFRESH} events changed since the last fetch), ${runs} builds: ${stats(warm)}; CPU ${stats(warmCpu)}`);
 console.log(`warm (nothing changed), ${runs} builds: ${stats(unchanged)}`);
+
+// After a restart with the blocks in the database (calendar_event_blocks): only when a
+// database answers (DB_NAME / DB_SOCKET as for the app; `--db` to insist).
+if (process.argv.includes('--db') || process.env.DB_NAME) {
+  const { getDb, closeDb } = await import('../../src/db/client');
+  const t = await import('../../src/db/schema');
+  const { buildFeedWithStore } = await import('../../src/server/feed-blocks');
+  const { eq } = await import('drizzle-orm');
+  try {
+    const [w] = await getDb().insert(t.workspaces).values({ name: `Feed bench ${Date.now().toString(36)}` }).$returningId();
+    const input = { name: 'Plateau · all runs', events, now };
+    await buildFeedWithStore(w!.id, input, new EventCache(20_000)); // stores every block
+    const restart: number[] = [];
+    for (let i = 0; i < coldRuns; i++) {
+      const t0 = performance.now();
+      const r = await buildFeedWithStore(w!.id, input, new EventCache(20_000));
+      restart.push(performance.now() - t0);
+      if (r.fromStore !== EVENTS) throw new Error(`expected ${EVENTS} stored blocks, got ${r.fromStore}`);
+    }
+    console.log(`cold after a restart, blocks read from MariaDB (${process.env.DB_NAME ?? 'plateau'}), ${coldRuns} builds: ${stats(restart)}`);
+    await getDb().delete(t.workspaces).where(eq(t.workspaces.id, w!.id));
+  } finally {
+    await closeDb();
+  }
+}

@@ -11,7 +11,7 @@ import { getDb } from '../db/client';
 import { calendarFeeds, ferments, memberships, readings, runFeeds, runFerments, runs, stills, users, workspaces } from '../db/schema';
 import { toScheduleStill } from '../lib/board';
 import {
-  buildFeedAsync, describeRunEvent, runEventStatus, runEventTitle, uidForRun,
+  describeRunEvent, runEventStatus, runEventTitle, uidForRun,
   type EventStatus, type FeedEvent,
 } from '../lib/calendar';
 import { computeRunWarnings, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
@@ -24,6 +24,7 @@ import { hashToken, newToken } from './auth/tokens';
 import { listStills } from './stills';
 import type { Role } from '../db/schema';
 import { SnapshotCache } from './snapshot-cache';
+import { buildFeedWithStore } from './feed-blocks';
 
 const DAY_MS = 86_400_000;
 export const FEED_DAYS_BACK = 30;
@@ -370,7 +371,7 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
     });
   }
 
-  const body = await buildFeedAsync({ name: `${wsRow.name} · ${feed.name}`, events, now });
+  const { body } = await buildFeedWithStore(ws, { name: `${wsRow.name} · ${feed.name}`, events, now });
   const etag = `"${createHash('sha256').update(body).digest('base64url').slice(0, 32)}"`;
   // HTTP dates have whole seconds.
   const lm = new Date(Math.floor(lastModified.getTime() / 1000) * 1000);

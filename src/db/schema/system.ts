@@ -1,4 +1,4 @@
-import { mysqlTable, varchar, mysqlEnum, int, index, text, uniqueIndex, json } from 'drizzle-orm/mysql-core';
+import { mysqlTable, varchar, mysqlEnum, int, index, text, uniqueIndex, json, primaryKey } from 'drizzle-orm/mysql-core';
 import { sql } from 'drizzle-orm';
 import { fk, utc, timestamps, id } from './_shared';
 import { workspaces, users } from './accounts';
@@ -69,3 +69,16 @@ export const jobClaims = mysqlTable('job_claims', {
   claimedBy: varchar('claimed_by', { length: 80 }).notNull(),
   createdAt: utc('created_at').notNull().default(sql`CURRENT_TIMESTAMP(3)`),
 }, (t) => [uniqueIndex('job_claims_uq').on(t.workspaceId, t.job, t.jobKey)]);
+
+/**
+ * Calendar event blocks (the VEVENT text the `ics` package wrote), kept so that the first
+ * feed build after a restart, or on another instance, does not write every event again.
+ * Content-addressed: the key hashes the workspace and everything written into the event,
+ * so a block is never stale, only unused; old ones are pruned.
+ */
+export const calendarEventBlocks = mysqlTable('calendar_event_blocks', {
+  workspaceId: fk('workspace_id').notNull().references(() => workspaces.id, { onDelete: 'cascade' }),
+  keyHash: varchar('key_hash', { length: 64 }).notNull(),
+  body: text('body').notNull(),
+  createdAt: utc('created_at').notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+}, (t) => [primaryKey({ columns: [t.workspaceId, t.keyHash] }), index('calendar_event_blocks_age_idx').on(t.workspaceId, t.createdAt)]);

@@ -188,6 +188,11 @@ function buildBlocks(items: ReadonlyArray<{ event: FeedEvent; dtstamp: Date }>):
 
 const dtstampOf = (event: FeedEvent, now: Date) => event.lastModified ?? now;
 
+/** The cache key of every event of a feed, in order (what buildFeed looks up in the cache). */
+export function feedEventKeys(input: Pick<FeedInput, 'events' | 'now'>): string[] {
+  return input.events.map((event) => eventKey(event, dtstampOf(event, input.now)));
+}
+
 const headers = new Map<string, string>();
 
 /** The VCALENDAR header, from ics, then adjusted for a published feed (memoised: feeds have few names). */

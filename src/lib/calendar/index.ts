@@ -1,4 +1,4 @@
-export { buildFeed, buildFeedAsync, DEFAULT_PRODID, EventCache, eventKey, formatUtcDateTime, sharedEventCache } from './feed';
+export { buildFeed, buildFeedAsync, DEFAULT_PRODID, EventCache, eventKey, feedEventKeys, formatUtcDateTime, sharedEventCache } from './feed';
 export type { EventStatus, FeedEvent, FeedInput } from './feed';
 export { describeRunEvent, runEventStatus, runEventTitle, uidForRun } from './run-event';
 export type { RunEventDescriptionInput, RunEventStatusInput } from './run-event';
