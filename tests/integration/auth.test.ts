@@ -88,12 +88,25 @@ describe('sessions', () => {
     expect(a.cookie).not.toBe(b.cookie);
   });
 
+  it('the sign-out form redirects to sign-in, clears the cookie and the site\'s cache', async () => {
+    const ws = await createTestWorkspace('Sign out form');
+    const c = await ws.client('staff');
+    const r = await c.post('/api/auth/sign-out', undefined, { accept: 'text/html' });
+    expect(r.status).toBe(303);
+    expect(r.headers.get('location')).toBe('/sign-in?signed_out=1');
+    expect(r.headers.get('clear-site-data')).toBe('"cache"');
+    expect(r.headers.getSetCookie().some((h) => /^plateau_session=;/.test(h) && /Max-Age=0/i.test(h))).toBe(true);
+    expect((await c.get('/api/account')).status).toBe(401);
+  });
+
   it('sign-out ends the session on the server, not just in the browser', async () => {
     const ws = await createTestWorkspace('Sign out');
     const c = await ws.client('distiller');
     const stolen = c.cookie;
     expect((await c.get('/api/account')).status).toBe(200);
-    expect((await c.post('/api/auth/sign-out')).status).toBe(200);
+    const out = await c.post('/api/auth/sign-out');
+    expect(out.status).toBe(200);
+    expect(out.headers.get('clear-site-data')).toBe('"cache"'); // the browser's cached board goes too
     const replay = new Client(); replay.cookie = stolen;
     expect((await replay.get('/api/account')).status).toBe(401);
     const id = stolen.replace('plateau_session=', '');
