@@ -29,6 +29,16 @@ const isoDate = z.iso.datetime({ offset: true, message: 'Use an ISO date-time wi
 const chargeLines = z.array(z.object({ fermentId: z.number().int().positive(), litres: z.number().positive().max(1_000_000) })).max(20);
 const feedLines = z.array(z.object({ runId: z.number().int().positive(), litres: z.number().positive().max(1_000_000) })).max(20);
 
+/** What a booking and a change of it may both set. */
+const runDetails = {
+  operatorId: z.number().int().positive().nullable().optional(),
+  chargeLitres: z.number().positive().max(1_000_000).nullable().optional(),
+  chargeAbv: z.number().min(0).max(100).nullable().optional(),
+  ferments: chargeLines.optional(),
+  feeds: feedLines.optional(),
+  notes: z.string().max(4000).nullable().optional(),
+};
+
 export const createRunSchema = z.object({
   stillId: z.number().int().positive(),
   type: z.enum(RUN_TYPES),
@@ -37,12 +47,7 @@ export const createRunSchema = z.object({
   /** Give endsAt, or durationMinutes, or neither (then the default duration applies). */
   endsAt: isoDate.optional(),
   durationMinutes: z.number().int().min(1).max(MAX_RUN_MINUTES).optional(),
-  operatorId: z.number().int().positive().nullable().optional(),
-  chargeLitres: z.number().positive().max(1_000_000).nullable().optional(),
-  chargeAbv: z.number().min(0).max(100).nullable().optional(),
-  ferments: chargeLines.optional(),
-  feeds: feedLines.optional(),
-  notes: z.string().max(4000).nullable().optional(),
+  ...runDetails,
 });
 export type CreateRunInput = z.infer<typeof createRunSchema>;
 
@@ -53,12 +58,7 @@ export const updateRunSchema = z.object({
   endsAt: isoDate.optional(),
   type: z.enum(RUN_TYPES).optional(),
   status: z.enum(['planned', 'confirmed']).optional(),
-  operatorId: z.number().int().positive().nullable().optional(),
-  chargeLitres: z.number().positive().max(1_000_000).nullable().optional(),
-  chargeAbv: z.number().min(0).max(100).nullable().optional(),
-  ferments: chargeLines.optional(),
-  feeds: feedLines.optional(),
-  notes: z.string().max(4000).nullable().optional(),
+  ...runDetails,
 });
 export type UpdateRunInput = z.infer<typeof updateRunSchema>;
 

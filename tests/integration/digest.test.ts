@@ -8,13 +8,13 @@ import { and, eq } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { createTestWorkspace, type TestWorkspace } from '../helpers/api';
+import { ALL_WEEK } from '../helpers/time';
 
 // This process must not start its own outbox sender: the app under test delivers.
 process.env.OUTBOX_DISABLED = '1';
 const { runDigestFor } = await import('../../src/server/digest');
 const { notifyFermentStatusChange } = await import('../../src/server/notify');
 
-const ALL_WEEK = [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday, open: '00:00', close: '24:00' }));
 const mailOf = (workspaceId: number, kind: string) =>
   getDb().select().from(t.mailOutbox).where(and(eq(t.mailOutbox.workspaceId, workspaceId), eq(t.mailOutbox.kind, kind)));
 

@@ -10,10 +10,10 @@ import { eq } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { Client, createTestWorkspace, type TestWorkspace } from '../helpers/api';
+import { ALL_WEEK } from '../helpers/time';
 
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;
-const ALL_WEEK = [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday, open: '00:00', close: '24:00' }));
 // Multi-byte still names (° is 2 octets in UTF-8, é 2, – 3) long enough that lines must fold.
 const STILL_1 = 'Alambic numéro un — chauffé à 98 °C, côté café, près de la réserve';
 const STILL_2 = 'Wash Still 2';

@@ -8,18 +8,7 @@ import { and, eq, gt } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers/api';
-
-const HOUR = 3_600_000;
-const DAY = 24 * HOUR;
-const ALL_WEEK = [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday, open: '00:00', close: '24:00' }));
-
-/** 'Tue 3 Dec 06:00' in the distillery's zone, from the platform's Intl (not our formatter). */
-function londonWhen(date: Date): string {
-  const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', {
-    weekday: 'short', day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone: 'Europe/London',
-  }).formatToParts(date).map((p) => [p.type, p.value]));
-  return `${parts.weekday} ${parts.day} ${String(parts.month).slice(0, 3)} ${parts.hour}:${parts.minute}`;
-}
+import { ALL_WEEK, DAY, HOUR, londonWhen } from '../helpers/time';
 
 async function mailSince(workspaceId: number, afterId: number) {
   return getDb().select().from(t.mailOutbox).where(and(eq(t.mailOutbox.workspaceId, workspaceId), gt(t.mailOutbox.id, afterId)));
