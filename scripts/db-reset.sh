@@ -3,6 +3,7 @@
 . "$(dirname "$0")/lib.sh"
 mkdir -p .data
 . scripts/prepare.sh
+export PLATEAU_MODE="${PLATEAU_MODE:-demo}"
 export DB_NAME="${DB_NAME:-plateau}"
 bash scripts/db.sh create "$DB_NAME" --fresh
 node --import tsx scripts/migrate.ts

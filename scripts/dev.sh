@@ -15,6 +15,8 @@ while [ $# -gt 0 ]; do
   esac
 done
 . scripts/prepare.sh
+# Development mode: the demo distillery, its printed sign-ins and the local mailbox are on.
+export PLATEAU_MODE="${PLATEAU_MODE:-development}"
 export DB_NAME="plateau${NAME:+_$NAME}"
 bash scripts/db.sh create "$DB_NAME" $FRESH
 node --import tsx scripts/migrate.ts
@@ -24,7 +26,6 @@ export MAILBOX_DIR="$ROOT/.data/mailbox${NAME:+-$NAME}"
 start_smtp "$SMTP_DEV_PORT" "$MAILBOX_DIR"
 export SMTP_URL="smtp://127.0.0.1:$SMTP_DEV_PORT"
 export PUBLIC_URL="http://127.0.0.1:$DEV_PORT"
-export PLATEAU_MODE="${PLATEAU_MODE:-development}"
 trap 'kill $SMTP_PID 2>/dev/null || true' EXIT
 say "Dev server for database $DB_NAME on $PUBLIC_URL (mail in ${MAILBOX_DIR#$ROOT/})"
 npx astro dev --host 127.0.0.1 --port "$DEV_PORT"

@@ -56,6 +56,8 @@ build_if_stale() {
   else
     say "Building..."
     npx astro build --silent >/dev/null 2>.data/build.log || { cat .data/build.log; exit 1; }
+    # The Content-Security-Policy allows exactly the inline scripts this build emits.
+    node --import tsx scripts/csp-hashes.ts >>.data/build.log 2>&1 || { cat .data/build.log; exit 1; }
   fi
 }
 

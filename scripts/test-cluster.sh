@@ -21,7 +21,7 @@ PIDS=("$SMTP_PID")
 for n in 1 2 3; do
   DATABASE_URL="$(node_url "$n")" HOST=127.0.0.1 PORT=$((4600 + n)) PLATEAU_INSTANCE="app-$n" PLATEAU_MODE=test \
     SMTP_URL=smtp://127.0.0.1:2699 OUTBOX_POLL_MS=300 PUBLIC_URL="http://127.0.0.1:$((4600 + n))" \
-    node dist/server/entry.mjs >".data/cluster-app-$n.log" 2>&1 &
+    node --import tsx scripts/serve.ts >".data/cluster-app-$n.log" 2>&1 &
   PIDS+=($!)
 done
 cleanup() {

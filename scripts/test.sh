@@ -22,7 +22,7 @@ export SMTP_URL="smtp://127.0.0.1:$TEST_SMTP_PORT"
 export PUBLIC_URL="http://127.0.0.1:$TEST_PORT"
 export PLATEAU_TEST_URL="$PUBLIC_URL"
 
-HOST=127.0.0.1 PORT="$TEST_PORT" OUTBOX_POLL_MS=300 node dist/server/entry.mjs >.data/test-app.log 2>&1 &
+HOST=127.0.0.1 PORT="$TEST_PORT" OUTBOX_POLL_MS=300 node --import tsx scripts/serve.ts >.data/test-app.log 2>&1 &
 APP_PID=$!
 cleanup() {
   kill "$APP_PID" 2>/dev/null || true

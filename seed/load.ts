@@ -127,6 +127,12 @@ function dateOnly(d: Date): string { return d.toISOString().slice(0, 10); }
 const isMain = process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/^.*\/seed\//, '/seed/'));
 if (isMain) {
   const force = process.argv.includes('--force');
+  // The demo's sign-ins are published: it is loaded only in demo or development mode (fail closed).
+  const mode = process.env.PLATEAU_MODE ?? 'production';
+  if (mode !== 'demo' && mode !== 'development') {
+    console.error(`[plateau] Not loading the demo distillery in ${mode} mode: its sign-ins are published. Set PLATEAU_MODE=demo (npm start does) to load it.`);
+    process.exit(mode === 'production' ? 0 : 1);
+  }
   loadDemo({ force })
     .then(async (r) => {
       if (!r.created) console.log('[plateau] Demo distillery already present; nothing to load.');

@@ -1,11 +1,16 @@
 import { defineMiddleware } from 'astro:middleware';
-import { lucia, SESSION_ABSOLUTE_MS, setSessionCookie, clearSessionCookie } from './server/auth/session';
+import { lucia, SESSION_ABSOLUTE_MS, setSessionCookie, clearSessionCookie, sessionTokenFrom, sessionIdFor, cookiesSecure } from './server/auth/session';
+import { demoAllowed } from './config';
 import { cspForHtml, BASE_SECURITY_HEADERS } from './server/csp';
 import { jsonError } from './server/http';
+import { isSameOrigin } from './server/request';
 import { isDbUnavailable } from './server/db-errors';
 import { forgetFingerprints } from './server/snapshot-cache';
 // Starts the mail outbox sender once per server process.
 import './server/mail/start';
+import { runStartupChecks } from './server/startup';
+
+runStartupChecks();
 
 /** Reachable without a session. Everything else needs one. */
 const PUBLIC_PAGES = [/^\/sign-in\/?$/, /^\/sign-up\/?$/, /^\/confirm\//, /^\/invite\//, /^\/forgot-password\/?$/, /^\/reset-password\//, /^\/404\/?$/, /^\/500\/?$/];
@@ -13,19 +18,15 @@ const PUBLIC_API = [/^\/api\/health\/?$/, /^\/api\/auth\//, /^\/api\/feeds\/[^/]
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 
-/** The request's Origin (or Referer) must name the host the request was sent to. */
+/** The request's Origin (or Referer) must be PUBLIC_URL's origin (see expectedOrigins); no X-Forwarded-* header counts. */
 function sameOrigin(request: Request): boolean {
-  const host = request.headers.get('x-forwarded-host') && process.env.TRUST_PROXY === '1' ? request.headers.get('x-forwarded-host') : request.headers.get('host');
-  const source = request.headers.get('origin') ?? request.headers.get('referer');
-  if (!host || !source || source === 'null') return false;
-  try { return new URL(source).host === host; } catch { return false; }
+  return isSameOrigin(request);
 }
 
 export const onRequest = defineMiddleware(async (ctx, next) => {
   const { request, url, locals, cookies } = ctx;
   const path = url.pathname;
   const isApi = path.startsWith('/api/');
-  const secure = url.protocol === 'https:';
   locals.user = null; locals.sessionId = null; locals.workspace = null; locals.role = null; locals.memberships = [];
 
   // CSRF: a state-changing request must come from our own origin.
@@ -36,15 +37,17 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
   const isStatic = path.startsWith('/_astro/') || path === '/favicon.svg' || path.startsWith('/fonts/');
   if (!isStatic) {
     try {
-      const sessionId = cookies.get('plateau_session')?.value ?? null;
-      if (sessionId) {
-        const { session, user } = await lucia().validateSession(sessionId);
+      const token = sessionTokenFrom(cookies);
+      if (token) {
+        const { session, user } = await lucia().validateSession(sessionIdFor(token));
         const tooOld = session && Date.now() - new Date(session.createdAt).getTime() > SESSION_ABSOLUTE_MS;
-        if (!session || !user || user.disabledAt || tooOld) {
+        // Outside demo mode, the demo distillery's published sign-ins never open a session.
+        const demoRefused = user && !demoAllowed() && user.memberships.some((m) => m.settings.isDemo);
+        if (!session || !user || user.disabledAt || tooOld || demoRefused) {
           if (session) await lucia().invalidateSession(session.id);
-          clearSessionCookie(cookies, secure);
+          clearSessionCookie(cookies);
         } else {
-          if (session.fresh) setSessionCookie(cookies, session.id, secure);
+          if (session.fresh) setSessionCookie(cookies, token);
           locals.user = { id: user.id, email: user.email, name: user.name };
           locals.sessionId = session.id;
           const mine = user.memberships;
@@ -66,7 +69,7 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
 
     const isPublic = isApi ? PUBLIC_API.some((r) => r.test(path)) : PUBLIC_PAGES.some((r) => r.test(path));
     if (!isPublic && !locals.user && !isApi) {
-      return ctx.redirect(`/sign-in?next=${encodeURIComponent(path + url.search)}`, 303);
+      return withHeaders(ctx.redirect(`/sign-in?next=${encodeURIComponent(path + url.search)}`, 303));
     }
   }
 
@@ -87,11 +90,16 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
   return withHeaders(response, isStatic);
 });
 
+/** Sent on every response, redirects and errors included; HSTS only when we are served over HTTPS. */
+function securityHeaders(): Record<string, string> {
+  return cookiesSecure() ? { ...BASE_SECURITY_HEADERS, 'strict-transport-security': 'max-age=31536000; includeSubDomains' } : BASE_SECURITY_HEADERS;
+}
+
 async function withHeadersAsync(response: Response): Promise<Response> {
   const html = await response.text();
   const headers = new Headers(response.headers);
   headers.set('content-security-policy', cspForHtml(html));
-  for (const [k, v] of Object.entries(BASE_SECURITY_HEADERS)) if (!headers.has(k)) headers.set(k, v);
+  for (const [k, v] of Object.entries(securityHeaders())) if (!headers.has(k)) headers.set(k, v);
   return new Response(html, { status: response.status, statusText: response.statusText, headers });
 }
 
@@ -99,13 +107,13 @@ function withHeaders(response: Response, isStatic = false): Response | Promise<R
   const type = response.headers.get('content-type') ?? '';
   if (!isStatic && type.includes('text/html')) return withHeadersAsync(response);
   try {
-    for (const [k, v] of Object.entries(BASE_SECURITY_HEADERS)) if (!response.headers.has(k)) response.headers.set(k, v);
+    for (const [k, v] of Object.entries(securityHeaders())) if (!response.headers.has(k)) response.headers.set(k, v);
     if (!response.headers.has('content-security-policy')) response.headers.set('content-security-policy', "default-src 'none'; frame-ancestors 'none'");
     return response;
   } catch {
     // Immutable headers (e.g. a fetched response): copy.
     const headers = new Headers(response.headers);
-    for (const [k, v] of Object.entries(BASE_SECURITY_HEADERS)) if (!headers.has(k)) headers.set(k, v);
+    for (const [k, v] of Object.entries(securityHeaders())) if (!headers.has(k)) headers.set(k, v);
     return new Response(response.body, { status: response.status, headers });
   }
 }

@@ -6,15 +6,15 @@ import { lucia } from './auth/session';
 import { newToken, hashToken } from './auth/tokens';
 import { enqueue } from './mail/outbox';
 import { signUpConfirmMail, alreadyRegisteredMail, passwordResetMail } from './mail/templates';
-import { env } from '../config';
-import { errorResponse, jsonError, readLimitedText, readForm, MAX_JSON_BYTES, zodFields, notFound } from './http';
+import { env, demoAllowed } from '../config';
+import { errorResponse, jsonError, readBody, MAX_JSON_BYTES, zodFields, notFound } from './http';
 import { getDb } from '../db/client';
 import { users } from '../db/schema';
 import { verifyPassword, hashPassword, needsRehash, dummyPasswordHash } from './auth/password';
 import { createSession } from './auth/session';
-import { blockedFor, recordFailure, clearFailures, throttleKeys } from './throttle';
+import { takeAttempt, forgive, refund } from './throttle';
 import { audit } from './audit';
-import { membershipsOf, roleIn } from './workspaces';
+import { membershipsOf, roleIn, isDemoMember } from './workspaces';
 import { HttpError } from './http';
 import { insertDefaultWashTypes } from './vessels';
 
@@ -26,23 +26,24 @@ export const normaliseEmail = (email: string) => email.trim().toLowerCase();
  */
 export async function signIn(input: { email: string; password: string; ip: string; userAgent: string | null }) {
   const email = normaliseEmail(input.email);
-  const keys = throttleKeys(email, input.ip);
-  const wait = await blockedFor(keys);
-  if (wait > 0) {
-    throw new HttpError(429, 'throttled', `Too many failed sign-ins. Try again in ${Math.ceil(wait / 1000)} seconds.`, undefined, { retryAfter: Math.ceil(wait / 1000) });
-  }
+  // Counted before the password is checked (one atomic statement per key), so parallel guesses
+  // cannot all slip under the limit; a success forgives the e-mail and refunds the address.
+  await takeAttempt('sign_in', [`email:${email}`, `ip:${input.ip}`], { message: 'Too many failed sign-ins.' });
   const db = getDb();
   const [user] = await db.select().from(users).where(eq(users.email, email)).limit(1);
   const ok = user ? await verifyPassword(user.passwordHash, input.password) : (await verifyPassword(await dummyPasswordHash(), input.password), false);
-  if (!user || !ok || user.disabledAt || !user.emailVerifiedAt) {
-    await recordFailure(keys);
+  // Outside demo mode, the demo distillery's published sign-ins never open a session.
+  const demoRefused = !!user && ok && !demoAllowed() && (await isDemoMember(user.id));
+  if (demoRefused) console.error(`[plateau] refused a sign-in to demo account ${email}: demo accounts are disabled in ${env().PLATEAU_MODE} mode`);
+  if (!user || !ok || user.disabledAt || !user.emailVerifiedAt || demoRefused) {
     await audit({ workspaceId: null, userId: user?.id ?? null, action: 'auth.sign_in_failed', details: { email }, ip: input.ip });
     throw new HttpError(400, 'bad_credentials', 'That e-mail and password do not match an account.', { email: 'Check the e-mail and password.' });
   }
   if (needsRehash(user.passwordHash)) {
     await db.update(users).set({ passwordHash: await hashPassword(input.password) }).where(eq(users.id, user.id));
   }
-  await clearFailures(`email:${email}`);
+  await forgive('sign_in', `email:${email}`);
+  await refund('sign_in', [`ip:${input.ip}`]);
   const ms = await membershipsOf(user.id);
   const session = await createSession(user.id, ms[0]?.workspaceId ?? null, input.userAgent);
   await audit({ workspaceId: ms[0]?.workspaceId ?? null, userId: user.id, action: 'auth.sign_in', ip: input.ip });
@@ -61,11 +62,13 @@ export const publicUrl = (path: string) => env().PUBLIC_URL.replace(/\/$/, '') +
 
 /**
  * Ask to open a new distillery. The answer is the same whether or not the address has an
- * account: a new address gets a confirmation link, a known one gets a note instead.
+ * account: a new address gets a confirmation link, a known one gets a note instead. No
+ * password is taken here: whoever asks does not yet own the address, so the password is
+ * chosen on the page the confirmation link opens (a stranger who signs up with someone
+ * else's address can never hand that person an account with the stranger's password).
  */
-export async function requestSignUp(input: { email: string; name: string; password: string; workspaceName: string; ip: string }): Promise<void> {
+export async function requestSignUp(input: { email: string; name: string; workspaceName: string; ip: string }): Promise<void> {
   const email = normaliseEmail(input.email);
-  const passwordHash = await hashPassword(input.password); // always hash: same timing either way
   const db = getDb();
   await db.transaction(async (tx) => {
     const [existing] = await tx.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, email)).limit(1);
@@ -77,7 +80,7 @@ export async function requestSignUp(input: { email: string; name: string; passwo
     const token = newToken();
     await tx.insert(emailTokens).values({
       purpose: 'signup_confirm', tokenHash: hashToken(token), email, userId: null,
-      payload: { name: input.name, workspaceName: input.workspaceName, passwordHash },
+      payload: { name: input.name, workspaceName: input.workspaceName },
       expiresAt: new Date(Date.now() + SIGNUP_TOKEN_HOURS * 3600_000),
     });
     const mail = signUpConfirmMail({ name: input.name, workspaceName: input.workspaceName, link: publicUrl(`/confirm/${token}`), hours: SIGNUP_TOKEN_HOURS });
@@ -105,11 +108,17 @@ async function spendToken(tx: Pick<ReturnType<typeof getDb>, 'update'>, id: numb
   if ((res as { affectedRows?: number }).affectedRows !== 1) throw expiredLink();
 }
 
-/** Follow a sign-up confirmation: creates the person, the workspace and the manager membership, and signs in. */
-export async function confirmSignUp(token: string, meta: { ip: string; userAgent: string | null }) {
+/**
+ * Follow a sign-up confirmation: the owner of the address, holding the link, chooses the
+ * password (and may correct the names) here. Creates the person, the workspace and the
+ * manager membership, and signs in.
+ */
+export async function confirmSignUp(token: string, input: { name?: string; workspaceName?: string; password: string }, meta: { ip: string; userAgent: string | null }) {
   const row = await findEmailToken(token, 'signup_confirm');
   if (!row || !row.payload) throw expiredLink();
-  const { name = 'Manager', workspaceName = 'My distillery', passwordHash = '' } = row.payload;
+  const name = input.name ?? row.payload.name ?? 'Manager';
+  const workspaceName = input.workspaceName ?? row.payload.workspaceName ?? 'My distillery';
+  const passwordHash = await hashPassword(input.password);
   const db = getDb();
   const { userId, workspaceId } = await db.transaction(async (tx) => {
     await spendToken(tx, row.id);
@@ -160,7 +169,7 @@ export async function resetPassword(token: string, password: string, meta: { ip:
       await audit({ workspaceId: m.workspaceId, userId, action: 'auth.password_reset', ip: meta.ip }, tx);
     }
   });
-  await clearFailures(`email:${row.email}`);
+  await forgive('sign_in', `email:${row.email}`);
 }
 
 export async function updateName(userId: number, name: string): Promise<void> {
@@ -224,21 +233,9 @@ export async function switchWorkspace(userId: number, sessionId: string, workspa
 // and for public routes that accept JSON or a plain form post.
 // ---------------------------------------------------------------------------
 
-/** Parse a JSON or urlencoded/multipart body (size-limited). */
+/** Parse a JSON or urlencoded/multipart body through the one byte-limited reader. */
 export async function readInput(ctx: APIContext): Promise<{ raw: unknown; isForm: boolean }> {
-  const type = ctx.request.headers.get('content-type') ?? '';
-  const isForm = type.includes('application/x-www-form-urlencoded') || type.includes('multipart/form-data');
-  if (isForm) {
-    const declared = Number(ctx.request.headers.get('content-length') ?? '0');
-    if (declared > MAX_JSON_BYTES) throw new HttpError(413, 'too_large', 'The request body is too large.');
-    const form = await readForm(ctx.request);
-    const raw: Record<string, string> = {};
-    for (const [k, v] of form.entries()) if (typeof v === 'string') raw[k] = v;
-    return { raw, isForm };
-  }
-  const text = await readLimitedText(ctx.request, MAX_JSON_BYTES);
-  if (text === null) throw new HttpError(413, 'too_large', 'The request body is too large.');
-  try { return { raw: text.length ? JSON.parse(text) : {}, isForm }; } catch { throw new HttpError(400, 'invalid_json', 'The request body is not valid JSON.'); }
+  return readBody(ctx.request, MAX_JSON_BYTES);
 }
 
 export function parseOrThrow<T>(schema: ZodType<T>, raw: unknown): T {

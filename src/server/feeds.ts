@@ -5,7 +5,8 @@
  * STATUS carries the forecast (TENTATIVE until every linked wash is confirmed stable).
  */
 import { createHash } from 'node:crypto';
-import { and, desc, eq, gt, inArray, isNull, lt, or, sql } from 'drizzle-orm';
+import { and, desc, eq, gt, inArray, isNotNull, isNull, lt, ne, or, sql, type SQL } from 'drizzle-orm';
+import { alias } from 'drizzle-orm/mysql-core';
 import { z } from 'zod';
 import { getDb } from '../db/client';
 import { calendarFeeds, ferments, memberships, readings, runFeeds, runFerments, runs, stills, users, workspaces } from '../db/schema';
@@ -17,7 +18,7 @@ import {
 import { computeRunWarnings, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
 import { env } from '../config';
 import { audit } from './audit';
-import { can } from './authz';
+import { ACTIONS, can } from './authz';
 import { getForecasts } from './forecasts';
 import { notFound, invalid, HttpError } from './http';
 import { hashToken, newToken } from './auth/tokens';
@@ -57,7 +58,22 @@ export interface FeedListRow {
   createdAt: Date;
   createdById: number | null;
   createdByName: string | null;
+  /** The creator's current role here, or null once they have left the distillery. */
+  createdByRole: Role | null;
   lastFetchedAt: Date | null;
+  /** False when the token no longer opens the feed (see feedIsLive); the row stays until revoked. */
+  live: boolean;
+  /** Why a feed that is not live stopped working, in the product's words. */
+  stoppedBecause: string | null;
+}
+
+/** The feeds of one holder (the person who created them), for the manager's list. */
+export interface FeedGroup {
+  holderId: number | null;
+  holderName: string;
+  /** Null once the holder has left the distillery. */
+  holderRole: Role | null;
+  feeds: FeedListRow[];
 }
 
 interface Actor { userId: number; workspaceId: number; role: Role }
@@ -69,40 +85,127 @@ export function feedUrls(token: string): { url: string; webcal: string } {
   return { url, webcal: url.replace(/^https?:\/\//, 'webcal://') };
 }
 
-/** Feeds this person may see: their own; a manager sees everyone's. Never a token. */
-export async function listFeeds(actor: Actor): Promise<FeedListRow[]> {
+// The holder of a feed is its creator; for a person feed, the subject is the person whose runs it shows.
+const holderMember = alias(memberships, 'holder_member');
+const holderUser = alias(users, 'holder_user');
+const subjectMember = alias(memberships, 'subject_member');
+const subjectUser = alias(users, 'subject_user');
+const FEED_HOLDER_ROLES = ACTIONS['feeds.own'] as readonly Role[];
+const FEED_MANAGER_ROLES = ACTIONS['feeds.manage'] as readonly Role[];
+
+/**
+ * True while a feed's token may open it. The rule the creation gate applies, re-checked against
+ * who the holder is now: the holder is still a member of the feed's distillery, not disabled,
+ * and their current role may hold feeds (feeds.own); a feed of someone else's runs also needs
+ * feeds.manage, and that person must still be a member here. Reads the four joins below.
+ */
+const feedIsLive = (): SQL => and(
+  isNull(calendarFeeds.revokedAt),
+  isNotNull(holderMember.userId), isNull(holderUser.disabledAt), inArray(holderMember.role, [...FEED_HOLDER_ROLES]),
+  or(ne(calendarFeeds.scope, 'still'), isNotNull(calendarFeeds.stillId)),
+  or(
+    ne(calendarFeeds.scope, 'person'),
+    and(
+      isNotNull(subjectMember.userId), isNull(subjectUser.disabledAt),
+      or(eq(calendarFeeds.personId, calendarFeeds.createdBy), inArray(holderMember.role, [...FEED_MANAGER_ROLES])),
+    ),
+  ),
+)!;
+
+// The joins feedIsLive() reads, each on a unique key: the holder's and the subject's membership and account.
+const HOLDER_MEMBER_ON = and(eq(holderMember.workspaceId, calendarFeeds.workspaceId), eq(holderMember.userId, calendarFeeds.createdBy));
+const HOLDER_USER_ON = eq(holderUser.id, calendarFeeds.createdBy);
+const SUBJECT_MEMBER_ON = and(eq(subjectMember.workspaceId, calendarFeeds.workspaceId), eq(subjectMember.userId, calendarFeeds.personId));
+const SUBJECT_USER_ON = eq(subjectUser.id, calendarFeeds.personId);
+
+interface StopFacts {
+  scope: FeedScope; personId: number | null; createdById: number | null; createdByName: string | null; createdByRole: Role | null;
+  holderDisabled: boolean; personName: string | null; personMember: boolean; personDisabled: boolean;
+}
+
+/** Explains (never decides) why feedIsLive() is false for a row. */
+function stopReason(f: StopFacts): string {
+  const holder = f.createdByName ?? 'Its creator';
+  if (f.createdById === null) return 'Its creator\'s account was deleted.';
+  if (f.createdByRole === null) return `${holder} is no longer a member of this distillery.`;
+  if (f.holderDisabled) return `${holder}'s account is disabled.`;
+  if (!FEED_HOLDER_ROLES.includes(f.createdByRole)) return `${holder}'s role (${f.createdByRole}) may not hold calendar feeds.`;
+  if (f.scope === 'person') {
+    const subject = f.personName ?? 'The person it follows';
+    if (!f.personMember) return `${subject} is no longer a member of this distillery.`;
+    if (f.personDisabled) return `${subject}'s account is disabled.`;
+    if (f.personId !== f.createdById && !FEED_MANAGER_ROLES.includes(f.createdByRole)) {
+      return `${holder}'s role (${f.createdByRole}) may follow only their own runs.`;
+    }
+  }
+  return 'It no longer opens.';
+}
+
+/**
+ * Feeds this person may see, never a token: their own; a manager sees every feed of the
+ * distillery, including those of people who have left (dead until revoked, shown as such).
+ */
+export async function listFeeds(actor: Actor, only?: { id: number }): Promise<FeedListRow[]> {
   const db = getDb();
   const rows = await db.select({
-    id: calendarFeeds.id, name: calendarFeeds.name, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId, personId: calendarFeeds.personId,
-    createdAt: calendarFeeds.createdAt, createdById: calendarFeeds.createdBy, lastFetchedAt: calendarFeeds.lastFetchedAt,
+    id: calendarFeeds.id, name: calendarFeeds.name, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId, stillName: stills.name,
+    personId: calendarFeeds.personId, personName: subjectUser.name, personMember: subjectMember.userId, personDisabledAt: subjectUser.disabledAt,
+    createdAt: calendarFeeds.createdAt, createdById: calendarFeeds.createdBy, createdByName: holderUser.name, createdByRole: holderMember.role,
+    holderDisabledAt: holderUser.disabledAt, lastFetchedAt: calendarFeeds.lastFetchedAt,
+    live: sql<number | string>`(${feedIsLive()})`,
   }).from(calendarFeeds)
+    .leftJoin(holderMember, HOLDER_MEMBER_ON).leftJoin(holderUser, HOLDER_USER_ON)
+    .leftJoin(subjectMember, SUBJECT_MEMBER_ON).leftJoin(subjectUser, SUBJECT_USER_ON)
+    .leftJoin(stills, and(eq(stills.id, calendarFeeds.stillId), eq(stills.workspaceId, calendarFeeds.workspaceId)))
     .where(and(
       eq(calendarFeeds.workspaceId, actor.workspaceId), isNull(calendarFeeds.revokedAt),
       can(actor.role, 'feeds.manage') ? undefined : eq(calendarFeeds.createdBy, actor.userId),
+      only ? eq(calendarFeeds.id, only.id) : undefined,
     ))
     .orderBy(desc(calendarFeeds.createdAt), desc(calendarFeeds.id));
-  const stillIds = [...new Set(rows.map((r) => r.stillId).filter((v): v is number => v !== null))];
-  const userIds = [...new Set(rows.flatMap((r) => [r.personId, r.createdById]).filter((v): v is number => v !== null))];
-  const [stillRows, userRows] = await Promise.all([
-    stillIds.length ? db.select({ id: stills.id, name: stills.name }).from(stills).where(and(eq(stills.workspaceId, actor.workspaceId), inArray(stills.id, stillIds))) : [],
-    userIds.length ? db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, userIds)) : [],
-  ]);
-  const stillName = new Map(stillRows.map((s) => [s.id, s.name]));
-  const userName = new Map(userRows.map((u) => [u.id, u.name]));
-  return rows.map((r) => ({
-    ...r,
-    stillName: r.stillId !== null ? stillName.get(r.stillId) ?? null : null,
-    personName: r.personId !== null ? userName.get(r.personId) ?? null : null,
-    createdByName: r.createdById !== null ? userName.get(r.createdById) ?? null : null,
-  }));
+  return rows.map((r) => {
+    const live = Number(r.live) === 1;
+    const row: FeedListRow = {
+      id: r.id, name: r.name, scope: r.scope, stillId: r.stillId, stillName: r.stillName ?? null,
+      personId: r.personId, personName: r.personName ?? null, createdAt: r.createdAt,
+      createdById: r.createdById, createdByName: r.createdByName ?? null, createdByRole: r.createdByRole ?? null,
+      lastFetchedAt: r.lastFetchedAt, live, stoppedBecause: null,
+    };
+    if (!live) {
+      row.stoppedBecause = stopReason({
+        ...row, holderDisabled: r.holderDisabledAt != null, personMember: r.personMember != null, personDisabled: r.personDisabledAt != null,
+      });
+    }
+    return row;
+  });
+}
+
+/** Group feeds by holder: current members by name, then people who have left, then deleted accounts. */
+export function groupFeedsByHolder(feeds: FeedListRow[]): FeedGroup[] {
+  const groups = new Map<string, FeedGroup>();
+  for (const f of feeds) {
+    const key = f.createdById === null ? 'none' : String(f.createdById);
+    let g = groups.get(key);
+    if (!g) {
+      g = { holderId: f.createdById, holderName: f.createdByName ?? 'Deleted account', holderRole: f.createdByRole, feeds: [] };
+      groups.set(key, g);
+    }
+    g.feeds.push(f);
+  }
+  const rank = (g: FeedGroup) => (g.holderId === null ? 2 : g.holderRole === null ? 1 : 0);
+  return [...groups.values()].sort((a, b) => rank(a) - rank(b) || a.holderName.localeCompare(b.holderName, 'en') || (a.holderId ?? 0) - (b.holderId ?? 0));
 }
 
 export function feedJson(f: FeedListRow) {
   return {
     id: f.id, name: f.name, scope: f.scope, stillId: f.stillId, stillName: f.stillName, personId: f.personId, personName: f.personName,
-    createdAt: f.createdAt.toISOString(), createdById: f.createdById, createdByName: f.createdByName,
-    lastFetchedAt: f.lastFetchedAt ? f.lastFetchedAt.toISOString() : null,
+    createdAt: f.createdAt.toISOString(), createdById: f.createdById, createdByName: f.createdByName, createdByRole: f.createdByRole,
+    lastFetchedAt: f.lastFetchedAt ? f.lastFetchedAt.toISOString() : null, live: f.live, stoppedBecause: f.stoppedBecause,
   };
+}
+
+export function feedGroupJson(g: FeedGroup) {
+  return { holderId: g.holderId, holderName: g.holderName, holderRole: g.holderRole, feeds: g.feeds.map(feedJson) };
 }
 
 /** Create a feed; the plain token is returned this once and never stored. */
@@ -142,7 +245,8 @@ export async function createFeed(actor: Actor, input: CreateFeedInput): Promise<
     await audit({ workspaceId: actor.workspaceId, userId: actor.userId, action: 'feed.create', entityType: 'calendar_feed', entityId: row!.id, details: { scope: input.scope, stillId, personId, name } }, tx);
     return row!.id;
   });
-  const feed = (await listFeeds({ ...actor, role: 'manager' })).find((f) => f.id === id)!;
+  const [feed] = await listFeeds({ ...actor, role: 'manager' }, { id });
+  if (!feed) throw new HttpError(409, 'conflict', 'The feed was created but cannot be read back; reload the page.');
   return { feed, token, ...feedUrls(token) };
 }
 
@@ -168,25 +272,22 @@ export interface FeedRecord {
   lastFetchedAt: Date | null;
 }
 
-/** The live feed a token opens, or null (unknown, revoked, or its owner has left the distillery). */
+/**
+ * The live feed a token opens, or null: unknown, revoked, or its holder may no longer hold it
+ * (left the distillery, disabled, or their current role does not allow it; see feedIsLive).
+ * One query on unique keys: this is the hot path of every calendar poll.
+ */
 export async function feedForToken(token: string): Promise<FeedRecord | null> {
   if (!TOKEN_SHAPE.test(token)) return null;
-  const db = getDb();
-  const [row] = await db.select({
+  const [row] = await getDb().select({
     id: calendarFeeds.id, workspaceId: calendarFeeds.workspaceId, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId,
-    personId: calendarFeeds.personId, name: calendarFeeds.name, lastFetchedAt: calendarFeeds.lastFetchedAt, createdBy: calendarFeeds.createdBy,
-  }).from(calendarFeeds).where(and(eq(calendarFeeds.tokenHash, hashToken(token)), isNull(calendarFeeds.revokedAt))).limit(1);
-  if (!row) return null;
-  // A feed lives only as long as its creator (and, for a person feed, that person) belongs here.
-  const needed = [row.createdBy, row.personId].filter((v): v is number => v !== null);
-  if (needed.length) {
-    const present = await db.select({ userId: memberships.userId }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
-      .where(and(eq(memberships.workspaceId, row.workspaceId), inArray(memberships.userId, needed), isNull(users.disabledAt)));
-    if (new Set(present.map((p) => p.userId)).size !== new Set(needed).size) return null;
-  }
-  if (row.scope === 'still' && row.stillId === null) return null;
-  if (row.scope === 'person' && row.personId === null) return null;
-  return row;
+    personId: calendarFeeds.personId, name: calendarFeeds.name, lastFetchedAt: calendarFeeds.lastFetchedAt,
+  }).from(calendarFeeds)
+    .leftJoin(holderMember, HOLDER_MEMBER_ON).leftJoin(holderUser, HOLDER_USER_ON)
+    .leftJoin(subjectMember, SUBJECT_MEMBER_ON).leftJoin(subjectUser, SUBJECT_USER_ON)
+    .where(and(eq(calendarFeeds.tokenHash, hashToken(token)), feedIsLive()))
+    .limit(1);
+  return row ?? null;
 }
 
 /** Record the fetch, at most every few minutes per feed (a calendar app polls often). */

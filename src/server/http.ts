@@ -81,14 +81,7 @@ export function route<B = undefined, Q = undefined>(
       }
       let body = undefined as B;
       if (opts.body) {
-        const text = await readLimitedText(ctx.request, MAX_JSON_BYTES);
-        if (text === null) return jsonError(413, 'too_large', `The request body is over ${MAX_JSON_BYTES / 1024} kB.`);
-        let data: unknown;
-        try {
-          data = text.length ? JSON.parse(text) : {};
-        } catch {
-          return jsonError(400, 'invalid_json', 'The request body is not valid JSON.');
-        }
+        const { raw: data } = await readBody(ctx.request, MAX_JSON_BYTES);
         const parsed = opts.body.safeParse(data);
         if (!parsed.success) return invalidResponse(parsed.error);
         body = parsed.data;
@@ -106,10 +99,7 @@ export function publicRoute<B = undefined>(opts: { body?: ZodType<B> }, handler:
     try {
       let body = undefined as B;
       if (opts.body) {
-        const text = await readLimitedText(ctx.request, MAX_JSON_BYTES);
-        if (text === null) return jsonError(413, 'too_large', 'The request body is too large.');
-        let data: unknown;
-        try { data = text.length ? JSON.parse(text) : {}; } catch { return jsonError(400, 'invalid_json', 'The request body is not valid JSON.'); }
+        const { raw: data } = await readBody(ctx.request, MAX_JSON_BYTES);
         const parsed = opts.body.safeParse(data);
         if (!parsed.success) return invalidResponse(parsed.error);
         body = parsed.data;
@@ -123,6 +113,10 @@ export function publicRoute<B = undefined>(opts: { body?: ZodType<B> }, handler:
 
 export function errorResponse(err: unknown): Response {
   if (err instanceof HttpError) {
+    if (err.status === 429) {
+      const retryAfter = Number(err.extra?.retryAfter ?? 60);
+      return jsonError(429, err.code, err.message, err.fields, { 'retry-after': String(retryAfter) });
+    }
     if (err.extra) {
       return json({ error: { code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) }, ...err.extra }, err.status);
     }
@@ -184,13 +178,41 @@ export function nonEmpty<T extends z.ZodObject>(schema: T) {
   return schema.refine((o: Record<string, unknown>) => Object.values(o).some((v) => v !== undefined), { message: 'Send at least one field to change.' });
 }
 
-/** Parse a form body; a malformed one is the client's error (400), never a 500. */
-export async function readForm(request: Request): Promise<FormData> {
+/** The cap on a form or JSON body of any route that does not declare its own (uploads do). */
+export const MAX_FORM_BYTES = MAX_JSON_BYTES;
+
+export const tooLarge = (limit: number) => new HttpError(413, 'too_large', `The request body is over ${Math.round(limit / 1024)} kB.`);
+
+/**
+ * Parse a form body through the byte-limited reader (with or without Content-Length, a body
+ * past the cap is refused with 413 before it is parsed); a malformed one is a 400, never a 500.
+ */
+export async function readForm(request: Request, limit = MAX_FORM_BYTES): Promise<FormData> {
+  const bytes = await readLimitedBytes(request, limit);
+  if (bytes === null) throw tooLarge(limit);
   try {
-    return await request.formData();
+    return await new Response(new Uint8Array(bytes), { headers: { 'content-type': request.headers.get('content-type') ?? '' } }).formData();
   } catch {
     throw new HttpError(400, 'invalid_form', 'The form body could not be read.');
   }
+}
+
+/**
+ * The one body reader for JSON and form posts: JSON (islands, tests) or a urlencoded /
+ * multipart form (pages that work without JavaScript), always through the byte limit.
+ */
+export async function readBody(request: Request, limit = MAX_JSON_BYTES): Promise<{ raw: unknown; isForm: boolean }> {
+  const type = request.headers.get('content-type') ?? '';
+  const isForm = type.includes('application/x-www-form-urlencoded') || type.includes('multipart/form-data');
+  if (isForm) {
+    const form = await readForm(request, limit);
+    const raw: Record<string, string> = {};
+    for (const [k, v] of form.entries()) if (typeof v === 'string') raw[k] = v;
+    return { raw, isForm };
+  }
+  const text = await readLimitedText(request, limit);
+  if (text === null) throw tooLarge(limit);
+  try { return { raw: text.length ? JSON.parse(text) : {}, isForm }; } catch { throw new HttpError(400, 'invalid_json', 'The request body is not valid JSON.'); }
 }
 
 /** Route params are ids: positive integers, else 404 (an id that cannot exist is not found). */

@@ -9,13 +9,13 @@ import { memberships, users, invitations, workspaces, sessions, auditLog, type R
 import type { Authed } from './http';
 import { HttpError, conflict, notFound } from './http';
 import { audit } from './audit';
+import { inRetriedTransaction } from './runs';
 import { enqueue } from './mail/outbox';
 import { invitationMail } from './mail/templates';
 import { newToken, hashToken } from './auth/tokens';
 import { hashPassword } from './auth/password';
 import { createSession } from './auth/session';
 import { normaliseEmail, publicUrl } from './accounts';
-import type { StoredMail } from './mail/fake-smtp';
 
 export const INVITATION_DAYS = 7;
 const LAST_MANAGER = 'A distillery needs at least one manager. Make someone else a manager first.';
@@ -73,8 +73,18 @@ export async function revokeInvitation(auth: Authed, invitationId: number, ip: s
 
 type Tx = Parameters<Parameters<ReturnType<typeof getDb>['transaction']>[0]>[0];
 
-/** Lock the workspace's memberships and return the target's row plus the manager count. */
+/**
+ * Bump the workspace row, then lock the workspace's memberships and return the target's row
+ * plus the manager count. Row locks alone are node-local on a Galera cluster: two managers
+ * demoting each other through two nodes would each count two managers and both commit. The
+ * bump makes both transactions write the same row, so the second to commit fails
+ * certification (1213) and is replayed by inRetriedTransaction, now seeing the first's
+ * change; on one MariaDB the bump's row lock serialises them the same way.
+ */
 async function lockMembers(tx: Tx, workspaceId: number, userId: number) {
+  await tx.update(workspaces)
+    .set({ updatedAt: sql`GREATEST(CURRENT_TIMESTAMP(3), ${workspaces.updatedAt} + INTERVAL 1000 MICROSECOND)` })
+    .where(eq(workspaces.id, workspaceId));
   const rows = await tx.select({ userId: memberships.userId, role: memberships.role }).from(memberships)
     .where(eq(memberships.workspaceId, workspaceId)).for('update');
   const target = rows.find((r) => r.userId === userId);
@@ -82,9 +92,9 @@ async function lockMembers(tx: Tx, workspaceId: number, userId: number) {
   return { target, managers: rows.filter((r) => r.role === 'manager').length };
 }
 
+/** Change a member's role. Refuses (409) to leave the distillery without a manager, even under concurrent changes. */
 export async function changeRole(auth: Authed, userId: number, role: Role, ip: string | null): Promise<void> {
-  const db = getDb();
-  await db.transaction(async (tx) => {
+  await inRetriedTransaction(async (tx) => {
     const { target, managers } = await lockMembers(tx, auth.workspaceId, userId);
     if (target.role === role) return;
     if (target.role === 'manager' && managers <= 1) throw conflict(LAST_MANAGER);
@@ -93,9 +103,9 @@ export async function changeRole(auth: Authed, userId: number, role: Role, ip: s
   });
 }
 
+/** Remove a member (their calendar feeds stop opening at once). Refuses (409) to remove the last manager. */
 export async function removeMember(auth: Authed, userId: number, ip: string | null): Promise<void> {
-  const db = getDb();
-  await db.transaction(async (tx) => {
+  await inRetriedTransaction(async (tx) => {
     const { target, managers } = await lockMembers(tx, auth.workspaceId, userId);
     if (target.role === 'manager' && managers <= 1) throw conflict(LAST_MANAGER);
     await tx.delete(memberships).where(and(eq(memberships.workspaceId, auth.workspaceId), eq(memberships.userId, userId)));
@@ -128,7 +138,7 @@ export async function findInvitation(token: string): Promise<InvitationView | nu
 export async function acceptInvitation(
   token: string,
   input: { signedInUserId: number | null; name?: string; password?: string; ip: string; userAgent: string | null },
-): Promise<{ workspaceId: number; userId: number; newSession: { id: string } | null }> {
+): Promise<{ workspaceId: number; userId: number; newSession: { id: string; token: string } | null }> {
   const inv = await findInvitation(token);
   if (!inv) throw new HttpError(410, 'link_expired', 'This invitation has expired, been withdrawn or already been used. Ask the distillery manager for a new one.');
   const db = getDb();
@@ -154,7 +164,7 @@ export async function acceptInvitation(
     await audit({ workspaceId: inv.workspaceId, userId: uid, action: 'member.invitation_accepted', entityType: 'invitation', entityId: inv.id, details: { email: inv.email, role: inv.role }, ip: input.ip }, tx);
     return uid;
   });
-  let newSession: { id: string } | null = null;
+  let newSession: { id: string; token: string } | null = null;
   if (!existing) newSession = await createSession(userId, inv.workspaceId, input.userAgent);
   return { workspaceId: inv.workspaceId, userId, newSession };
 }
@@ -212,15 +222,3 @@ export async function listAudit(workspaceId: number, f: AuditFilters): Promise<{
   const actions = (await db.selectDistinct({ action: auditLog.action }).from(auditLog).where(eq(auditLog.workspaceId, workspaceId)).orderBy(asc(auditLog.action))).map((r) => r.action);
   return { rows: rows.slice(0, AUDIT_PAGE_SIZE), page, hasMore: rows.length > AUDIT_PAGE_SIZE, actions };
 }
-
-// --- Development mailbox -----------------------------------------------------
-
-/** Only messages addressed to this workspace's members or pending invitees. */
-export async function mailForWorkspace(workspaceId: number, all: StoredMail[]): Promise<StoredMail[]> {
-  const db = getDb();
-  const memberEmails = (await db.select({ email: users.email }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(eq(memberships.workspaceId, workspaceId))).map((r) => r.email);
-  const invitees = (await db.select({ email: invitations.email }).from(invitations).where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.revokedAt)))).map((r) => r.email);
-  const allowed = new Set([...memberEmails, ...invitees].map((e) => e.toLowerCase()));
-  return all.filter((m) => m.to.length > 0 && m.to.every((t) => allowed.has(t.toLowerCase())));
-}
-

@@ -11,7 +11,7 @@ import {
   troubleRates, utilisationByStillWeek, weeksIn, yieldPerTonne,
   type AccuracyMonth, type AccuracyPoint, type CycleRow, type ThroughputWeek, type TroubleRate, type UtilisationRow, type YieldRow,
 } from '../lib/reports';
-import { addDaysYmd, wallClock, zonedDateTime, type FermentState, type TimeRange } from '../lib/schedule';
+import { addDaysYmd, isPlanningDate, PLANNING_YEARS, wallClock, zonedDateTime, type FermentState, type TimeRange } from '../lib/schedule';
 import { getForecasts, type ForecastSummary } from './forecasts';
 import { invalid } from './http';
 import { expectedForStripping, fermentLinesFor } from './outcomes';
@@ -26,7 +26,7 @@ const LOOKBACK_DAYS = 21;
 /** Ferments pitched up to this long before the range can finish inside it. */
 const FERMENT_LOOKBACK_DAYS = 60;
 
-const ymd = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date as YYYY-MM-DD.');
+const ymd = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date as YYYY-MM-DD.').refine(isPlanningDate, `Use a real date between ${PLANNING_YEARS.min} and ${PLANNING_YEARS.max}.`);
 export const reportQuerySchema = z.object({
   from: ymd.optional(),
   to: ymd.optional(),

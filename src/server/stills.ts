@@ -4,12 +4,12 @@ import { z } from 'zod';
 import { getDb } from '../db/client';
 import { runs, stillClosures, stills, STILL_KINDS, RUN_TYPES } from '../db/schema';
 import type { BoardStill } from '../lib/board';
-import type { RunType } from '../lib/schedule';
+import { isPlanningDate, type RunType } from '../lib/schedule';
 import { audit } from './audit';
 import { invalid, notFound } from './http';
 
 const hm = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$|^24:00$/, 'Use HH:MM (00:00 to 24:00).');
-const ymd = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-24.');
+const ymd = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-24.').refine(isPlanningDate, 'Use a real date, like 2026-12-24.');
 
 export const operatingHoursSchema = z
   .array(z.object({ weekday: z.number().int().min(0).max(6), open: hm, close: hm }))

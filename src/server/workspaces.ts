@@ -42,3 +42,17 @@ export async function roleIn(userId: number, workspaceId: number): Promise<Role 
     .where(and(eq(memberships.userId, userId), eq(memberships.workspaceId, workspaceId))).limit(1);
   return row?.role ?? null;
 }
+
+/** True when the person belongs to the demo distillery (whose sign-ins are published). */
+export async function isDemoMember(userId: number): Promise<boolean> {
+  const [row] = await getDb().select({ id: workspaces.id }).from(memberships)
+    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
+    .where(and(eq(memberships.userId, userId), eq(workspaces.isDemo, true))).limit(1);
+  return !!row;
+}
+
+/** How many demo distilleries this database holds (a production start warns when it is not 0). */
+export async function countDemoWorkspaces(): Promise<number> {
+  const rows = await getDb().select({ id: workspaces.id }).from(workspaces).where(eq(workspaces.isDemo, true));
+  return rows.length;
+}

@@ -1,7 +1,7 @@
 /**
  * Plateau on a three-node MariaDB Galera cluster with one app instance per node
  * (started by scripts/test-cluster.sh). Row locks are node-local on Galera, so these tests
- * prove the booking guarantee and the outbox claims hold across nodes, and that a node can
+ * prove the booking guarantee, the last-manager rule and the outbox claims hold across nodes, and that a node can
  * leave and rejoin without losing anything.
  */
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
@@ -117,6 +117,41 @@ describe.runIf(APPS.length >= 2 && NODES.length === 3)('Plateau on a Galera clus
     await waitForSync();
     await new Promise((r) => setTimeout(r, FINGERPRINT_TTL_MS + 300));
     expect(await startOn(planners[1]!)).toBe(day(62, 8).toISOString());
+  });
+
+  it('keeps a manager when the two managers are demoted at the same moment through instances on different nodes', async () => {
+    const w = await createTestWorkspace('Cluster managers', { timeZone: 'UTC' });
+    await waitForSync();
+    const first = await new Client(APPS[0]!).signIn(w.users.manager.email);
+    expect((await first.patch(`/api/members/${w.users.planner.id}`, { role: 'manager' })).status).toBe(200);
+    await waitForSync();
+    const second = await new Client(APPS[1]!).signIn(w.users.planner.email); // a manager now, on another node
+    const ids = { first: w.users.manager.id, second: w.users.planner.id };
+    const managersPerNode = () => Promise.all(NODES.map((_, i) => onNode(i, async (c) => {
+      await c.query('SET SESSION wsrep_sync_wait = 1');
+      const [rows] = await c.query("SELECT COUNT(*) AS n FROM memberships WHERE workspace_id = ? AND role = 'manager'", [w.workspaceId]);
+      return Number((rows as Array<{ n: number }>)[0]!.n);
+    })));
+    const losers: number[] = [];
+    const rounds = 10;
+    for (let round = 0; round < rounds; round++) {
+      const [r1, r2] = await Promise.all([
+        first.patch(`/api/members/${ids.second}`, { role: 'distiller' }),
+        second.patch(`/api/members/${ids.first}`, { role: 'distiller' }),
+      ]);
+      const statuses = [r1.status, r2.status];
+      expect(statuses.filter((s) => s === 200), `round ${round}: ${JSON.stringify([r1.json, r2.json])}`).toHaveLength(1);
+      const loser = r1.status === 200 ? r2 : r1;
+      expect([403, 409]).toContain(loser.status);
+      losers.push(loser.status);
+      await waitForSync();
+      expect(await managersPerNode()).toEqual(NODES.map(() => 1));
+      const winner = r1.status === 200 ? first : second;
+      const demoted = r1.status === 200 ? ids.second : ids.first;
+      expect((await winner.patch(`/api/members/${demoted}`, { role: 'manager' })).status).toBe(200);
+      await waitForSync();
+    }
+    figures.raceDemotions = { rounds, loserStatuses: losers, refusedByLastManagerRule: losers.filter((s) => s === 409).length };
   });
 
   it('sends every outbox message exactly once with a sender on every instance', async () => {

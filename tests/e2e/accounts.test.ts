@@ -55,7 +55,7 @@ describe('account pages in Chromium', () => {
     const reset = newToken();
     await db.insert(t.emailTokens).values({ purpose: 'password_reset', tokenHash: hashToken(reset), email: ws.users.staff.email, userId: ws.users.staff.id, expiresAt: new Date(Date.now() + 600_000) });
     const confirm = newToken();
-    await db.insert(t.emailTokens).values({ purpose: 'signup_confirm', tokenHash: hashToken(confirm), email: `founder-${Date.now()}@test.example`, payload: { name: 'Founder', workspaceName: 'Juniper Hill Distillery', passwordHash: 'x' }, expiresAt: new Date(Date.now() + 600_000) });
+    await db.insert(t.emailTokens).values({ purpose: 'signup_confirm', tokenHash: hashToken(confirm), email: `founder-${Date.now()}@test.example`, payload: { name: 'Founder', workspaceName: 'Juniper Hill Distillery' }, expiresAt: new Date(Date.now() + 600_000) });
     const invite = newToken();
     await db.insert(t.invitations).values({ workspaceId: ws.workspaceId, email: `invitee-${Date.now()}@test.example`, role: 'distiller', tokenHash: hashToken(invite), invitedBy: ws.users.manager.id, expiresAt: new Date(Date.now() + 86400_000) });
     for (const [path, name, heading] of [

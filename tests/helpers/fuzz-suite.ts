@@ -96,7 +96,7 @@ async function send(route: string, method: Method, fx: Fixture, inp: Input, base
   for (const [k, v] of Object.entries(inp.headers ?? {})) if (k !== 'x-junk-cookie') headers[k] = v;
   if (inp.who === 'manager') {
     const session = await createSession(fx.a.users.manager.id, fx.a.workspaceId, 'fuzz');
-    headers.cookie = `plateau_session=${session.id}`;
+    headers.cookie = `plateau_session=${session.token}`;
   } else if (inp.headers?.['x-junk-cookie']) headers.cookie = inp.headers['x-junk-cookie'];
   let body: string | undefined;
   if (method !== 'GET') {

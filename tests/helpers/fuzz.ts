@@ -273,3 +273,145 @@ export function discoverApiRoutes(): Array<{ route: string; method: Method }> {
   }
   return out.sort((a, b) => a.route.localeCompare(b.route) || a.method.localeCompare(b.method));
 }
+
+// ---------------------------------------------------------------- pages (tests/helpers/fuzz-pages-suite.ts)
+
+/**
+ * Reflection markers: if one of these ever comes back with its `<` unescaped, a page printed
+ * input as HTML. Each carries `pfz` so the check cannot match the product's own markup.
+ */
+export const REFLECTION_MARKERS: readonly string[] = ['<script>pfz(1)</script>', '"><script>pfz(2)</script>', "'><svg onload=pfz(3)>", '</textarea><img src=x onerror=pfz(4)>', '</script><script>pfz(5)</script>'];
+const MARKER_RAW = /<script>pfz\(|<svg onload=pfz\(|<img src=x onerror=pfz\(/;
+
+/** Values for a [param] of a page: huge, unicode, path traversal, negative, float, 20 digits, markers (already URL-encoded). */
+export const hostilePageParam: fc.Arbitrary<string> = fc.oneof(
+  { weight: 3, arbitrary: hostileId },
+  {
+    weight: 3,
+    arbitrary: fc.constantFrom(
+      '-1', '-99999999999', '-0', '1.5', '0.1', '1e3', '1e400', '99999999999999999999', '12345678901234567890', '00000000000000000001', '9'.repeat(2000), 'A'.repeat(5000),
+      '..', '%2e%2e', '..%2F..%2F..%2Fetc%2Fpasswd', '%2e%2e%2f%2e%2e%2fetc%2fpasswd', '%252e%252e%252f', '....%2F%2F', '..%5C..%5Cwindows', '%2F', '%5C', '~root', '%00', '%ff%fe',
+      '%E1%BA%9E', '%D7%A9%D7%9C%D7%95%D7%9D', '%E2%80%AE%E2%80%AD', '%EF%BB%BF1', '%F0%9F%8D%BA'.repeat(50), '%C0%AE%C0%AE', '%ED%A0%80',
+    ),
+  },
+  { weight: 2, arbitrary: fc.constantFrom(...REFLECTION_MARKERS).map(enc) },
+  { weight: 1, arbitrary: fc.string({ unit: 'grapheme', minLength: 1, maxLength: 40 }).map(enc) },
+  { weight: 1, arbitrary: fc.integer({ min: 1, max: 200 }).map((n) => enc('ẞ🥃'.repeat(n))) },
+);
+
+/** A junk date or number: what a date or page filter gets typed into it. */
+const JUNK_FILTER_VALUES = ['2025-02-30', '2025-13-01', '0000-00-00', '9999-12-31', '+275760-09-13', '-000001-01-01', '2025-1-1', '20250101', 'today', '1e309', '-1', '0', '1.5', '99999999999999999999', 'NaN', 'Infinity', ''];
+
+/** Every value the deterministic sweep gives each query parameter of a page, one parameter at a time. */
+export const JUNK_QUERY_VALUES: readonly string[] = [
+  ...JUNK_FILTER_VALUES, '-Infinity', '1e400', '-1e400', '0x1f', ' 1', '1 ', '١٠٥٠', '9007199254740993', 'true', 'null', '[]', '%', '..%2F..', '0001-01-01', '2025-12-31T25:00', 'ẞ<'.repeat(1000),
+  ...REFLECTION_MARKERS.slice(0, 2),
+];
+
+/** One query value: a marker, a word the page itself knows (so a branch that echoes input is reached), or junk. */
+export function hostileQueryValue(literals: readonly string[]): fc.Arbitrary<string> {
+  const options: Array<fc.WeightedArbitrary<string>> = [
+    { weight: 3, arbitrary: fc.constantFrom(...REFLECTION_MARKERS) },
+    { weight: 2, arbitrary: fc.constantFrom(...JUNK_FILTER_VALUES) },
+    { weight: 3, arbitrary: hostileString.filter((s) => s.length < 3000) },
+    { weight: 1, arbitrary: hostileNumber.map(String) },
+    // Long, but a URL that still fits Node's 16 kB header limit: reaches the page.
+    { weight: 1, arbitrary: fc.integer({ min: 500, max: 1200 }).map((n) => 'ẞ<'.repeat(n)) },
+  ];
+  if (literals.length) options.push({ weight: 3, arbitrary: fc.constantFrom(...literals) });
+  return fc.oneof(...options);
+}
+
+/**
+ * A hostile query string for a page that reads `keys`: every key the page reads set to a marker,
+ * one of its own words or junk; extra junk pairs; a repeated key; array-style keys; now and then a
+ * URL too long for the server to accept at all (414/431 are fine answers).
+ */
+export function hostilePageQuery(keys: readonly string[], literals: readonly string[]): fc.Arbitrary<string> {
+  const allKeys = keys.length ? keys : ['q'];
+  const value = hostileQueryValue(literals);
+  const pair = (k: fc.Arbitrary<string>) => fc.tuple(k, value).map(([k2, v]) => `${enc(k2)}=${enc(v)}`);
+  const ownKeys = fc.tuple(...allKeys.map((k) => fc.option(pair(fc.constant(k)), { freq: 4 }))).map((ps) => ps.filter((p): p is string => p !== null));
+  const extra = fc.array(pair(fc.oneof(fc.constantFrom(...allKeys).map((k) => `${k}[]`), fc.constantFrom(...allKeys).map((k) => `${k}[0]`), fc.constantFrom('__proto__', 'constructor', '', '%', 'a b'), fc.string({ maxLength: 8 }))), { maxLength: 3 });
+  const repeated = fc.option(fc.tuple(fc.constantFrom(...allKeys), fc.array(value, { minLength: 2, maxLength: 30 })).map(([k, vs]) => vs.map((v) => `${enc(k)}=${enc(v)}`).join('&')), { freq: 2 });
+  const shape = fc.constantFrom<'plain' | 'bare' | 'odd'>('plain', 'plain', 'plain', 'bare', 'odd');
+  return fc.tuple(ownKeys, extra, repeated, shape, fc.integer({ min: 0, max: 40 })).map(([own, ex, rep, sh, huge]) => {
+    let parts = [...own, ...ex, ...(rep ? [rep] : [])];
+    // Keys with no "=", empty pairs, stray separators.
+    if (sh === 'bare') parts = parts.map((p) => p.split('=')[0]!);
+    if (sh === 'odd') parts = ['', ...parts, '&', '=', '=='];
+    if (huge === 0) parts.push(`${enc(allKeys[0]!)}=${'x'.repeat(40_000)}`);
+    return parts.join('&');
+  });
+}
+
+/** Cookie headers that are not what the app sets: junk sessions, broken syntax, duplicates, huge. */
+export const hostileCookie: fc.Arbitrary<string> = fc.oneof(
+  fc.constantFrom('plateau_session=', 'plateau_session=x', 'plateau_session=%ZZ', 'plateau_session="quoted"', 'plateau_session=a; plateau_session=b', ';;;', '=', '==;=', 'plateau_session', 'a=b; a=c; a=',
+    `plateau_session=${'0'.repeat(64)}`, `plateau_session=${'A'.repeat(4000)}`, 'theme=dark%00; lang=%E2%80%AE', `junk=${enc('<script>pfz(6)</script>')}`, 'plateau_session=..%2F..%2Fetc%2Fpasswd'),
+  hostileString.map((s) => `plateau_session=${enc(s).slice(0, 400)}`),
+  fc.string({ maxLength: 60 }).map((s) => latin1(s).replace(/[\r\n]/g, ' ')),
+);
+
+/** Accept and Accept-Language headers a browser would never send, plus junk cookies (sent beside a real session when there is one). */
+export const hostilePageHeaders: fc.Arbitrary<{ headers: Record<string, string>; cookie: string | null; cookieFirst: boolean }> = fc.record({
+  accept: fc.constantFrom('text/html', 'text/html,application/xhtml+xml,application/xml;q=0.9,*/*;q=0.8', 'application/json', '*/*', 'image/png', 'text/calendar', ';;;', 'text/html;q=NaN', '*/*;q=-1', 'x'.repeat(3000), ''),
+  'accept-language': fc.constantFrom('', 'en-GB', 'de-DE,de;q=0.9,en;q=0.8', 'xx-INVALID-*', '*;q=NaN', '*', 'zh-Hant-TW-u-nu-hanidec', 'en-GB;q=2, fr;q=-1', 'a,'.repeat(2000), '\u00e9'),
+  'accept-encoding': fc.constantFrom('', 'gzip', 'br;q=1.1', 'identity;q=0', 'x'.repeat(200)),
+  'user-agent': fc.constantFrom('', 'Mozilla/5.0', '() { :; }; echo pfz', 'x'.repeat(2000)),
+  cookie: fc.option(hostileCookie, { freq: 2 }),
+  cookieFirst: fc.boolean(),
+}).map(({ cookie, cookieFirst, ...h }) => {
+  const headers: Record<string, string> = {};
+  // Header values must be latin-1 for fetch; a non-latin-1 value is what latin1() makes of it.
+  for (const [k, v] of Object.entries(h)) if (v !== '') headers[k] = latin1(v);
+  return { headers, cookie, cookieFirst };
+});
+
+/** An answer from a page, with the headers the judgement needs. */
+export interface PageAnswer extends Answer { csp: string | null; location: string | null }
+
+/**
+ * Lines only a stack trace, a compiler or a driver would put in an answer: a stack frame, a
+ * source position (.ts:12), an error naming a file path, a dependency folder, this checkout's path.
+ */
+const PAGE_LEAK_PATTERNS: RegExp[] = [
+  /\bat (?:async )?[\w.$<>[\] ]*\(?(?:file:\/\/|node:|\/)[^\s)]*:\d+/, /^\s*at [^\n]+:\d+:\d+\)?\s*$/m,
+  /[\w-]\.(?:m?ts|tsx|astro):\d/, /\b\w*Error:[^<\n]{0,300}?(?:\/|[A-Z]:\\)[\w.@-]+[/\\][\w.@-]/, /node_modules/,
+  /ER_[A-Z_]{4,}/, /You have an error in your SQL syntax/i, /ECONNREFUSED/, /TypeError:|ReferenceError:|RangeError:|SyntaxError: Unexpected/, /ZodError/,
+];
+
+/**
+ * What a development server adds to every page and a production build does not: stylesheets
+ * inlined with their file id (their url(/node_modules/...) fonts), module URLs, source locations
+ * for the dev toolbar. Dropped before looking for leaks; a stack trace never sits there.
+ */
+function withoutAssetReferences(html: string): string {
+  return html
+    .replace(/<style\b[^>]*>[\s\S]*?<\/style>/g, '<style></style>')
+    .replace(/\s(?:src|href|data-vite-dev-id|data-astro-source-file|data-astro-source-loc|component-url|renderer-url|before-hydration-url)="[^"]*"/g, '');
+}
+
+/**
+ * Problems with one page answer (empty when it is fine). `base` is the app's own origin.
+ * `ownStatus` is the status an error page answers when opened by its own path (Astro gives the
+ * /500 page status 500 by its name); only that exact status is then allowed, nothing else.
+ */
+export function judgePage(ans: PageAnswer, base: string, opts: { ownStatus?: number } = {}): string[] {
+  const problems: string[] = [];
+  if (ans.status >= 500 && ans.status !== opts.ownStatus) problems.push(`status ${ans.status}`);
+  if (ans.status < 200) problems.push(`unexpected status ${ans.status}`);
+  if (ans.status >= 300 && ans.status < 400 && ans.status !== 304) {
+    // A redirect stays on this site: a path ("/x", never "//host" or "/\host") or our own origin.
+    const loc = ans.location ?? '';
+    const own = (loc.startsWith('/') && !/^\/[/\\]/.test(loc)) || loc === base || loc.startsWith(`${base}/`);
+    if (!own) problems.push(`redirect to ${loc ? `another site: ${loc.slice(0, 120)}` : 'nowhere (no Location)'}`);
+  }
+  const text = withoutAssetReferences(ans.text);
+  for (const re of PAGE_LEAK_PATTERNS) if (re.test(text)) { problems.push(`answer leaks internals (${re}): …${text.slice(Math.max(0, (text.match(re)?.index ?? 0) - 60), (text.match(re)?.index ?? 0) + 100)}…`); break; }
+  if (text.includes(process.cwd())) problems.push('answer names the server\'s checkout path');
+  if (ans.contentType.includes('text/html') && !/default-src/.test(ans.csp ?? '')) problems.push(`HTML answer without a Content-Security-Policy (${ans.csp ?? 'none'})`);
+  const raw = ans.text.match(MARKER_RAW);
+  if (raw) problems.push(`input reflected unescaped: …${ans.text.slice(Math.max(0, raw.index! - 80), raw.index! + 60)}…`);
+  return problems;
+}

@@ -1,6 +1,6 @@
 /**
  * Global setup for integration and e2e tests: uses the app that `npm test` started
- * (PLATEAU_TEST_URL), or builds nothing and starts dist/server/entry.mjs itself when run
+ * (PLATEAU_TEST_URL), or builds nothing and starts the built app (scripts/serve.ts) itself when run
  * alone (`npx vitest run --project integration` after `npm run build`).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -17,7 +17,7 @@ export async function setup(): Promise<void> {
   process.env.DB_NAME ??= 'plateau_test';
   if (await healthy(url)) return;
   const port = new URL(url).port;
-  child = spawn(process.execPath, ['dist/server/entry.mjs'], { env: { ...process.env, HOST: '127.0.0.1', PORT: port, PLATEAU_MODE: 'test' }, stdio: 'ignore' });
+  child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], { env: { ...process.env, HOST: '127.0.0.1', PORT: port, PLATEAU_MODE: 'test' }, stdio: 'ignore' });
   for (let i = 0; i < 100 && !(await healthy(url)); i++) await new Promise((r) => setTimeout(r, 200));
 }
 

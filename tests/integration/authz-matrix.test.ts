@@ -58,7 +58,7 @@ const key = (route: string, method: string) => `${method} ${route}`;
 async function clientFor(userId: number, workspaceId: number): Promise<Client> {
   const session = await createSession(userId, workspaceId, 'authz matrix');
   const c = new Client();
-  c.cookie = `plateau_session=${session.id}`;
+  c.cookie = `plateau_session=${session.token}`;
   return c;
 }
 

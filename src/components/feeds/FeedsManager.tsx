@@ -11,7 +11,12 @@ export interface FeedRowJson {
   createdAt: string;
   createdById: number | null;
   createdByName: string | null;
+  /** The creator's current role here; null once they have left. */
+  createdByRole: string | null;
   lastFetchedAt: string | null;
+  /** False once the address no longer opens (holder left, disabled, or their role no longer allows it). */
+  live: boolean;
+  stoppedBecause: string | null;
 }
 
 export interface FeedsManagerProps {
@@ -32,6 +37,20 @@ function scopeText(f: FeedRowJson): string {
   if (f.scope === 'workspace') return SCOPE_WORDS.workspace;
   if (f.scope === 'still') return `Still: ${f.stillName ?? 'removed still'}`;
   return `Runs of ${f.personName ?? 'a former member'}`;
+}
+
+interface HolderGroup { key: string; holderId: number | null; name: string; role: string | null; feeds: FeedRowJson[] }
+
+/** The manager's list: one group per person holding feeds; people still here first, by name. */
+function groupByHolder(feeds: FeedRowJson[]): HolderGroup[] {
+  const groups = new Map<string, HolderGroup>();
+  for (const f of feeds) {
+    const key = f.createdById === null ? 'none' : String(f.createdById);
+    if (!groups.has(key)) groups.set(key, { key, holderId: f.createdById, name: f.createdByName ?? 'Deleted account', role: f.createdByRole, feeds: [] });
+    groups.get(key)!.feeds.push(f);
+  }
+  const rank = (g: HolderGroup) => (g.holderId === null ? 2 : g.role === null ? 1 : 0);
+  return [...groups.values()].sort((a, b) => rank(a) - rank(b) || a.name.localeCompare(b.name, 'en'));
 }
 
 /** Create, list and revoke calendar feeds. The subscription address is shown once, right after creation. */
@@ -97,6 +116,17 @@ export default function FeedsManager(p: FeedsManagerProps) {
     } else setMessage('Could not revoke the feed. Reload the page and try again.');
   }
 
+  const row = (f: FeedRowJson) => (
+    <tr key={f.id} data-feed-id={f.id}>
+      <td className="font-semibold">{f.name}</td>
+      <td>{scopeText(f)}</td>
+      <td>{when(f.createdAt)}<span className="block text-sm text-ink-soft">by {f.createdById === p.userId ? 'you' : f.createdByName ?? 'a deleted account'}</span></td>
+      <td>{when(f.lastFetchedAt)}</td>
+      <td>{f.live ? 'Working' : <span className="font-semibold text-ember">Stopped<span className="block text-sm font-normal text-ink">{f.stoppedBecause}</span></span>}</td>
+      <td><button type="button" className="btn btn-quiet" onClick={() => revoke(f)} aria-label={`Revoke ${f.name}${p.manager && f.createdByName ? ` (${f.createdByName})` : ''}`}>Revoke</button></td>
+    </tr>
+  );
+
   return (
     <div className="flex flex-col gap-6">
       <section className="card" aria-labelledby="new-feed-h">
@@ -148,21 +178,23 @@ export default function FeedsManager(p: FeedsManagerProps) {
 
       <section aria-labelledby="feeds-h">
         <h2 id="feeds-h" className="mb-2 text-lg font-bold">{p.manager ? 'Feeds at this distillery' : 'Your feeds'}</h2>
+        {p.manager && <p className="mb-2 max-w-prose text-sm text-ink-soft">Grouped by the person who holds each feed. A feed stops working by itself when its holder leaves the distillery or their role no longer allows it; revoke it to remove it from this list.</p>}
         {feeds.length === 0 ? <p className="card text-ink-soft">No feeds yet.</p> : (
           <div className="overflow-x-auto">
             <table className="data-table w-full" data-testid="feeds-table">
-              <thead><tr><th scope="col">Name</th><th scope="col">Runs</th><th scope="col">Created</th><th scope="col">Last fetched</th><th scope="col"><span className="sr-only">Actions</span></th></tr></thead>
-              <tbody>
-                {feeds.map((f) => (
-                  <tr key={f.id}>
-                    <td className="font-semibold">{f.name}</td>
-                    <td>{scopeText(f)}</td>
-                    <td>{when(f.createdAt)}{p.manager && f.createdByName ? <span className="block text-sm text-ink-soft">by {f.createdById === p.userId ? 'you' : f.createdByName}</span> : null}</td>
-                    <td>{when(f.lastFetchedAt)}</td>
-                    <td><button type="button" className="btn btn-quiet" onClick={() => revoke(f)} aria-label={`Revoke ${f.name}`}>Revoke</button></td>
+              <thead><tr><th scope="col">Name</th><th scope="col">Runs</th><th scope="col">Created</th><th scope="col">Last fetched</th><th scope="col">Status</th><th scope="col"><span className="sr-only">Actions</span></th></tr></thead>
+              {p.manager ? groupByHolder(feeds).map((g) => (
+                <tbody key={g.key} data-testid="feed-holder">
+                  <tr>
+                    <th scope="rowgroup" colSpan={6} className="bg-ground text-left">
+                      {g.holderId === p.userId ? `${g.name} (you)` : g.name}
+                      <span className="ml-2 text-sm font-normal text-ink-soft">{g.holderId === null ? 'account deleted' : g.role === null ? 'no longer a member' : g.role}</span>
+                      <span className="ml-2 text-sm font-normal text-ink-soft">· {g.feeds.length} {g.feeds.length === 1 ? 'feed' : 'feeds'}</span>
+                    </th>
                   </tr>
-                ))}
-              </tbody>
+                  {g.feeds.map(row)}
+                </tbody>
+              )) : <tbody>{feeds.map(row)}</tbody>}
             </table>
           </div>
         )}

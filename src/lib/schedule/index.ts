@@ -18,6 +18,8 @@ export type {
 export {
   addDaysYmd,
   isClosedOn,
+  isPlanningDate,
+  PLANNING_YEARS,
   localDatesTouched,
   moveRunPreservingWallClock,
   offsetMinutes,

@@ -61,6 +61,18 @@ export function parseHm(hm: string): number {
   return minutes;
 }
 
+/** Years a date typed into the app may name: wide enough for any plan or record, narrow enough that date maths never leaves four-digit years. */
+export const PLANNING_YEARS = { min: 1970, max: 2199 } as const;
+
+/** True for a real calendar date 'YYYY-MM-DD' within PLANNING_YEARS (2026-02-30 and 9999-12-31 are not). */
+export function isPlanningDate(value: string | null | undefined): value is string {
+  if (!value || !/^\d{4}-\d{2}-\d{2}$/.test(value)) return false;
+  const y = Number(value.slice(0, 4));
+  if (y < PLANNING_YEARS.min || y > PLANNING_YEARS.max) return false;
+  const t = new Date(`${value}T00:00:00Z`);
+  return !Number.isNaN(t.getTime()) && t.toISOString().slice(0, 10) === value;
+}
+
 /** Add whole calendar days to a 'YYYY-MM-DD' date. */
 export function addDaysYmd(ymd: string, days: number): string {
   const [y, m, d] = parseYmd(ymd);

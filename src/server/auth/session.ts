@@ -5,6 +5,8 @@ import { asc, eq, sql } from 'drizzle-orm';
 import { getDb } from '../../db/client';
 import { memberships, sessions, users, workspaces, type Role } from '../../db/schema';
 import { toSettings, type WorkspaceSettings } from '../workspaces';
+import { cookiesMustBeSecure } from '../request';
+import { hashToken, newToken } from './tokens';
 
 /** Idle expiry: a session unused for this long ends (lucia slides it on use). */
 export const SESSION_IDLE = new TimeSpan(7, 'd');
@@ -72,15 +74,43 @@ declare module 'lucia' {
   }
 }
 
-/** Host-only, HttpOnly, SameSite=Lax; Secure whenever the request came over HTTPS. */
-export function setSessionCookie(cookies: AstroCookies, sessionId: string, secure: boolean): void {
-  cookies.set('plateau_session', sessionId, { path: '/', httpOnly: true, sameSite: 'lax', secure, maxAge: SESSION_ABSOLUTE_MS / 1000 });
+/**
+ * Whether cookies are Secure (and carry the __Host- prefix) and responses send HSTS: decided
+ * once from PUBLIC_URL's scheme, never from a header the client could send.
+ */
+export function cookiesSecure(): boolean {
+  return cookiesMustBeSecure();
 }
 
-export function clearSessionCookie(cookies: AstroCookies, secure: boolean): void {
-  cookies.set('plateau_session', '', { path: '/', httpOnly: true, sameSite: 'lax', secure, maxAge: 0 });
+/** `__Host-` binds the cookie to this exact host, path / and HTTPS (browsers enforce it). */
+export function sessionCookieName(): string {
+  return cookiesSecure() ? '__Host-plateau_session' : 'plateau_session';
 }
 
+/**
+ * The cookie holds the session token; the database holds only its SHA-256 (the session id),
+ * so a read of the sessions table does not hand out live sessions.
+ */
+export const sessionIdFor = (token: string) => hashToken(token);
+
+/** Host-only (no Domain), HttpOnly, SameSite=Lax, path /; Secure when PUBLIC_URL is https. */
+export function setSessionCookie(cookies: AstroCookies, token: string): void {
+  cookies.set(sessionCookieName(), token, { path: '/', httpOnly: true, sameSite: 'lax', secure: cookiesSecure(), maxAge: SESSION_ABSOLUTE_MS / 1000 });
+}
+
+export function clearSessionCookie(cookies: AstroCookies): void {
+  cookies.set(sessionCookieName(), '', { path: '/', httpOnly: true, sameSite: 'lax', secure: cookiesSecure(), maxAge: 0 });
+}
+
+/** The session token sent by the browser, if any (bounded: a token is 43 characters). */
+export function sessionTokenFrom(cookies: AstroCookies): string | null {
+  const value = cookies.get(sessionCookieName())?.value ?? null;
+  return value && /^[A-Za-z0-9_-]{20,100}$/.test(value) ? value : null;
+}
+
+/** A new session: a fresh 256-bit token for the cookie, stored as its hash. */
 export async function createSession(userId: number, workspaceId: number | null, userAgent: string | null) {
-  return lucia().createSession(userId, { workspaceId, createdAt: new Date(), userAgent: userAgent?.slice(0, 250) ?? null } as never);
+  const token = newToken();
+  const session = await lucia().createSession(userId, { workspaceId, createdAt: new Date(), userAgent: userAgent?.slice(0, 250) ?? null } as never, { sessionId: sessionIdFor(token) });
+  return Object.assign(session, { token });
 }

@@ -10,6 +10,7 @@ import nodemailer, { type Transporter } from 'nodemailer';
 import { getDb, type Db } from '../../db/client';
 import { mailOutbox } from '../../db/schema';
 import { env } from '../../config';
+import { announceDemoLinks } from '../mailbox';
 
 export type OutboxTx = Pick<Db, 'insert'>;
 
@@ -110,6 +111,7 @@ export async function deliverDue(opts: DeliverOptions): Promise<DeliverResult> {
       // claimed_by stays on a sent row: it names the instance that delivered it.
       await db.update(mailOutbox).set({ status: 'sent', sentAt: new Date(), claimUntil: null, lastError: null }).where(mine);
       result.sent++;
+      announceDemoLinks({ kind: row.kind, to: row.toAddress, text: row.textBody });
     } catch (err) {
       const attempts = row.attempts + 1;
       const message = (err instanceof Error ? err.message : String(err)).slice(0, 480);

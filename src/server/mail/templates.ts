@@ -76,15 +76,15 @@ export function signUpConfirmMail(v: { name: string; workspaceName: string; link
   const subject = `Confirm your address to open ${v.workspaceName} on Plateau`;
   const text = `Hello ${v.name},
 
-Confirm this address to open ${v.workspaceName} on Plateau; you will be its manager. The link works once and for ${v.hours} hours:
+Confirm this address to open ${v.workspaceName} on Plateau; you will be its manager and choose your password on the page the link opens. The link works once and for ${v.hours} hours:
 ${v.link}
 
 If you did not sign up, ignore this message and nothing will be created.`;
   const html = shell(subject, [
     `Hello ${e(v.name)},`,
-    `Confirm this address to open <strong>${e(v.workspaceName)}</strong> on Plateau; you will be its manager. The link works once and for ${v.hours} hours.`,
+    `Confirm this address to open <strong>${e(v.workspaceName)}</strong> on Plateau; you will be its manager and choose your password on the page the link opens. The link works once and for ${v.hours} hours.`,
     'If you did not sign up, ignore this message and nothing will be created.',
-  ], { label: 'Confirm and open the distillery', href: v.link });
+  ], { label: 'Confirm and choose a password', href: v.link });
   return { subject, text, html };
 }
 

@@ -7,6 +7,7 @@ import { getDb } from '../../../db/client';
 import { sessions } from '../../../db/schema';
 import { eq } from 'drizzle-orm';
 import { clientIp } from '../../../server/request';
+import { takeAttempt } from '../../../server/throttle';
 
 const Body = z.object({
   token: z.string().min(10).max(200),
@@ -16,8 +17,9 @@ const Body = z.object({
 
 /** Existing account: must be signed in as the invited address. New address: name + password here. */
 export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
+  await takeAttempt('accept_invitation', [`ip:${clientIp(ctx)}`]);
   const r = await acceptInvitation(body.token, { signedInUserId: ctx.locals.user?.id ?? null, name: body.name, password: body.password, ip: clientIp(ctx), userAgent: ctx.request.headers.get('user-agent') });
-  if (r.newSession) setSessionCookie(ctx.cookies, r.newSession.id, ctx.url.protocol === 'https:');
+  if (r.newSession) setSessionCookie(ctx.cookies, r.newSession.token);
   else if (ctx.locals.sessionId) await getDb().update(sessions).set({ workspaceId: r.workspaceId }).where(eq(sessions.id, ctx.locals.sessionId));
   return json({ ok: true, workspaceId: r.workspaceId, redirect: '/' });
 });

@@ -1,14 +1,23 @@
 import { z } from 'zod';
 import { publicRoute, json } from '../../../server/http';
-import { confirmSignUp } from '../../../server/accounts';
+import { confirmSignUp, MIN_PASSWORD } from '../../../server/accounts';
 import { setSessionCookie } from '../../../server/auth/session';
 import { clientIp } from '../../../server/request';
+import { takeAttempt } from '../../../server/throttle';
 
-const Body = z.object({ token: z.string().min(10).max(200) });
+/** The address's owner, holding the e-mailed link, chooses the password here. */
+const Body = z.object({
+  token: z.string().min(10).max(200),
+  name: z.string().trim().min(1, 'Enter your name.').max(120).optional(),
+  workspaceName: z.string().trim().min(2, 'Enter the distillery name.').max(120).optional(),
+  password: z.string().min(MIN_PASSWORD, `Use at least ${MIN_PASSWORD} characters.`).max(1000),
+});
 
-/** Following the e-mailed link opens a page; its button posts here (a GET never changes anything). */
+/** Following the e-mailed link opens a page; its form posts here (a GET never changes anything). */
 export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
-  const { session } = await confirmSignUp(body.token, { ip: clientIp(ctx), userAgent: ctx.request.headers.get('user-agent') });
-  setSessionCookie(ctx.cookies, session.id, ctx.url.protocol === 'https:');
+  // Each confirmation hashes a password (argon2): bounded per address.
+  await takeAttempt('confirm', [`ip:${clientIp(ctx)}`]);
+  const { session } = await confirmSignUp(body.token, { name: body.name, workspaceName: body.workspaceName, password: body.password }, { ip: clientIp(ctx), userAgent: ctx.request.headers.get('user-agent') });
+  setSessionCookie(ctx.cookies, session.token);
   return json({ ok: true, redirect: '/settings' });
 });

@@ -2,11 +2,19 @@ import { z } from 'zod';
 import { publicRoute, json } from '../../../server/http';
 import { requestPasswordReset } from '../../../server/accounts';
 import { clientIp } from '../../../server/request';
+import { takeAttempt } from '../../../server/throttle';
 
 const Body = z.object({ email: z.string().trim().max(254).email('Enter a valid e-mail.') });
 
-/** Same answer whether or not the address has an account. */
+/**
+ * Same answer, and the same time, whether or not the address has an account: the lookup, the
+ * token and the mail are done after the answer is sent, so nothing in the response depends on them.
+ */
 export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
-  await requestPasswordReset({ email: body.email, ip: clientIp(ctx) });
+  const ip = clientIp(ctx);
+  await takeAttempt('forgot_password', [`email:${body.email.trim().toLowerCase()}`, `ip:${ip}`]);
+  void requestPasswordReset({ email: body.email, ip }).catch((err) => {
+    console.error('[plateau] password reset request failed:', err instanceof Error ? err.message : String(err));
+  });
   return json({ ok: true, message: 'If that address has a Plateau account, a link to choose a new password is on its way. It works for 30 minutes.' }, 202);
 });

@@ -3,6 +3,7 @@ import { publicRoute, json } from '../../../server/http';
 import { resetPassword, MIN_PASSWORD } from '../../../server/accounts';
 import { clearSessionCookie } from '../../../server/auth/session';
 import { clientIp } from '../../../server/request';
+import { takeAttempt } from '../../../server/throttle';
 
 const Body = z.object({
   token: z.string().min(10).max(200),
@@ -11,7 +12,8 @@ const Body = z.object({
 
 /** Single use; every session of the person ends, including this browser's. */
 export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
+  await takeAttempt('reset_password', [`ip:${clientIp(ctx)}`]);
   await resetPassword(body.token, body.password, { ip: clientIp(ctx) });
-  clearSessionCookie(ctx.cookies, ctx.url.protocol === 'https:');
+  clearSessionCookie(ctx.cookies);
   return json({ ok: true, message: 'Your password is changed and every device is signed out. Sign in with the new password.', redirect: '/sign-in' });
 });

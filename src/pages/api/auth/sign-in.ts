@@ -2,8 +2,10 @@ import type { APIRoute } from 'astro';
 import { z } from 'zod';
 import { signIn } from '../../../server/accounts';
 import { setSessionCookie } from '../../../server/auth/session';
-import { errorResponse, json, jsonError, zodFields, HttpError, readForm } from '../../../server/http';
+import { errorResponse, json, jsonError, zodFields, HttpError, readBody } from '../../../server/http';
 import { clientIp } from '../../../server/request';
+import { safeNextPath } from '../../../lib/web';
+import { env } from '../../../config';
 
 const Body = z.object({
   email: z.string().trim().min(3, 'Enter your e-mail.').max(254).email('Enter a valid e-mail.'),
@@ -13,17 +15,17 @@ const Body = z.object({
 
 /** Accepts JSON (islands, tests) or a plain form post (the sign-in page works without JS). */
 export const POST: APIRoute = async (ctx) => {
-  const isForm = (ctx.request.headers.get('content-type') ?? '').includes('application/x-www-form-urlencoded');
+  const isForm = /application\/x-www-form-urlencoded|multipart\/form-data/.test(ctx.request.headers.get('content-type') ?? '');
   try {
-    const raw = isForm ? Object.fromEntries(await readForm(ctx.request)) : await ctx.request.json().catch(() => null);
+    const { raw } = await readBody(ctx.request);
     const parsed = Body.safeParse(raw);
     if (!parsed.success) {
       if (isForm) return ctx.redirect('/sign-in?error=invalid', 303);
       return jsonError(400, 'invalid', 'Check the highlighted fields.', zodFields(parsed.error));
     }
     const { session } = await signIn({ ...parsed.data, ip: clientIp(ctx), userAgent: ctx.request.headers.get('user-agent') });
-    setSessionCookie(ctx.cookies, session.id, ctx.url.protocol === 'https:');
-    const next = parsed.data.next && parsed.data.next.startsWith('/') && !parsed.data.next.startsWith('//') ? parsed.data.next : '/';
+    setSessionCookie(ctx.cookies, session.token);
+    const next = safeNextPath(parsed.data.next, env().PUBLIC_URL);
     return isForm ? ctx.redirect(next, 303) : json({ ok: true, next });
   } catch (err) {
     if (err instanceof HttpError && isForm) {

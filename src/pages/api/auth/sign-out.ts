@@ -5,7 +5,7 @@ import { errorResponse, json } from '../../../server/http';
 export const POST: APIRoute = async (ctx) => {
   try {
     if (ctx.locals.sessionId) await lucia().invalidateSession(ctx.locals.sessionId);
-    clearSessionCookie(ctx.cookies, ctx.url.protocol === 'https:');
+    clearSessionCookie(ctx.cookies);
     const wantsJson = (ctx.request.headers.get('accept') ?? '').includes('application/json');
     // The board is cached by the browser for revalidation (private, no-cache): on a shared
     // tablet, signing out empties this site's HTTP cache too.

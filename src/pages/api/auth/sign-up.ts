@@ -1,17 +1,22 @@
 import { z } from 'zod';
 import { publicRoute, json } from '../../../server/http';
-import { requestSignUp, MIN_PASSWORD } from '../../../server/accounts';
+import { requestSignUp } from '../../../server/accounts';
 import { clientIp } from '../../../server/request';
+import { takeAttempt } from '../../../server/throttle';
 
+/** No password here: it is chosen on the page the confirmation link opens, by the address's owner. */
 const Body = z.object({
   workspaceName: z.string().trim().min(2, 'Enter the distillery name.').max(120),
   name: z.string().trim().min(1, 'Enter your name.').max(120),
   email: z.string().trim().max(254).email('Enter a valid e-mail.'),
-  password: z.string().min(MIN_PASSWORD, `Use at least ${MIN_PASSWORD} characters.`).max(1000),
+  password: z.undefined({ error: 'Choose your password on the page the confirmation link opens, not here.' }).optional(),
 });
 
 /** Always the same answer, so it never reveals whether the address already has an account. */
 export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
-  await requestSignUp({ ...body, ip: clientIp(ctx) });
-  return json({ ok: true, message: `Check ${body.email.trim().toLowerCase()} for a link to confirm your address.` }, 202);
+  const ip = clientIp(ctx);
+  // Each sign-up mails an address anyone may type: a few per address and per e-mail an hour.
+  await takeAttempt('sign_up', [`email:${body.email.trim().toLowerCase()}`, `ip:${ip}`]);
+  await requestSignUp({ ...body, ip });
+  return json({ ok: true, message: `Check ${body.email.trim().toLowerCase()} for a link to confirm your address; you choose your password on the page it opens.` }, 202);
 });

@@ -30,6 +30,6 @@ export const PATCH = route({ action: 'settings.manage', body: SettingsBody }, as
 export const DELETE = route({ action: 'settings.manage', body: z.object({ confirmName: z.string().max(200) }) }, async ({ ctx, auth, body }) => {
   await deleteWorkspace(auth, body.confirmName, clientIp(ctx));
   const others = ctx.locals.memberships.filter((m) => m.workspaceId !== auth.workspaceId);
-  if (!others.length) clearSessionCookie(ctx.cookies, ctx.url.protocol === 'https:');
+  if (!others.length) clearSessionCookie(ctx.cookies);
   return json({ ok: true, message: 'The distillery and all its data are deleted.', redirect: others.length ? '/' : '/sign-in' });
 });
