@@ -62,10 +62,10 @@ describe('first-order decay to a residual with lag (common empirical model; chec
   });
 });
 
-describe('laboratory series (Valle et al., BEER 2024, BSD-2-Clause; published fit in data/ferments/SOURCES.md)', () => {
+describe('laboratory series (Valle et al., BEER 2024, BSD-2-Clause; data and licence in tests/fixtures/ferments/valle2024-mezcal/)', () => {
   // Mean total sugar (glucose + fructose) of the three replicates, g/L, every 8 h.
   const csv = readFileSync(
-    fileURLToPath(new URL('../../../shared/data/ferments/valle2024-mezcal/data.csv', import.meta.url)),
+    fileURLToPath(new URL('../fixtures/ferments/valle2024-mezcal/data.csv', import.meta.url)),
     'utf8',
   );
   const rows = csv
@@ -75,7 +75,7 @@ describe('laboratory series (Valle et al., BEER 2024, BSD-2-Clause; published fi
   const t = rows.map((r) => r[0]);
   const y = rows.map((r) => (r[4] + r[5] + r[6] + r[7] + r[8] + r[9]) / 3);
 
-  it('reproduces the published four-parameter logistic fit (Si 121.1, Se 4.64, B 0.282 /h, M 17.0 h, RMS 0.89)', () => {
+  it('fits the real series with a four-parameter logistic: Si 121.1, Se 4.64, B 0.282 /h, M 17.0 h, RMS 0.89 [computed; the paper fits ODE models, not this]', () => {
     const fit = fitModel('logistic', { t, y, w: t.map(() => 1) });
     expect(fit).not.toBeNull();
     const [si, se, lnB, m] = fit!.theta;
