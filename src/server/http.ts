@@ -3,6 +3,8 @@ import { z, type ZodType } from 'zod';
 import { can, type Action } from './authz';
 import type { Role } from '../db/schema';
 import { isDbUnavailable } from './db-errors';
+import { clientIp } from './request';
+import type { Ctx, UserCtx } from './context';
 
 /** The one JSON error shape: { error: { code, message, fields? } }. */
 export function jsonError(status: number, code: string, message: string, fields?: Record<string, string>, headers: Record<string, string> = {}): Response {
@@ -55,38 +57,73 @@ export interface Authed {
   timeZone: string;
 }
 
-type Handler<B, Q> = (args: { ctx: APIContext; auth: Authed; body: B; query: Q; params: Record<string, string | undefined> }) => Promise<Response>;
+type Params = Record<string, string | undefined>;
+
+/** What a route's handler receives, by the route's `auth`. */
+export type RouteArgs<A, B, Q> = { req: APIContext; body: B; query: Q; params: Params } & (
+  A extends 'public' ? { ctx?: undefined } : A extends 'user' ? { me: UserCtx } : { ctx: Ctx }
+);
+
+export interface RouteOptions<A extends Action | 'user' | 'public', B, Q> {
+  /** An action from authz.ts (a role in this workspace may take it), 'user' (any signed-in person), or 'public'. */
+  auth: A;
+  body?: ZodType<B>;
+  query?: ZodType<Q>;
+  /** Body cap in bytes (default MAX_JSON_BYTES); past it the answer is 413. */
+  maxBytes?: number;
+}
+
+type Handler<B, Q> = (args: { ctx: APIContext; auth: Authed; body: B; query: Q; params: Params }) => Promise<Response>;
 
 /**
  * Every API route goes through here, in a fixed order:
- * 401 no session -> 403 role -> 400 invalid input -> (handler: 404 / 409 / 2xx).
- * Thrown HttpErrors become their status; a lost database becomes 503 with Retry-After;
- * anything else is a 500 without a stack trace.
+ * 401 no session -> 403 role -> 400 invalid input (413 past the body cap) -> handler
+ * (404 / 409 / 2xx). Thrown HttpErrors become their status; a lost database becomes 503
+ * with Retry-After; anything else is a 500 without a stack trace.
+ *
+ *   export const POST = route({ auth: 'readings.write', body: ReadingBody }, async ({ ctx, body, params }) => ...)
+ *   export const PATCH = route({ auth: 'user', body: NameBody }, async ({ me, body }) => ...)
+ *   export const POST = route({ auth: 'public', body: SignUpBody }, async ({ req, body }) => ...)
  */
-export function route<B = undefined, Q = undefined>(
-  opts: { action: Action; body?: ZodType<B>; query?: ZodType<Q> },
-  handler: Handler<B, Q>,
-): APIRoute {
-  return async (ctx) => {
+export function route<A extends Action | 'user' | 'public', B = undefined, Q = undefined>(
+  opts: RouteOptions<A, B, Q>,
+  handler: (args: RouteArgs<A, B, Q>) => Promise<Response>,
+): APIRoute;
+/** @deprecated the older shape: `{ action }` and an `auth: Authed` argument. */
+export function route<B = undefined, Q = undefined>(opts: { action: Action; body?: ZodType<B>; query?: ZodType<Q> }, handler: Handler<B, Q>): APIRoute;
+export function route(opts: { auth?: Action | 'user' | 'public'; action?: Action; body?: ZodType<unknown>; query?: ZodType<unknown>; maxBytes?: number }, handler: (args: never) => Promise<Response>): APIRoute {
+  const call = handler as unknown as (args: Record<string, unknown>) => Promise<Response>;
+  return async (req) => {
     try {
-      const { user, workspace, role } = ctx.locals;
-      if (!user || !workspace || !role) return jsonError(401, 'unauthenticated', 'Sign in first.');
-      if (!can(role, opts.action)) return jsonError(403, 'forbidden', 'Your role cannot do this.');
-      let query = undefined as Q;
+      const { user, workspace, role, sessionId } = req.locals;
+      const auth = opts.auth ?? opts.action!;
+      let who: Record<string, unknown> = {};
+      if (auth === 'user') {
+        if (!user || !sessionId) return jsonError(401, 'unauthenticated', 'Sign in first.');
+        who = { me: { userId: user.id, email: user.email, name: user.name, sessionId, ip: clientIp(req) } satisfies UserCtx };
+      } else if (auth !== 'public') {
+        if (!user || !workspace || !role) return jsonError(401, 'unauthenticated', 'Sign in first.');
+        if (!can(role, auth)) return jsonError(403, 'forbidden', 'Your role cannot do this.');
+        const ctx: Ctx = { ws: workspace, actor: { userId: user.id, role, ip: clientIp(req) } };
+        who = opts.auth
+          ? { ctx }
+          : { ctx: req, auth: { userId: user.id, workspaceId: workspace.id, role, timeZone: workspace.timeZone } satisfies Authed };
+      }
+      let query: unknown = undefined;
       if (opts.query) {
-        const raw = Object.fromEntries(ctx.url.searchParams.entries());
-        const parsed = opts.query.safeParse(raw);
+        const parsed = opts.query.safeParse(Object.fromEntries(req.url.searchParams.entries()));
         if (!parsed.success) return invalidResponse(parsed.error);
         query = parsed.data;
       }
-      let body = undefined as B;
+      let body: unknown = undefined;
       if (opts.body) {
-        const { raw: data } = await readBody(ctx.request, MAX_JSON_BYTES);
-        const parsed = opts.body.safeParse(data);
+        const { raw } = await readBody(req.request, opts.maxBytes ?? MAX_JSON_BYTES);
+        const parsed = opts.body.safeParse(raw);
         if (!parsed.success) return invalidResponse(parsed.error);
         body = parsed.data;
       }
-      return await handler({ ctx, auth: { userId: user.id, workspaceId: workspace.id, role, timeZone: workspace.timeZone }, body, query, params: ctx.params as Record<string, string | undefined> });
+      const params = req.params as Params;
+      return await call(opts.auth ? { req, body, query, params, ...who } : { ctx: req, body, query, params, ...who });
     } catch (err) {
       return errorResponse(err);
     }

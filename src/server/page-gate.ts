@@ -4,6 +4,7 @@ import { ACTIONS, can, type Action } from './authz';
 import { HttpError } from './http';
 import type { Role } from '../db/schema';
 import type { WorkspaceSettings } from './workspaces';
+import type { Ctx } from './context';
 
 /**
  * The page gate: pages are authorized like API routes. A page calls `pageGate(Astro, action)`
@@ -21,6 +22,8 @@ export interface PageAccess {
   user: NonNullable<App.Locals['user']>;
   workspace: WorkspaceSettings;
   role: Role;
+  /** The one caller context server functions take first (see context.ts). */
+  ctx: Ctx;
 }
 
 export type Refused = { ok: false; response: Response };
@@ -77,7 +80,7 @@ export async function pageGate(Astro: AstroGlobal, action: Action): Promise<Gate
   // Signed in but no longer a member of any distillery: their account page is all there is.
   if (!workspace || !role) return { ok: false, response: Astro.redirect('/account', 303) };
   if (!can(role, action)) return { ok: false, response: await notForYourRole(Astro, action) };
-  return { ok: true, user, workspace, role };
+  return { ok: true, user, workspace, role, ctx: { ws: workspace, actor: { userId: user.id, role, ip: Astro.clientAddress ?? 'unknown' } } };
 }
 
 /** Pages that need a session but no role (the person's own account). */

@@ -1,14 +1,14 @@
 import { z } from 'zod';
-import { json } from '../../../server/http';
-import { userRoute, updateName, listSessions } from '../../../server/accounts';
+import { route, json } from '../../../server/http';
+import { updateName, listSessions } from '../../../server/accounts';
 
 /** The signed-in person's own profile and sessions. */
-export const GET = userRoute({}, async ({ ctx, user, sessionId }) => {
-  const sessions = await listSessions(user.id, sessionId);
-  return json({ user, memberships: ctx.locals.memberships, sessions });
+export const GET = route({ auth: 'user' }, async ({ req, me }) => {
+  const sessions = await listSessions(me.userId, me.sessionId);
+  return json({ user: { id: me.userId, email: me.email, name: me.name }, memberships: req.locals.memberships, sessions });
 });
 
-export const PATCH = userRoute({ body: z.object({ name: z.string().trim().min(1, 'Enter your name.').max(120) }) }, async ({ user, body }) => {
-  await updateName(user.id, body.name);
+export const PATCH = route({ auth: 'user', body: z.object({ name: z.string().trim().min(1, 'Enter your name.').max(120) }) }, async ({ me, body }) => {
+  await updateName(me.userId, body.name);
   return json({ ok: true, message: 'Name saved.' });
 });
