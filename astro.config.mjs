@@ -15,6 +15,5 @@ export default defineConfig({
   security: { checkOrigin: false, allowedDomains: [{ hostname: '127.0.0.1' }, { hostname: 'localhost' }] },
   vite: {
     plugins: [tailwindcss()],
-    resolve: { alias: { '@': new URL('./src', import.meta.url).pathname } },
   },
 });

@@ -1,16 +1,11 @@
 import { defineConfig } from 'vitest/config';
-import { fileURLToPath } from 'node:url';
-
-const alias = { '@': fileURLToPath(new URL('./src', import.meta.url)) };
 
 export default defineConfig({
-  resolve: { alias },
   test: {
     projects: [
-      { resolve: { alias }, test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' } },
+      { test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' } },
       {
-        resolve: { alias },
-        test: {
+              test: {
           name: 'integration',
           include: ['tests/integration/**/*.test.ts'],
           environment: 'node',
@@ -21,8 +16,7 @@ export default defineConfig({
         },
       },
       {
-        resolve: { alias },
-        test: {
+              test: {
           name: 'e2e',
           include: ['tests/e2e/**/*.test.ts'],
           environment: 'node',
@@ -34,8 +28,7 @@ export default defineConfig({
       },
       {
         // Only under `npm run test:cluster` (scripts/test-cluster.sh starts the cluster and the apps).
-        resolve: { alias },
-        test: {
+              test: {
           name: 'cluster',
           include: ['tests/cluster/**/*.test.ts'],
           environment: 'node',

@@ -10,6 +10,8 @@ import { hashPassword } from '../src/server/auth/password';
 import { newToken, hashToken } from '../src/server/auth/tokens';
 import { correctReading } from '../src/lib/gravity';
 import { getForecasts, replayForecastHistory } from '../src/server/forecasts';
+import { systemCtx } from '../src/server/context';
+import { workspaceSettings } from '../src/server/workspaces';
 import { alcoholmeterCorrection, laa } from '../src/lib/alcohol';
 import { DEMO_FERMENTERS, DEMO_PASSWORD, DEMO_PEOPLE, DEMO_STILLS, DEMO_TZ, DEMO_WASH_TYPES, DEMO_WORKSPACE, demoFerments, demoRuns } from './demo';
 
@@ -108,9 +110,10 @@ export async function loadDemo(opts: { force?: boolean; now?: Date; quiet?: bool
   // app's own database: the forecaster reads and writes through it.)
   if (!opts.db) {
     const ids = (await db.select({ id: t.ferments.id }).from(t.ferments).where(eq(t.ferments.workspaceId, workspaceId))).map((r) => r.id);
-    await getForecasts(workspaceId, ids, now);
-    await getForecasts(workspaceId, ids, now); // again, now that finished washes inform the running ones
-    await replayForecastHistory(workspaceId, ids, now);
+    const ctx = systemCtx((await workspaceSettings(workspaceId))!);
+    await getForecasts(ctx, ids, now);
+    await getForecasts(ctx, ids, now); // again, now that finished washes inform the running ones
+    await replayForecastHistory(ctx, ids, now);
   }
   const tokenFile = opts.tokenFile === undefined ? demoFeedTokenFile() : opts.tokenFile;
   if (tokenFile) {

@@ -26,6 +26,8 @@ import { getDb, getPool, closeDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { hashPassword } from '../../src/server/auth/password';
 import { getBoard } from '../../src/server/board';
+import { systemCtx } from '../../src/server/context';
+import { workspaceSettings } from '../../src/server/workspaces';
 
 const args = process.argv.slice(2);
 const arg = (name: string, fallback: string) => { const i = args.indexOf(`--${name}`); return i >= 0 && args[i + 1] ? args[i + 1]! : fallback; };
@@ -182,7 +184,9 @@ end
 async function main() {
   console.log(`Building the bench workspace in ${process.env.DB_NAME ?? 'plateau'}…`);
   const data = await build();
-  const scope = { id: data.workspaceId, timeZone: TZ, stableDays: 3 };
+  const settings = await workspaceSettings(data.workspaceId);
+  if (!settings) throw new Error('The bench workspace was not created.');
+  const scope = systemCtx(settings);
   const warm = await getBoard(scope, data.from, data.to);
   console.log(`Workspace ${data.workspaceId}: 12 stills, ${data.runCount} runs, 100 ferments, ${data.readingCount} readings; the six-week board holds ${warm.runs.length} runs and ${warm.ferments.length} ferments (${(JSON.stringify(warm).length / 1024).toFixed(0)} kB JSON).`);
 

@@ -1,13 +1,12 @@
 import { eq, and, isNull, gt, ne, desc, sql } from 'drizzle-orm';
-import type { APIContext, APIRoute } from 'astro';
-import type { ZodType } from 'zod';
 import { emailTokens, sessions, workspaces, memberships } from '../db/schema';
 import { lucia } from './auth/session';
 import { newToken, hashToken } from './auth/tokens';
 import { enqueue } from './mail/outbox';
 import { signUpConfirmMail, alreadyRegisteredMail, passwordResetMail } from './mail/templates';
 import { env, demoAllowed } from '../config';
-import { errorResponse, jsonError, readBody, MAX_JSON_BYTES, zodFields, notFound } from './http';
+import { HttpError, notFound } from './http';
+import type { UserCtx } from './context';
 import { getDb } from '../db/client';
 import { users } from '../db/schema';
 import { verifyPassword, hashPassword, needsRehash, dummyPasswordHash } from './auth/password';
@@ -15,7 +14,6 @@ import { createSession } from './auth/session';
 import { takeAttempt, forgive, refund } from './throttle';
 import { audit } from './audit';
 import { membershipsOf, roleIn, isDemoMember } from './workspaces';
-import { HttpError } from './http';
 import { insertDefaultWashTypes } from './vessels';
 
 export const normaliseEmail = (email: string) => email.trim().toLowerCase();
@@ -172,12 +170,13 @@ export async function resetPassword(token: string, password: string, meta: { ip:
   await forgive('sign_in', `email:${row.email}`);
 }
 
-export async function updateName(userId: number, name: string): Promise<void> {
-  await getDb().update(users).set({ name }).where(eq(users.id, userId));
+export async function updateName(me: UserCtx, name: string): Promise<void> {
+  await getDb().update(users).set({ name }).where(eq(users.id, me.userId));
 }
 
 /** Change the password (current one required) and end every other session. */
-export async function changePassword(userId: number, currentSessionId: string, current: string, next: string): Promise<{ endedSessions: number }> {
+export async function changePassword(me: UserCtx, current: string, next: string): Promise<{ endedSessions: number }> {
+  const { userId } = me;
   const db = getDb();
   const [user] = await db.select().from(users).where(eq(users.id, userId)).limit(1);
   if (!user || !(await verifyPassword(user.passwordHash, current))) {
@@ -185,14 +184,15 @@ export async function changePassword(userId: number, currentSessionId: string, c
   }
   const passwordHash = await hashPassword(next);
   await db.update(users).set({ passwordHash }).where(eq(users.id, userId));
-  const ended = await signOutOtherSessions(userId, currentSessionId);
+  const ended = await signOutOtherSessions(me);
   const ms = await membershipsOf(userId);
   for (const m of ms) await audit({ workspaceId: m.workspaceId, userId, action: 'auth.password_changed' });
   return { endedSessions: ended };
 }
 
-export async function signOutOtherSessions(userId: number, keepSessionId: string): Promise<number> {
-  const [res] = await getDb().delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));
+/** End every session of this person except the one they are using. */
+export async function signOutOtherSessions(me: UserCtx): Promise<number> {
+  const [res] = await getDb().delete(sessions).where(and(eq(sessions.userId, me.userId), ne(sessions.id, me.sessionId)));
   return (res as { affectedRows?: number }).affectedRows ?? 0;
 }
 
@@ -201,13 +201,13 @@ export const sessionHandle = (sessionId: string) => hashToken(sessionId).slice(0
 
 export interface SessionInfo { handle: string; current: boolean; createdAt: Date; expiresAt: Date; userAgent: string | null; device: string }
 
-export async function listSessions(userId: number, currentSessionId: string | null): Promise<SessionInfo[]> {
-  const rows = await getDb().select().from(sessions).where(and(eq(sessions.userId, userId), gt(sessions.expiresAt, new Date()))).orderBy(desc(sessions.createdAt));
-  return rows.map((r) => ({ handle: sessionHandle(r.id), current: r.id === currentSessionId, createdAt: r.createdAt, expiresAt: r.expiresAt, userAgent: r.userAgent, device: describeDevice(r.userAgent) }));
+export async function listSessions(me: UserCtx): Promise<SessionInfo[]> {
+  const rows = await getDb().select().from(sessions).where(and(eq(sessions.userId, me.userId), gt(sessions.expiresAt, new Date()))).orderBy(desc(sessions.createdAt));
+  return rows.map((r) => ({ handle: sessionHandle(r.id), current: r.id === me.sessionId, createdAt: r.createdAt, expiresAt: r.expiresAt, userAgent: r.userAgent, device: describeDevice(r.userAgent) }));
 }
 
-export async function endSessionByHandle(userId: number, handle: string): Promise<void> {
-  const rows = await getDb().select({ id: sessions.id }).from(sessions).where(eq(sessions.userId, userId));
+export async function endSessionByHandle(me: UserCtx, handle: string): Promise<void> {
+  const rows = await getDb().select({ id: sessions.id }).from(sessions).where(eq(sessions.userId, me.userId));
   const match = rows.find((r) => sessionHandle(r.id) === handle);
   if (!match) throw notFound('No such session.');
   await lucia().invalidateSession(match.id);
@@ -222,45 +222,10 @@ export function describeDevice(ua: string | null): string {
 }
 
 /** Point the session at another of the person's distilleries (after checking membership). */
-export async function switchWorkspace(userId: number, sessionId: string, workspaceId: number): Promise<void> {
-  const role = await roleIn(userId, workspaceId);
+export async function switchWorkspace(me: UserCtx, workspaceId: number): Promise<void> {
+  const role = await roleIn(me.userId, workspaceId);
   if (!role) throw notFound('You are not a member of that distillery.');
-  await getDb().update(sessions).set({ workspaceId }).where(and(eq(sessions.id, sessionId), eq(sessions.userId, userId)));
-}
-
-// ---------------------------------------------------------------------------
-// Small request helpers for routes that need only a signed-in person (not a role),
-// and for public routes that accept JSON or a plain form post.
-// ---------------------------------------------------------------------------
-
-/** Parse a JSON or urlencoded/multipart body through the one byte-limited reader. */
-export async function readInput(ctx: APIContext): Promise<{ raw: unknown; isForm: boolean }> {
-  return readBody(ctx.request, MAX_JSON_BYTES);
-}
-
-export function parseOrThrow<T>(schema: ZodType<T>, raw: unknown): T {
-  const parsed = schema.safeParse(raw);
-  if (!parsed.success) {
-    const fields = zodFields(parsed.error);
-    const first = Object.entries(fields)[0];
-    throw new HttpError(400, 'invalid', first ? first[1] : 'Check the highlighted fields.', fields);
-  }
-  return parsed.data;
-}
-
-/** A route for any signed-in person, whatever their role (their own account, switching distillery). */
-export function userRoute<B = undefined>(opts: { body?: ZodType<B> }, handler: (args: { ctx: APIContext; user: NonNullable<App.Locals['user']>; sessionId: string; body: B; params: Record<string, string | undefined> }) => Promise<Response>): APIRoute {
-  return async (ctx) => {
-    try {
-      const { user, sessionId } = ctx.locals;
-      if (!user || !sessionId) return jsonError(401, 'unauthenticated', 'Sign in first.');
-      let body = undefined as B;
-      if (opts.body) body = parseOrThrow(opts.body, (await readInput(ctx)).raw);
-      return await handler({ ctx, user, sessionId, body, params: ctx.params as Record<string, string | undefined> });
-    } catch (err) {
-      return errorResponse(err);
-    }
-  };
+  await getDb().update(sessions).set({ workspaceId }).where(and(eq(sessions.id, me.sessionId), eq(sessions.userId, me.userId)));
 }
 
 export const PASSWORD_RULE = `at least ${MIN_PASSWORD} characters`;

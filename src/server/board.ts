@@ -4,17 +4,19 @@ import { createHash } from 'node:crypto';
  * The board's read side: stills, runs, ferments with their forecasts, fermenters and
  * people for a time range, in one payload; plus warnings and move suggestions.
  */
-import { and, asc, eq, gt, gte, inArray, isNull, lt, ne, or, sql } from 'drizzle-orm';
+import { and, asc, eq, gte, inArray, isNull, lt, ne, or, sql } from 'drizzle-orm';
 import { getDb } from '../db/client';
 import { fermentForecasts, fermenters, ferments, memberships, runFerments, runs, users, washTypes } from '../db/schema';
 import {
   boardWarnings, dehydrateRun, notBeforeForRisk, toFermentState, toScheduleRun, toScheduleStill,
   type BoardFerment, type BoardFermentJson, type BoardPayload, type BoardRun, type BoardStill,
 } from '../lib/board';
-import { computeRunWarnings, findEarliestSlots, type FermentStatus, type Slot, type Warning } from '../lib/schedule';
+import { computeRunWarnings, findEarliestSlots, runChargeLitres, type FermentStatus, type Slot, type Warning } from '../lib/schedule';
 import { getForecasts } from './forecasts';
 import { notFound } from './http';
-import { attachLines, getRun } from './runs';
+import type { Ctx } from './context';
+import { selectRuns } from './run-query';
+import { getRun } from './runs';
 import { listStills } from './stills';
 import { SnapshotCache } from './snapshot-cache';
 
@@ -24,8 +26,6 @@ const HOUR_MS = 3_600_000;
 const CONTEXT_MS = 3 * DAY_MS;
 export const MAX_RANGE_DAYS = 50;
 
-export interface BoardScope { id: number; timeZone: string; stableDays: number }
-
 type FermentBase = Omit<BoardFerment, 'status' | 'reason' | 'readyAt' | 'readyP10' | 'readyP90' | 'confirmedAt' | 'lastSg' | 'predictedFg'>;
 
 /**
@@ -33,9 +33,10 @@ type FermentBase = Omit<BoardFerment, 'status' | 'reason' | 'readyAt' | 'readyP1
  * trusted as they are (every change of readings recomputes them at once, and their cache
  * key changes only by the hour otherwise); the rest go through getForecasts.
  */
-async function withForecasts(workspaceId: number, base: FermentBase[], now: Date): Promise<BoardFerment[]> {
+async function withForecasts(ctx: Ctx, base: FermentBase[], now: Date): Promise<BoardFerment[]> {
   if (base.length === 0) return [];
   const db = getDb();
+  const workspaceId = ctx.ws.id;
   const ids = base.map((f) => f.id);
   const hourStart = new Date(Math.floor(now.getTime() / HOUR_MS) * HOUR_MS);
   const cached = await db.select({
@@ -55,7 +56,7 @@ async function withForecasts(workspaceId: number, base: FermentBase[], now: Date
   }
   const missing = ids.filter((id) => !fresh.has(id));
   if (missing.length) {
-    const computed = await getForecasts(workspaceId, missing, now);
+    const computed = await getForecasts(ctx, missing, now);
     for (const [id, f] of computed) fresh.set(id, f);
   }
   return base.map((f) => {
@@ -97,20 +98,14 @@ export interface BoardData {
  * (and a few days either side), the stripping runs feeding them, other runs drawing on the
  * same ferments, the ferments in their fermenters or linked to those runs, with forecasts.
  */
-export async function loadBoardData(scope: BoardScope, from: Date, to: Date, now: Date): Promise<BoardData> {
+export async function loadBoardData(ctx: Ctx, from: Date, to: Date, now: Date): Promise<BoardData> {
   const db = getDb();
-  const ws = scope.id;
+  const ws = ctx.ws.id;
   const ctxFrom = new Date(from.getTime() - CONTEXT_MS);
   const ctxTo = new Date(to.getTime() + CONTEXT_MS);
-  const runColumns = {
-    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
-  };
-  const [stillRows, runRows, fermenterRows, people, openFerments] = await Promise.all([
-    listStills(ws),
-    db.select(runColumns).from(runs)
-      .where(and(eq(runs.workspaceId, ws), lt(runs.startsAt, ctxTo), gt(runs.endsAt, ctxFrom)))
-      .orderBy(asc(runs.startsAt), asc(runs.id)),
+  const [stillRows, inRange, fermenterRows, people, openFerments] = await Promise.all([
+    listStills(ctx),
+    selectRuns(db, ws, { window: { from: ctxFrom, to: ctxTo } }),
     db.select({ id: fermenters.id, name: fermenters.name, capacityLitres: fermenters.capacityLitres }).from(fermenters)
       .where(and(eq(fermenters.workspaceId, ws), eq(fermenters.active, true))).orderBy(asc(fermenters.position), asc(fermenters.id)),
     db.select({ id: users.id, name: users.name, role: memberships.role }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
@@ -120,7 +115,6 @@ export async function loadBoardData(scope: BoardScope, from: Date, to: Date, now
   ]);
 
   // Runs outside the window that matter to runs inside it: feeders, and other runs on the same washes.
-  const inRange = await attachLines(db, ws, runRows, { from: ctxFrom, to: ctxTo });
   const have = new Set(inRange.map((r) => r.id));
   const fermentIds = new Set<number>(openFerments.map((f) => f.id));
   const extraRunIds = new Set<number>();
@@ -136,8 +130,7 @@ export async function loadBoardData(scope: BoardScope, from: Date, to: Date, now
   }
   let allRuns = inRange;
   if (extraRunIds.size) {
-    const extraRows = await db.select(runColumns).from(runs).where(and(eq(runs.workspaceId, ws), inArray(runs.id, [...extraRunIds])));
-    const extra = await attachLines(db, ws, extraRows);
+    const extra = await selectRuns(db, ws, { ids: [...extraRunIds] });
     for (const r of extra) for (const c of r.ferments) fermentIds.add(c.fermentId);
     allRuns = [...inRange, ...extra];
   }
@@ -147,7 +140,7 @@ export async function loadBoardData(scope: BoardScope, from: Date, to: Date, now
     ? await db.select(fermentColumns).from(ferments).innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
       .where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, missingFerments)))
     : [];
-  const fermentList = await withForecasts(ws, [...openFerments, ...linkedFerments], now);
+  const fermentList = await withForecasts(ctx, [...openFerments, ...linkedFerments], now);
   return { stills: stillRows, runs: allRuns, ferments: fermentList, fermenters: fermenterRows, people };
 }
 
@@ -168,18 +161,19 @@ function boardBody(payload: BoardPayload): BoardBody {
  * The board payload as a JSON string, served from a short cache while nothing in the
  * workspace changed: the 30-second refresh of every open board then costs one small query.
  */
-export async function getBoardBody(scope: BoardScope, from: Date, to: Date, now = new Date(), opts: { fresh?: boolean } = {}): Promise<BoardBody> {
-  const key = `${scope.id}|${scope.timeZone}|${scope.stableDays}|${from.getTime()}|${to.getTime()}`;
-  return boardCache.get(scope.id, key, now, async () => boardBody(await getBoard(scope, from, to, now)), opts);
+export async function getBoardBody(ctx: Ctx, from: Date, to: Date, now = new Date(), opts: { fresh?: boolean } = {}): Promise<BoardBody> {
+  const { ws } = ctx;
+  const key = `${ws.id}|${ws.timeZone}|${ws.stableDays}|${from.getTime()}|${to.getTime()}`;
+  return boardCache.get(ws.id, key, now, async () => boardBody(await getBoard(ctx, from, to, now)), opts);
 }
 
-export async function getBoard(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<BoardPayload> {
-  const data = await loadBoardData(scope, from, to, now);
+export async function getBoard(ctx: Ctx, from: Date, to: Date, now = new Date()): Promise<BoardPayload> {
+  const data = await loadBoardData(ctx, from, to, now);
   return {
     range: { from: from.toISOString(), to: to.toISOString() },
-    timeZone: scope.timeZone,
+    timeZone: ctx.ws.timeZone,
     now: now.toISOString(),
-    stableDays: scope.stableDays,
+    stableDays: ctx.ws.stableDays,
     stills: data.stills.map(({ id, name, kind, capacityLitres, heatingKw, operatingHours, closures, cleaningAfterRunMinutes, typicalMinutes, position }) => ({
       id, name, kind, capacityLitres, heatingKw, operatingHours, closures, cleaningAfterRunMinutes, typicalMinutes, position,
     })),
@@ -191,25 +185,25 @@ export async function getBoard(scope: BoardScope, from: Date, to: Date, now = ne
 }
 
 /** The board data around one run (a week either side), for its warnings and its page. */
-export async function runContext(scope: BoardScope, run: BoardRun, now = new Date()): Promise<BoardData> {
-  return loadBoardData(scope, new Date(run.startsAt.getTime() - 4 * DAY_MS), new Date(run.endsAt.getTime() + 4 * DAY_MS), now);
+export async function runContext(ctx: Ctx, run: BoardRun, now = new Date()): Promise<BoardData> {
+  return loadBoardData(ctx, new Date(run.startsAt.getTime() - 4 * DAY_MS), new Date(run.endsAt.getTime() + 4 * DAY_MS), now);
 }
 
-export async function warningsForRun(scope: BoardScope, run: BoardRun, now = new Date()): Promise<Warning[]> {
-  const data = await runContext(scope, run, now);
+export async function warningsForRun(ctx: Ctx, run: BoardRun, now = new Date()): Promise<Warning[]> {
+  const data = await runContext(ctx, run, now);
   const still = data.stills.find((s) => s.id === run.stillId);
   if (!still) return [];
   const others = data.runs.filter((r) => r.id !== run.id).map(toScheduleRun);
   return computeRunWarnings(toScheduleRun(run), {
     still: toScheduleStill(still), runs: [...others, toScheduleRun(run)],
-    ferments: new Map(data.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: scope.timeZone, now,
+    ferments: new Map(data.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: ctx.ws.timeZone, now,
   });
 }
 
 /** All warnings of the runs on the board for a range (the server side of the island's badges). */
-export async function boardWarningsFor(scope: BoardScope, from: Date, to: Date, now = new Date()): Promise<Map<number, Warning[]>> {
-  const data = await loadBoardData(scope, from, to, now);
-  return boardWarnings({ stills: data.stills, runs: data.runs, ferments: data.ferments, timeZone: scope.timeZone, now });
+export async function boardWarningsFor(ctx: Ctx, from: Date, to: Date, now = new Date()): Promise<Map<number, Warning[]>> {
+  const data = await loadBoardData(ctx, from, to, now);
+  return boardWarnings({ stills: data.stills, runs: data.runs, ferments: data.ferments, timeZone: ctx.ws.timeZone, now });
 }
 
 export interface Suggestions {
@@ -224,25 +218,25 @@ export interface Suggestions {
  * souring wash), inside operating hours, without overlapping anything (cleaning slots
  * included). The run's own still comes first on equal start times.
  */
-export async function suggestSlots(scope: BoardScope, runId: number, now = new Date(), limit = 3): Promise<Suggestions> {
-  const run = await getRun(scope.id, runId);
+export async function suggestSlots(ctx: Ctx, runId: number, now = new Date(), limit = 3): Promise<Suggestions> {
+  const run = await getRun(ctx, runId);
   if (run.status === 'cancelled' || run.status === 'done' || run.status === 'running') throw notFound('That run is not open to a move.');
   const horizonDays = 28;
-  const probe = await loadBoardData(scope, now, new Date(now.getTime() + (horizonDays + 2) * DAY_MS), now);
-  const notBefore = notBeforeForRisk(run, probe.ferments.length ? probe.ferments : [], now, scope.stableDays);
+  const probe = await loadBoardData(ctx, now, new Date(now.getTime() + (horizonDays + 2) * DAY_MS), now);
+  const notBefore = notBeforeForRisk(run, probe.ferments.length ? probe.ferments : [], now, ctx.ws.stableDays);
   const data = notBefore.getTime() > now.getTime() + DAY_MS
-    ? await loadBoardData(scope, notBefore, new Date(notBefore.getTime() + (horizonDays + 2) * DAY_MS), now)
+    ? await loadBoardData(ctx, notBefore, new Date(notBefore.getTime() + (horizonDays + 2) * DAY_MS), now)
     : probe;
   const own = data.stills.find((s) => s.id === run.stillId);
   const ordered = [...(own ? [own] : []), ...data.stills.filter((s) => s.id !== run.stillId)].map(toScheduleStill);
-  const charge = run.chargeLitres ?? run.ferments.reduce((s, c) => s + c.litres, 0);
+  const charge = runChargeLitres(run) ?? 0;
   const slots: Slot[] = findEarliestSlots({
     durationMinutes: Math.max(1, Math.round((run.endsAt.getTime() - run.startsAt.getTime()) / 60_000)),
     chargeLitres: charge,
     notBefore,
     stills: ordered,
     runs: data.runs.map(toScheduleRun),
-    timeZone: scope.timeZone,
+    timeZone: ctx.ws.timeZone,
     excludeRunId: run.id,
     type: run.type,
     limit,
@@ -257,12 +251,6 @@ export async function suggestSlots(scope: BoardScope, runId: number, now = new D
 }
 
 /** Today's runs per still for the day view (local day in the distillery's zone). */
-export async function dayRuns(scope: BoardScope, from: Date, to: Date): Promise<BoardRun[]> {
-  const db = getDb();
-  const rows = await db.select({
-    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
-  }).from(runs).where(and(eq(runs.workspaceId, scope.id), ne(runs.status, 'cancelled'), lt(runs.startsAt, to), gt(runs.endsAt, from)))
-    .orderBy(asc(runs.startsAt));
-  return attachLines(db, scope.id, rows);
+export async function dayRuns(ctx: Ctx, from: Date, to: Date): Promise<BoardRun[]> {
+  return selectRuns(getDb(), ctx.ws.id, { window: { from, to }, where: ne(runs.status, 'cancelled') });
 }

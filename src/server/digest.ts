@@ -4,14 +4,15 @@
  * claim INSERT (workspace, 'digest', local date) commits first sends it, in the same
  * transaction as its outbox rows, so it goes out once a day however many instances run.
  */
-import { and, asc, eq, gte, inArray, lt, ne } from 'drizzle-orm';
+import { and, eq, gte, inArray, lt, ne } from 'drizzle-orm';
 import { getDb } from '../db/client';
-import { ferments, runFerments, runs, stills, users, workspaces } from '../db/schema';
+import { ferments, runs, users, workspaces } from '../db/schema';
 import { RUN_STATUS_LABELS, RUN_TYPE_LABELS, shortDate } from '../lib/board';
 import { addDaysYmd, wallClock, weekdayOfYmd, zonedDateTime } from '../lib/schedule';
 import { env } from '../config';
 import { enqueue } from './mail/outbox';
 import { claimOnce, membersOf, noticeMail } from './notify';
+import { selectRuns, stillName } from './run-query';
 
 /** Local hour from which the digest may go out, and the hour after which it is not worth sending. */
 export const DIGEST_HOUR = 6;
@@ -40,20 +41,22 @@ export async function runDigestFor(workspaceId: number, now: Date = new Date(), 
     if (!(await claimOnce(tx, workspaceId, 'digest', today))) return { outcome: 'claimed_elsewhere' as const, recipients: 0, runs: 0, date: today };
     const members = (await membersOf(tx, workspaceId)).filter((m) => m.prefs.digest);
     if (!members.length) return { outcome: 'sent' as const, recipients: 0, runs: 0, date: today };
-    const rows = await tx.select({
-      id: runs.id, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt, operatorId: runs.operatorId, stillName: stills.name,
-    }).from(runs).innerJoin(stills, eq(stills.id, runs.stillId))
-      .where(and(eq(runs.workspaceId, workspaceId), ne(runs.status, 'cancelled'), lt(runs.startsAt, to), gte(runs.endsAt, from)))
-      .orderBy(asc(runs.startsAt), asc(runs.id));
-    const ids = rows.map((r) => r.id);
-    const charges = ids.length ? await tx.select({ runId: runFerments.runId, code: ferments.code }).from(runFerments)
-      .innerJoin(ferments, eq(ferments.id, runFerments.fermentId))
-      .where(and(eq(runFerments.workspaceId, workspaceId), inArray(runFerments.runId, ids))) : [];
+    const rows = await selectRuns(tx, workspaceId, {
+      extra: { stillName },
+      where: and(ne(runs.status, 'cancelled'), lt(runs.startsAt, to), gte(runs.endsAt, from)),
+    });
+    const fermentIds = [...new Set(rows.flatMap((r) => r.ferments.map((c) => c.fermentId)))];
+    const codes = fermentIds.length ? await tx.select({ id: ferments.id, code: ferments.code }).from(ferments)
+      .where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, fermentIds))) : [];
+    const codeOf = new Map(codes.map((f) => [f.id, f.code]));
     const operatorIds = [...new Set(rows.map((r) => r.operatorId).filter((v): v is number => v !== null))];
     const people = operatorIds.length ? await tx.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, operatorIds)) : [];
     const name = new Map(people.map((p) => [p.id, p.name]));
     const washes = new Map<number, string[]>();
-    for (const c of charges) washes.set(c.runId, [...(washes.get(c.runId) ?? []), c.code]);
+    for (const r of rows) {
+      const list = r.ferments.flatMap((c) => codeOf.get(c.fermentId) ?? []);
+      if (list.length) washes.set(r.id, list);
+    }
 
     const dayLines = (ymd: string, forId: number) => {
       const list = rows.filter((r) => wallClock(r.startsAt, ws.timeZone).ymd === ymd || (ymd === today && r.startsAt < from));

@@ -14,7 +14,10 @@ import { getDb } from '../db/client';
 import * as t from '../db/schema';
 import { toCsv } from '../lib/csv';
 import { FRACTION_LABELS, chargedLaa, recoveryRatio, sumLaa, type UtilisationRow } from '../lib/reports';
-import type { ReportFilters, ReportScope } from './reports';
+import { runChargeLitres } from '../lib/schedule';
+import type { Ctx } from './context';
+import type { ReportFilters } from './reports';
+import { operatorName, selectRuns, stillName } from './run-query';
 
 export const CSV_CONTENT_TYPE = 'text/csv; charset=utf-8';
 
@@ -48,8 +51,9 @@ export const FERMENT_CSV_COLUMNS = [
 ];
 
 /** Ferments pitched in the range, one row per (non-deleted) reading; a ferment without readings gets one row. */
-export async function fermentsCsv(scope: ReportScope, filters: ReportFilters): Promise<string> {
+export async function fermentsCsv(ctx: Ctx, filters: ReportFilters): Promise<string> {
   const db = getDb();
+  const scope = ctx.ws;
   const fs = await db.select({
     id: t.ferments.id, code: t.ferments.code, washType: t.washTypes.name, fermenter: t.fermenters.name, volume: t.ferments.volumeLitres,
     pitchedAt: t.ferments.pitchedAt, og: t.ferments.og, yeast: t.ferments.yeast, notes: t.ferments.notes, emptiedAt: t.ferments.emptiedAt, emptiedReason: t.ferments.emptiedReason,
@@ -89,34 +93,34 @@ export const RUN_CSV_COLUMNS = [
 ];
 
 /** Runs starting in the range (optionally one still), one row per recorded fraction; a run without a record gets one row. */
-export async function runsCsv(scope: ReportScope, filters: ReportFilters): Promise<string> {
+export async function runsCsv(ctx: Ctx, filters: ReportFilters): Promise<string> {
   const db = getDb();
-  const rs = await db.select({
-    id: t.runs.id, still: t.stills.name, type: t.runs.type, status: t.runs.status, startsAt: t.runs.startsAt, endsAt: t.runs.endsAt,
-    startedAt: t.runs.startedAt, finishedAt: t.runs.finishedAt, operator: t.users.name, chargeLitres: t.runs.chargeLitres, chargeAbv: t.runs.chargeAbv, notes: t.runs.notes,
-  }).from(t.runs).innerJoin(t.stills, eq(t.stills.id, t.runs.stillId)).leftJoin(t.users, eq(t.users.id, t.runs.operatorId))
-    .where(and(eq(t.runs.workspaceId, scope.id), gte(t.runs.startsAt, filters.range.start), lt(t.runs.startsAt, filters.range.end),
-      filters.stillId ? eq(t.runs.stillId, filters.stillId) : undefined))
-    .orderBy(asc(t.runs.startsAt), asc(t.runs.id));
+  const scope = ctx.ws;
+  const rs = await selectRuns(db, scope.id, {
+    extra: { still: stillName, operator: operatorName, startedAt: t.runs.startedAt, finishedAt: t.runs.finishedAt },
+    where: and(gte(t.runs.startsAt, filters.range.start), lt(t.runs.startsAt, filters.range.end), filters.stillId ? eq(t.runs.stillId, filters.stillId) : undefined),
+  });
   const ids = rs.map((r) => r.id);
-  const [outcomes, charges, feeds] = ids.length ? await Promise.all([
+  const fermentIds = [...new Set(rs.flatMap((r) => r.ferments.map((c) => c.fermentId)))];
+  const [outcomes, codes] = ids.length ? await Promise.all([
     db.select().from(t.runOutcomes).where(and(eq(t.runOutcomes.workspaceId, scope.id), inArray(t.runOutcomes.runId, ids))).orderBy(asc(t.runOutcomes.id)),
-    db.select({ runId: t.runFerments.runId, code: t.ferments.code, litres: t.runFerments.litres }).from(t.runFerments)
-      .innerJoin(t.ferments, eq(t.ferments.id, t.runFerments.fermentId)).where(and(eq(t.runFerments.workspaceId, scope.id), inArray(t.runFerments.runId, ids))),
-    db.select({ runId: t.runFeeds.runId, feedRunId: t.runFeeds.feedRunId, litres: t.runFeeds.litres }).from(t.runFeeds)
-      .where(and(eq(t.runFeeds.workspaceId, scope.id), inArray(t.runFeeds.runId, ids))),
-  ]) : [[], [], []];
+    fermentIds.length
+      ? db.select({ id: t.ferments.id, code: t.ferments.code }).from(t.ferments).where(and(eq(t.ferments.workspaceId, scope.id), inArray(t.ferments.id, fermentIds)))
+      : [],
+  ]) : [[], []];
+  const codeOf = new Map(codes.map((f) => [f.id, f.code]));
   const order = { low_wines: 0, heads: 1, hearts: 2, tails: 3, feints: 4 } as const;
   const rows: Array<Record<string, unknown>> = [];
   for (const r of rs) {
     const fr = outcomes.filter((o) => o.runId === r.id).sort((a, b) => order[a.fraction] - order[b.fraction]);
-    const charged = chargedLaa({ litres: r.chargeLitres, abv: r.chargeAbv });
+    const chargeLitres = runChargeLitres(r);
+    const charged = chargedLaa({ litres: chargeLitres, abv: r.chargeAbv });
     const collected = sumLaa(fr);
     const base = {
       run_id: r.id, still: r.still, type: r.type, status: r.status, starts_at_utc: iso(r.startsAt), ends_at_utc: iso(r.endsAt), started_at_utc: iso(r.startedAt),
-      finished_at_utc: iso(r.finishedAt), operator: r.operator, charge_litres: r.chargeLitres, charge_abv_20c: r.chargeAbv, charged_laa: round(charged, 3),
-      ferments: charges.filter((c) => c.runId === r.id).map((c) => `${c.code} ${c.litres} L`).join('; ') || null,
-      fed_by_runs: feeds.filter((f) => f.runId === r.id).map((f) => `#${f.feedRunId} ${f.litres} L`).join('; ') || null,
+      finished_at_utc: iso(r.finishedAt), operator: r.operator, charge_litres: chargeLitres, charge_abv_20c: r.chargeAbv, charged_laa: round(charged, 3),
+      ferments: r.ferments.filter((c) => codeOf.has(c.fermentId)).map((c) => `${codeOf.get(c.fermentId)} ${c.litres} L`).join('; ') || null,
+      fed_by_runs: r.feeds.map((f) => `#${f.runId} ${f.litres} L`).join('; ') || null,
       run_notes: r.notes,
       run_collected_laa: fr.length ? round(collected, 3) : null,
       run_recovery: fr.length ? round(recoveryRatio(collected, charged), 4) : null,
@@ -159,9 +163,9 @@ export const FULL_EXPORT_TABLES = [
   'runs', 'run_ferments', 'run_feeds', 'run_outcomes', 'calendar_feeds', 'invitations', 'mail_outbox', 'audit_log', 'job_claims',
 ] as const;
 
-export async function fullExport(workspaceId: number, now = new Date()): Promise<Record<string, unknown>> {
+export async function fullExport(ctx: Ctx, now = new Date()): Promise<Record<string, unknown>> {
   const db = getDb();
-  const w = workspaceId;
+  const w = ctx.ws.id;
   const [ws] = await db.select().from(t.workspaces).where(eq(t.workspaces.id, w)).limit(1);
   const members = await db.select({ userId: t.users.id, email: t.users.email, name: t.users.name, role: t.memberships.role, joinedAt: t.memberships.createdAt, disabledAt: t.users.disabledAt })
     .from(t.memberships).innerJoin(t.users, eq(t.users.id, t.memberships.userId)).where(eq(t.memberships.workspaceId, w)).orderBy(asc(t.users.id));

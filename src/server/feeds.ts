@@ -5,17 +5,17 @@
  * STATUS carries the forecast (TENTATIVE until every linked wash is confirmed stable).
  */
 import { createHash } from 'node:crypto';
-import { and, desc, eq, gt, inArray, isNotNull, isNull, lt, ne, or, sql, type SQL } from 'drizzle-orm';
+import { and, desc, eq, inArray, isNotNull, isNull, lt, ne, or, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/mysql-core';
 import { z } from 'zod';
 import { getDb } from '../db/client';
-import { calendarFeeds, ferments, memberships, readings, runFeeds, runFerments, runs, stills, users, workspaces } from '../db/schema';
+import { calendarFeeds, ferments, memberships, readings, runs, stills, users, workspaces } from '../db/schema';
 import { toScheduleStill } from '../lib/board';
 import {
   describeRunEvent, runEventStatus, runEventTitle, uidForRun,
   type EventStatus, type FeedEvent,
 } from '../lib/calendar';
-import { computeRunWarnings, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
+import { computeRunWarnings, runChargeLitres, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
 import { env } from '../config';
 import { audit } from './audit';
 import { ACTIONS, can } from './authz';
@@ -23,8 +23,11 @@ import { getForecasts } from './forecasts';
 import { notFound, invalid, HttpError } from './http';
 import { hashToken, newToken } from './auth/tokens';
 import { listStills } from './stills';
+import { systemCtx, type Ctx } from './context';
+import { toSettings } from './workspaces';
 import type { Role } from '../db/schema';
 import { SnapshotCache } from './snapshot-cache';
+import { selectRuns } from './run-query';
 import { buildFeedWithStore } from './feed-blocks';
 
 const DAY_MS = 86_400_000;
@@ -75,8 +78,6 @@ export interface FeedGroup {
   holderRole: Role | null;
   feeds: FeedListRow[];
 }
-
-interface Actor { userId: number; workspaceId: number; role: Role }
 
 /** The subscription URLs for a token: https (or http in development) and webcal. */
 export function feedUrls(token: string): { url: string; webcal: string } {
@@ -145,7 +146,8 @@ function stopReason(f: StopFacts): string {
  * Feeds this person may see, never a token: their own; a manager sees every feed of the
  * distillery, including those of people who have left (dead until revoked, shown as such).
  */
-export async function listFeeds(actor: Actor, only?: { id: number }): Promise<FeedListRow[]> {
+export async function listFeeds(ctx: Ctx, only?: { id: number }): Promise<FeedListRow[]> {
+  const { ws, actor } = ctx;
   const db = getDb();
   const rows = await db.select({
     id: calendarFeeds.id, name: calendarFeeds.name, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId, stillName: stills.name,
@@ -158,7 +160,7 @@ export async function listFeeds(actor: Actor, only?: { id: number }): Promise<Fe
     .leftJoin(subjectMember, SUBJECT_MEMBER_ON).leftJoin(subjectUser, SUBJECT_USER_ON)
     .leftJoin(stills, and(eq(stills.id, calendarFeeds.stillId), eq(stills.workspaceId, calendarFeeds.workspaceId)))
     .where(and(
-      eq(calendarFeeds.workspaceId, actor.workspaceId), isNull(calendarFeeds.revokedAt),
+      eq(calendarFeeds.workspaceId, ws.id), isNull(calendarFeeds.revokedAt),
       can(actor.role, 'feeds.manage') ? undefined : eq(calendarFeeds.createdBy, actor.userId),
       only ? eq(calendarFeeds.id, only.id) : undefined,
     ))
@@ -209,7 +211,8 @@ export function feedGroupJson(g: FeedGroup) {
 }
 
 /** Create a feed; the plain token is returned this once and never stored. */
-export async function createFeed(actor: Actor, input: CreateFeedInput): Promise<{ feed: FeedListRow; token: string; url: string; webcal: string }> {
+export async function createFeed(ctx: Ctx, input: CreateFeedInput): Promise<{ feed: FeedListRow; token: string; url: string; webcal: string }> {
+  const { ws, actor } = ctx;
   const db = getDb();
   let stillId: number | null = null;
   let personId: number | null = null;
@@ -217,7 +220,7 @@ export async function createFeed(actor: Actor, input: CreateFeedInput): Promise<
   if (input.scope === 'still') {
     if (!input.stillId) throw invalid('stillId', 'Choose a still.');
     const [s] = await db.select({ id: stills.id, name: stills.name }).from(stills)
-      .where(and(eq(stills.id, input.stillId), eq(stills.workspaceId, actor.workspaceId))).limit(1);
+      .where(and(eq(stills.id, input.stillId), eq(stills.workspaceId, ws.id))).limit(1);
     if (!s) throw invalid('stillId', 'That still is not in this distillery.');
     stillId = s.id;
     defaultName = s.name;
@@ -227,12 +230,12 @@ export async function createFeed(actor: Actor, input: CreateFeedInput): Promise<
       throw new HttpError(403, 'forbidden', 'You can subscribe to your own runs; a manager can make a feed of someone else\'s.');
     }
     const [m] = await db.select({ name: users.name }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
-      .where(and(eq(memberships.workspaceId, actor.workspaceId), eq(memberships.userId, personId))).limit(1);
+      .where(and(eq(memberships.workspaceId, ws.id), eq(memberships.userId, personId))).limit(1);
     if (!m) throw invalid('personId', 'That person is not a member of this distillery.');
     defaultName = personId === actor.userId ? 'My runs' : `${m.name}'s runs`;
   }
   const [{ count }] = await db.select({ count: sql<number>`COUNT(*)` }).from(calendarFeeds)
-    .where(and(eq(calendarFeeds.workspaceId, actor.workspaceId), eq(calendarFeeds.createdBy, actor.userId), isNull(calendarFeeds.revokedAt)));
+    .where(and(eq(calendarFeeds.workspaceId, ws.id), eq(calendarFeeds.createdBy, actor.userId), isNull(calendarFeeds.revokedAt)));
   if (Number(count) >= MAX_FEEDS_PER_PERSON) {
     throw new HttpError(409, 'too_many', `You already have ${MAX_FEEDS_PER_PERSON} feeds here; revoke one you no longer use first.`);
   }
@@ -240,25 +243,26 @@ export async function createFeed(actor: Actor, input: CreateFeedInput): Promise<
   const name = input.name ?? defaultName;
   const id = await db.transaction(async (tx) => {
     const [row] = await tx.insert(calendarFeeds).values({
-      workspaceId: actor.workspaceId, scope: input.scope, stillId, personId, name, tokenHash: hashToken(token), createdBy: actor.userId,
+      workspaceId: ws.id, scope: input.scope, stillId, personId, name, tokenHash: hashToken(token), createdBy: actor.userId,
     }).$returningId();
-    await audit({ workspaceId: actor.workspaceId, userId: actor.userId, action: 'feed.create', entityType: 'calendar_feed', entityId: row!.id, details: { scope: input.scope, stillId, personId, name } }, tx);
+    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'feed.create', entityType: 'calendar_feed', entityId: row!.id, details: { scope: input.scope, stillId, personId, name } }, tx);
     return row!.id;
   });
-  const [feed] = await listFeeds({ ...actor, role: 'manager' }, { id });
+  const [feed] = await listFeeds({ ws, actor: { ...actor, role: 'manager' } }, { id });
   if (!feed) throw new HttpError(409, 'conflict', 'The feed was created but cannot be read back; reload the page.');
   return { feed, token, ...feedUrls(token) };
 }
 
 /** Revoke a feed: the creator, or a manager. Someone else's feed is "not found" (its existence is not revealed). */
-export async function revokeFeed(actor: Actor, id: number): Promise<void> {
+export async function revokeFeed(ctx: Ctx, id: number): Promise<void> {
+  const { ws, actor } = ctx;
   const db = getDb();
   const [row] = await db.select({ id: calendarFeeds.id, createdBy: calendarFeeds.createdBy }).from(calendarFeeds)
-    .where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, actor.workspaceId), isNull(calendarFeeds.revokedAt))).limit(1);
+    .where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, ws.id), isNull(calendarFeeds.revokedAt))).limit(1);
   if (!row || (row.createdBy !== actor.userId && !can(actor.role, 'feeds.manage'))) throw notFound('No such feed.');
   await db.transaction(async (tx) => {
-    await tx.update(calendarFeeds).set({ revokedAt: new Date() }).where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, actor.workspaceId)));
-    await audit({ workspaceId: actor.workspaceId, userId: actor.userId, action: 'feed.revoke', entityType: 'calendar_feed', entityId: id }, tx);
+    await tx.update(calendarFeeds).set({ revokedAt: new Date() }).where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, ws.id)));
+    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'feed.revoke', entityType: 'calendar_feed', entityId: id }, tx);
   });
 }
 
@@ -339,45 +343,28 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
   const from = new Date(now.getTime() - FEED_DAYS_BACK * DAY_MS);
   const to = new Date(now.getTime() + FEED_DAYS_AHEAD * DAY_MS);
 
-  const [wsRow] = await db.select({ name: workspaces.name, timeZone: workspaces.timeZone, updatedAt: workspaces.updatedAt }).from(workspaces).where(eq(workspaces.id, ws)).limit(1);
+  const [wsRow] = await db.select().from(workspaces).where(eq(workspaces.id, ws)).limit(1);
   if (!wsRow) throw notFound();
+  const ctx = systemCtx(toSettings(wsRow)); // a feed is read by its token, for the workspace itself
 
   // Every run of the distillery in the window: warnings need the other stills' runs (operator
   // double-booked, spirit runs and their feeds) even when the feed shows one still or person.
-  const runRows = await db.select({
-    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, sequence: runs.sequence, updatedAt: runs.updatedAt,
-  }).from(runs).where(and(eq(runs.workspaceId, ws), lt(runs.startsAt, to), gt(runs.endsAt, from)));
-  const byId = new Map<number, LoadedRun>(runRows.map((r) => [r.id, { ...r, ferments: [], feeds: [], lowWinesLitres: null }]));
+  const runRows = await selectRuns(db, ws, { window: { from, to }, extra: { updatedAt: runs.updatedAt } });
+  const byId = new Map<number, LoadedRun>(runRows.map((r) => [r.id, r]));
 
   // Feeding runs of spirit runs can sit outside the window: load them too (one level).
-  const ids = [...byId.keys()];
-  const feedLinks = ids.length ? await db.select({ runId: runFeeds.runId, feedRunId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds)
-    .where(and(eq(runFeeds.workspaceId, ws), inArray(runFeeds.runId, ids))) : [];
-  const outside = [...new Set(feedLinks.map((l) => l.feedRunId).filter((id) => !byId.has(id)))];
-  const extra = new Map<number, LoadedRun>();
-  if (outside.length) {
-    const rows = await db.select({
-      id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-      operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, sequence: runs.sequence, updatedAt: runs.updatedAt,
-    }).from(runs).where(and(eq(runs.workspaceId, ws), inArray(runs.id, outside)));
-    for (const r of rows) extra.set(r.id, { ...r, ferments: [], feeds: [], lowWinesLitres: null });
-  }
-  for (const l of feedLinks) byId.get(l.runId)?.feeds.push({ runId: l.feedRunId, litres: l.litres });
+  const outside = [...new Set(runRows.flatMap((r) => r.feeds.map((l) => l.runId)).filter((id) => !byId.has(id)))];
+  const extra = new Map<number, LoadedRun>((await selectRuns(db, ws, { ids: outside, extra: { updatedAt: runs.updatedAt } })).map((r) => [r.id, r]));
   const all = (id: number) => byId.get(id) ?? extra.get(id);
-  const allIds = [...ids, ...extra.keys()];
-  const charges = allIds.length ? await db.select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres }).from(runFerments)
-    .where(and(eq(runFerments.workspaceId, ws), inArray(runFerments.runId, allIds))) : [];
-  for (const c of charges) all(c.runId)?.ferments.push({ fermentId: c.fermentId, litres: c.litres });
 
-  const fermentIds = [...new Set(charges.map((c) => c.fermentId))];
+  const fermentIds = [...new Set([...byId.values(), ...extra.values()].flatMap((r) => r.ferments.map((c) => c.fermentId)))];
   const [fermentRows, forecasts, readingStamps, stillRows] = await Promise.all([
     fermentIds.length ? db.select({ id: ferments.id, code: ferments.code, volumeLitres: ferments.volumeLitres, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt, updatedAt: ferments.updatedAt })
       .from(ferments).where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, fermentIds))) : [],
-    getForecasts(ws, fermentIds, now),
+    getForecasts(ctx, fermentIds, now),
     fermentIds.length ? db.select({ fermentId: readings.fermentId, at: sql<Date | string>`MAX(${readings.updatedAt})` }).from(readings)
       .where(and(eq(readings.workspaceId, ws), inArray(readings.fermentId, fermentIds))).groupBy(readings.fermentId) : [],
-    listStills(ws, { includeInactive: true }),
+    listStills(ctx, { includeInactive: true }),
   ]);
   const fermentChanged = new Map<number, Date>();
   for (const f of fermentRows) fermentChanged.set(f.id, f.updatedAt);
@@ -458,7 +445,7 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
         runType: run.type as RunType,
         stillName,
         ferments: run.ferments.map((c) => ({ ...(states.get(c.fermentId) ?? { code: `#${c.fermentId}`, status: 'insufficient_data' as const, readyAt: null, readyP10: null, readyP90: null, confirmedAt: null, emptiedAt: null }), litres: c.litres })),
-        chargeLitres: run.chargeLitres ?? (run.ferments.length ? run.ferments.reduce((s, c) => s + c.litres, 0) : run.feeds.length ? run.feeds.reduce((s, f) => s + f.litres, 0) : null),
+        chargeLitres: runChargeLitres(run),
         operatorName: run.operatorId !== null ? personName.get(run.operatorId) ?? null : null,
         warnings,
         url,

@@ -1,91 +1,53 @@
 import { and, asc, desc, eq, isNull, isNotNull, sql } from 'drizzle-orm';
+import { z } from 'zod';
 import { getDb } from '../db/client';
 import { fermentIngredients, fermenters, ferments, readings, washTypes } from '../db/schema';
-import { parseMassToKg, parseVolumeToLitres, massUnitFor, volumeUnitFor } from '../lib/units';
-import { resolveLocalTime } from '../lib/csv';
+import { parseMassToKg, parseVolumeToLitres, massUnitFor, volumeUnitFor, volumeForDisplay } from '../lib/units';
 import { audit } from './audit';
-import { HttpError, conflict, invalid, notFound } from './http';
-import type { WorkspaceSettings } from './workspaces';
+import { HttpError, conflict, invalid } from './http';
+import type { Ctx } from './context';
+import type { Tx } from './tx';
+import { CLOCK_SKEW_MS, parseWorkspaceTime } from './workspace-time';
+import { getFerment, type FermentRecord } from './ferment-lookup';
 import { recorrectFermentReadings } from './readings';
 import { getForecasts, recomputeForecast, type ForecastSummary } from './forecasts';
 
-/** Clocks on phones and loggers drift: times up to this far ahead of the server are accepted. */
-export const CLOCK_SKEW_MS = 5 * 60_000;
+// The lookup and the time parsing live in their own modules (readings.ts needs them too); re-exported here.
+export { CLOCK_SKEW_MS, parseWorkspaceTime } from './workspace-time';
+export { fermentForPage, getFerment, type FermentRecord } from './ferment-lookup';
 
-const LOCAL_TIME = /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2}))?$/;
+const sgField = (what: string) => z.number({ error: `Enter the ${what} as an SG, e.g. 1.060.` }).min(1, `The ${what} must be at least 1.000.`).max(1.2, `The ${what} must be at most 1.200.`);
 
-/**
- * A time from a form or API body: ISO 8601 with a zone is taken as written; a wall-clock
- * time without a zone ("2026-11-04T08:30", as a datetime-local input sends) is read in the
- * distillery's time zone.
- */
-export function parseWorkspaceTime(text: string, timeZone: string, field: string): Date {
-  const m = LOCAL_TIME.exec(text.trim());
-  if (m) {
-    const r = resolveLocalTime({ year: +m[1]!, month: +m[2]!, day: +m[3]!, hour: +m[4]!, minute: +m[5]!, second: m[6] ? +m[6] : 0, millisecond: 0 }, timeZone);
-    if (!r.ok) throw invalid(field, `${text} does not exist in ${timeZone} (the clocks went forward).`);
-    return r.instant;
-  }
-  const d = new Date(text);
-  if (!/^\d{4}-\d{2}-\d{2}T/.test(text) || Number.isNaN(d.getTime())) throw invalid(field, 'Give a date and time, e.g. 2026-11-04T08:30.');
-  return d;
-}
+/** A ferment as a person sends it (POST /api/ferments; PATCH takes it partial). */
+export const fermentInputSchema = z.object({
+  code: z.string().trim().min(1, 'Give the ferment a code, e.g. FV3-0412.').max(40, 'Keep the code to 40 characters.'),
+  washTypeId: z.number({ error: 'Choose a wash type.' }).int().positive('Choose a wash type.'),
+  fermenterId: z.number().int().positive().nullable(),
+  /** In the workspace's volume unit. */
+  volume: z.number({ error: 'Enter the volume as a number.' }).positive('The volume must be above zero.').max(1_000_000),
+  pitchedAt: z.string({ error: 'Give the pitch time.' }).min(1, 'Give the pitch time.').max(40),
+  og: sgField('OG'),
+  yeast: z.string().trim().max(120).nullable().optional(),
+  notes: z.string().max(5000).nullable().optional(),
+  /** Quantities in the workspace's mass unit (kg or lb). */
+  ingredients: z.array(z.object({
+    name: z.string().trim().max(120),
+    quantity: z.number({ error: 'Enter the quantity as a number.' }).min(0).max(1_000_000),
+  })).max(30).optional(),
+});
 
-export interface FermentRecord {
-  id: number;
-  code: string;
-  washTypeId: number;
-  washTypeName: string;
-  category: string;
-  terminalMin: number;
-  terminalMax: number;
-  fermenterId: number | null;
-  fermenterName: string | null;
-  fermenterCapacityLitres: number | null;
-  volumeLitres: number;
-  pitchedAt: Date;
-  og: number;
-  yeast: string | null;
-  notes: string | null;
-  emptiedAt: Date | null;
-  emptiedReason: 'distilled' | 'dumped' | null;
-  createdAt: Date;
-  updatedAt: Date;
-  ingredients: Array<{ id: number; name: string; quantityKg: number }>;
-}
+/** Marking a fermenter emptied: the wash went to the still (distilled) or was dumped. */
+export const emptyInputSchema = z.object({
+  reason: z.enum(['distilled', 'dumped'], { error: 'Say whether the wash went to the still or was dumped.' }),
+  at: z.string().max(40).optional(),
+});
 
-const fermentColumns = {
-  id: ferments.id, code: ferments.code, washTypeId: ferments.washTypeId, washTypeName: washTypes.name, category: washTypes.category,
-  terminalMin: washTypes.terminalMin, terminalMax: washTypes.terminalMax, fermenterId: ferments.fermenterId, fermenterName: fermenters.name,
-  fermenterCapacityLitres: fermenters.capacityLitres, volumeLitres: ferments.volumeLitres, pitchedAt: ferments.pitchedAt, og: ferments.og,
-  yeast: ferments.yeast, notes: ferments.notes, emptiedAt: ferments.emptiedAt, emptiedReason: ferments.emptiedReason,
-  createdAt: ferments.createdAt, updatedAt: ferments.updatedAt,
-};
-
-/** One ferment of the workspace, or 404. */
-/** For pages: the ferment named by a route param, or null when it is not this workspace's (render the 404). */
-export async function fermentForPage(workspaceId: number, param: string | undefined): Promise<FermentRecord | null> {
-  const id = Number(param);
-  if (!Number.isSafeInteger(id) || id <= 0) return null;
-  try {
-    return await getFerment(workspaceId, id);
-  } catch (e) {
-    if (e instanceof HttpError && e.status === 404) return null;
-    throw e;
-  }
-}
-
-export async function getFerment(workspaceId: number, id: number): Promise<FermentRecord> {
-  const db = getDb();
-  const [row] = await db.select(fermentColumns).from(ferments)
-    .innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
-    .leftJoin(fermenters, eq(fermenters.id, ferments.fermenterId))
-    .where(and(eq(ferments.id, id), eq(ferments.workspaceId, workspaceId))).limit(1);
-  if (!row) throw notFound('No such ferment.');
-  const ingredients = await db.select({ id: fermentIngredients.id, name: fermentIngredients.name, quantityKg: fermentIngredients.quantityKg })
-    .from(fermentIngredients).where(and(eq(fermentIngredients.fermentId, id), eq(fermentIngredients.workspaceId, workspaceId))).orderBy(asc(fermentIngredients.id));
-  return { ...row, ingredients };
-}
+/** Filters of the ferments list (GET /api/ferments). */
+export const fermentListQuery = z.object({
+  state: z.enum(['active', 'emptied', 'all']).optional(),
+  washTypeId: z.coerce.number().int().positive().optional(),
+  fermenterId: z.coerce.number().int().positive().optional(),
+});
 
 export interface FermentListRow {
   id: number;
@@ -107,8 +69,9 @@ export interface FermentListRow {
 
 export interface FermentFilters { state?: 'active' | 'emptied' | 'all'; washTypeId?: number; fermenterId?: number }
 
-export async function listFerments(workspaceId: number, filters: FermentFilters = {}, now = new Date()): Promise<FermentListRow[]> {
+export async function listFerments(ctx: Ctx, filters: FermentFilters = {}, now = new Date()): Promise<FermentListRow[]> {
   const db = getDb();
+  const workspaceId = ctx.ws.id;
   const conds = [eq(ferments.workspaceId, workspaceId)];
   const state = filters.state ?? 'active';
   if (state === 'active') conds.push(isNull(ferments.emptiedAt));
@@ -133,28 +96,17 @@ export async function listFerments(workspaceId: number, filters: FermentFilters 
     WHERE r.workspace_id = ${workspaceId} AND r.deleted_at IS NULL`) as unknown as [Array<{ fermentId: number; takenAt: Date | string; sg: number; n: number }>];
   const last = new Map<number, { takenAt: Date; sg: number; n: number }>();
   for (const r of latest) last.set(Number(r.fermentId), { takenAt: new Date(r.takenAt instanceof Date ? r.takenAt : `${r.takenAt}Z`), sg: Number(r.sg), n: Number(r.n) });
-  const forecasts = await getForecasts(workspaceId, rows.map((r) => r.id), now);
+  const forecasts = await getForecasts(ctx, rows.map((r) => r.id), now);
   return rows.map((r) => {
     const l = last.get(r.id);
     return { ...r, lastReadingAt: l?.takenAt ?? null, lastSg: l?.sg ?? null, readingCount: l?.n ?? 0, forecast: forecasts.get(r.id) ?? null };
   });
 }
 
-export interface FermentInput {
-  code: string;
-  washTypeId: number;
-  fermenterId: number | null;
-  /** In the workspace's volume unit (L or US gal). */
-  volume: number;
-  pitchedAt: string;
-  og: number;
-  yeast?: string | null;
-  notes?: string | null;
-  /** Quantities in the workspace's mass unit (kg or lb). */
-  ingredients?: Array<{ name: string; quantity: number }>;
-}
+/** Volume in the workspace's volume unit (L or US gal), ingredient quantities in its mass unit (kg or lb). */
+export type FermentInput = z.infer<typeof fermentInputSchema>;
 
-async function checkRefs(ws: WorkspaceSettings, input: Partial<FermentInput>, volumeLitres: number | undefined): Promise<void> {
+async function checkRefs(ws: Ctx['ws'], input: Partial<FermentInput>, volumeLitres: number | undefined): Promise<void> {
   const db = getDb();
   if (input.washTypeId !== undefined) {
     const [w] = await db.select({ id: washTypes.id }).from(washTypes).where(and(eq(washTypes.id, input.washTypeId), eq(washTypes.workspaceId, ws.id))).limit(1);
@@ -164,7 +116,7 @@ async function checkRefs(ws: WorkspaceSettings, input: Partial<FermentInput>, vo
     const [f] = await db.select().from(fermenters).where(and(eq(fermenters.id, input.fermenterId), eq(fermenters.workspaceId, ws.id))).limit(1);
     if (!f) throw invalid('fermenterId', 'Choose a fermenter of this distillery.');
     if (volumeLitres !== undefined && volumeLitres > f.capacityLitres * 1.0001) {
-      throw invalid('volume', `${f.name} holds at most ${Math.floor(ws.units === 'us' ? f.capacityLitres / 3.785411784 : f.capacityLitres)} ${volumeUnitFor(ws.units)}.`);
+      throw invalid('volume', `${f.name} holds at most ${Math.floor(volumeForDisplay(f.capacityLitres, ws.units))} ${volumeUnitFor(ws.units)}.`);
     }
   }
 }
@@ -175,8 +127,6 @@ async function checkCode(workspaceId: number, code: string, exceptId?: number): 
     throw new HttpError(409, 'conflict', `Code ${code} is already used by another ferment.`, { code: `Code ${code} is already used by another ferment.` });
   }
 }
-
-type Tx = Parameters<Parameters<ReturnType<typeof getDb>['transaction']>[0]>[0];
 
 /** A fermenter holds one ferment at a time: lock its row, then look for an active ferment in it. */
 async function claimFermenter(tx: Tx, workspaceId: number, fermenterId: number, exceptFermentId?: number): Promise<void> {
@@ -195,7 +145,8 @@ function checkPitch(pitchedAt: Date, now: Date): void {
   if (pitchedAt.getTime() > now.getTime() + CLOCK_SKEW_MS) throw invalid('pitchedAt', 'The pitch time is in the future.');
 }
 
-export async function createFerment(ws: WorkspaceSettings, userId: number, input: FermentInput, now = new Date()): Promise<FermentRecord> {
+export async function createFerment(ctx: Ctx, input: FermentInput, now = new Date()): Promise<FermentRecord> {
+  const { ws, actor: { userId } } = ctx;
   const volumeLitres = parseVolumeToLitres(input.volume, volumeUnitFor(ws.units));
   const pitchedAt = parseWorkspaceTime(input.pitchedAt, ws.timeZone, 'pitchedAt');
   checkPitch(pitchedAt, now);
@@ -218,12 +169,13 @@ export async function createFerment(ws: WorkspaceSettings, userId: number, input
     await audit({ workspaceId: ws.id, userId, action: 'ferment.create', entityType: 'ferment', entityId: fid, details: { code: input.code, volumeLitres, og: input.og, pitchedAt: pitchedAt.toISOString() } }, tx);
     return fid;
   });
-  await recomputeForecast(ws.id, id, now);
-  return getFerment(ws.id, id);
+  await recomputeForecast(ctx, id, now);
+  return getFerment(ctx, id);
 }
 
-export async function updateFerment(ws: WorkspaceSettings, userId: number, id: number, input: Partial<FermentInput>, now = new Date()): Promise<FermentRecord> {
-  const before = await getFerment(ws.id, id);
+export async function updateFerment(ctx: Ctx, id: number, input: Partial<FermentInput>, now = new Date()): Promise<FermentRecord> {
+  const { ws, actor: { userId } } = ctx;
+  const before = await getFerment(ctx, id);
   const patch: Partial<typeof ferments.$inferInsert> = {};
   if (input.code !== undefined && input.code !== before.code) { await checkCode(ws.id, input.code, id); patch.code = input.code; }
   if (input.washTypeId !== undefined) patch.washTypeId = input.washTypeId;
@@ -256,7 +208,7 @@ export async function updateFerment(ws: WorkspaceSettings, userId: number, id: n
     }
     // OG and pitch time feed the refractometer correction: re-derive the corrected values.
     if (patch.og !== undefined || patch.pitchedAt !== undefined) {
-      await recorrectFermentReadings(tx, ws, userId, { id, og: patch.og ?? before.og, pitchedAt: patch.pitchedAt ?? before.pitchedAt });
+      await recorrectFermentReadings(ctx, tx, { id, og: patch.og ?? before.og, pitchedAt: patch.pitchedAt ?? before.pitchedAt });
     }
     const pick = (o: Record<string, unknown>) => Object.fromEntries(Object.keys(patch).map((k) => [k, o[k] instanceof Date ? (o[k] as Date).toISOString() : o[k]]));
     await audit({
@@ -264,12 +216,13 @@ export async function updateFerment(ws: WorkspaceSettings, userId: number, id: n
       details: { before: pick(before as unknown as Record<string, unknown>), after: pick(patch as Record<string, unknown>), ingredientsChanged: input.ingredients !== undefined },
     }, tx);
   });
-  await recomputeForecast(ws.id, id, now);
-  return getFerment(ws.id, id);
+  await recomputeForecast(ctx, id, now);
+  return getFerment(ctx, id);
 }
 
-export async function emptyFerment(ws: WorkspaceSettings, userId: number, id: number, input: { reason: 'distilled' | 'dumped'; at?: string }, now = new Date()): Promise<FermentRecord> {
-  const before = await getFerment(ws.id, id);
+export async function emptyFerment(ctx: Ctx, id: number, input: z.infer<typeof emptyInputSchema>, now = new Date()): Promise<FermentRecord> {
+  const { ws, actor: { userId } } = ctx;
+  const before = await getFerment(ctx, id);
   if (before.emptiedAt) throw conflict(`${before.code} was already marked emptied.`);
   const at = input.at ? parseWorkspaceTime(input.at, ws.timeZone, 'at') : now;
   if (at.getTime() > now.getTime() + CLOCK_SKEW_MS) throw invalid('at', 'That time is in the future.');
@@ -281,8 +234,8 @@ export async function emptyFerment(ws: WorkspaceSettings, userId: number, id: nu
     if ((res as unknown as [{ affectedRows: number }])[0].affectedRows !== 1) throw conflict(`${before.code} was already marked emptied.`);
     await audit({ workspaceId: ws.id, userId, action: 'ferment.empty', entityType: 'ferment', entityId: id, details: { reason: input.reason, at: at.toISOString(), fermenterId: before.fermenterId } }, tx);
   });
-  await recomputeForecast(ws.id, id, now);
-  return getFerment(ws.id, id);
+  await recomputeForecast(ctx, id, now);
+  return getFerment(ctx, id);
 }
 
 /** Ferment as JSON in the workspace's display units. */

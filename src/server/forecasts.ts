@@ -1,9 +1,10 @@
 import { createHash } from 'node:crypto';
 import { and, desc, eq, inArray, isNotNull, isNull, sql } from 'drizzle-orm';
 import { getDb } from '../db/client';
-import { fermentForecasts, ferments, forecastHistory, readings, washTypes, workspaces } from '../db/schema';
+import { fermentForecasts, ferments, forecastHistory, readings, washTypes } from '../db/schema';
 import { forecastFerment, type Forecast, type ForecastStatus } from '../lib/forecast';
 import { notifyFermentStatusChange } from './notify';
+import type { Ctx } from './context';
 
 /** What the board and the ferments list need from a forecast. */
 export interface ForecastSummary {
@@ -120,11 +121,11 @@ function summaryOf(fermentId: number, f: Forecast): ForecastSummary {
   };
 }
 
-async function loadAll(workspaceId: number, fermentIds: number[]) {
+async function loadAll(ctx: Ctx, fermentIds: number[]) {
   const db = getDb();
-  const [settings] = await db.select({ stableDays: workspaces.stableDays, stableTolerance: workspaces.stableTolerance })
-    .from(workspaces).where(eq(workspaces.id, workspaceId)).limit(1);
-  if (!settings || fermentIds.length === 0) return { settings: settings ?? null, fs: [], byFerment: new Map<number, ReadingInput[]>(), cached: new Map(), finished: [] as FinishedFerment[] };
+  const workspaceId = ctx.ws.id;
+  const settings: Settings = { stableDays: ctx.ws.stableDays, stableTolerance: ctx.ws.stableTolerance };
+  if (fermentIds.length === 0) return { settings, fs: [], byFerment: new Map<number, ReadingInput[]>(), cached: new Map(), finished: [] as FinishedFerment[] };
   const fs: FermentInputs[] = await db.select({
     id: ferments.id, washTypeId: ferments.washTypeId, og: ferments.og, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt, updatedAt: ferments.updatedAt,
     terminalMin: washTypes.terminalMin, terminalMax: washTypes.terminalMax,
@@ -170,11 +171,11 @@ async function store(workspaceId: number, fermentId: number, key: string, f: For
 }
 
 /** Forecasts for many ferments of one workspace: cached rows when their key still matches, else recomputed and stored. */
-async function forecastsFor(workspaceId: number, fermentIds: number[], now: Date, force = false): Promise<Map<number, Forecast>> {
+async function forecastsFor(ctx: Ctx, fermentIds: number[], now: Date, force = false): Promise<Map<number, Forecast>> {
+  const workspaceId = ctx.ws.id;
   const ids = [...new Set(fermentIds)];
   const out = new Map<number, Forecast>();
-  const { settings, fs, byFerment, cached, finished } = await loadAll(workspaceId, ids);
-  if (!settings) return out;
+  const { settings, fs, byFerment, cached, finished } = await loadAll(ctx, ids);
   for (const f of fs) {
     const rs = byFerment.get(f.id) ?? [];
     const history = historyFor(f, finished, now);
@@ -192,22 +193,22 @@ async function forecastsFor(workspaceId: number, fermentIds: number[], now: Date
   return out;
 }
 
-export async function getForecasts(workspaceId: number, fermentIds: number[], now: Date = new Date()): Promise<Map<number, ForecastSummary>> {
-  const full = await forecastsFor(workspaceId, fermentIds, now);
+export async function getForecasts(ctx: Ctx, fermentIds: number[], now: Date = new Date()): Promise<Map<number, ForecastSummary>> {
+  const full = await forecastsFor(ctx, fermentIds, now);
   const out = new Map<number, ForecastSummary>();
   for (const [id, f] of full) out.set(id, summaryOf(id, f));
   return out;
 }
 
 /** The full forecast of one ferment (curve included), or null when the ferment is not in this workspace. */
-export async function getForecast(workspaceId: number, fermentId: number, now: Date = new Date()): Promise<Forecast | null> {
-  return (await forecastsFor(workspaceId, [fermentId], now)).get(fermentId) ?? null;
+export async function getForecast(ctx: Ctx, fermentId: number, now: Date = new Date()): Promise<Forecast | null> {
+  return (await forecastsFor(ctx, [fermentId], now)).get(fermentId) ?? null;
 }
 
 /** Recompute after a change of readings or ferment (called after the change's transaction commits). */
-export async function recomputeForecast(workspaceId: number, fermentId: number, now: Date = new Date()): Promise<Forecast | null> {
+export async function recomputeForecast(ctx: Ctx, fermentId: number, now: Date = new Date()): Promise<Forecast | null> {
   try {
-    return (await forecastsFor(workspaceId, [fermentId], now, true)).get(fermentId) ?? null;
+    return (await forecastsFor(ctx, [fermentId], now, true)).get(fermentId) ?? null;
   } catch (err) {
     // The change itself is committed; a failed forecast is recomputed on the next read.
     console.error('[plateau] forecast recompute failed:', err instanceof Error ? err.message : String(err));
@@ -222,15 +223,15 @@ export async function recomputeForecast(workspaceId: number, fermentId: number, 
  * past ferments that arrive at once (the demo distillery), so the forecast-accuracy report
  * has something to show. Returns the number of rows written.
  */
-export async function replayForecastHistory(workspaceId: number, fermentIds: number[], now: Date = new Date(), stepHours = 12): Promise<number> {
+export async function replayForecastHistory(ctx: Ctx, fermentIds: number[], now: Date = new Date(), stepHours = 12): Promise<number> {
+  const workspaceId = ctx.ws.id;
   const ids = [...new Set(fermentIds)];
   if (!ids.length) return 0;
   const db = getDb();
   const firstRecorded = new Map((await db.select({ id: forecastHistory.fermentId, first: sql<string | Date>`MIN(${forecastHistory.asOf})` }).from(forecastHistory)
     .where(and(eq(forecastHistory.workspaceId, workspaceId), inArray(forecastHistory.fermentId, ids))).groupBy(forecastHistory.fermentId))
     .map((r) => [r.id, r.first instanceof Date ? r.first.getTime() : Date.parse(`${String(r.first).replace(' ', 'T')}Z`)]));
-  const { settings, fs, byFerment, finished } = await loadAll(workspaceId, ids);
-  if (!settings) return 0;
+  const { settings, fs, byFerment, finished } = await loadAll(ctx, ids);
   const rows: Array<typeof forecastHistory.$inferInsert> = [];
   for (const f of fs) {
     const rs = [...(byFerment.get(f.id) ?? [])].sort((a, b) => a.takenAt.getTime() - b.takenAt.getTime());

@@ -1,7 +1,6 @@
 import type { APIContext, APIRoute } from 'astro';
 import { z, type ZodType } from 'zod';
 import { can, type Action } from './authz';
-import type { Role } from '../db/schema';
 import { isDbUnavailable } from './db-errors';
 import { clientIp } from './request';
 import type { Ctx, UserCtx } from './context';
@@ -41,7 +40,8 @@ export function zodFields(error: z.ZodError): Record<string, string> {
   return fields;
 }
 
-function invalidResponse(error: z.ZodError): Response {
+/** The one 400 answer for input that does not parse (what route() sends). */
+export function invalidResponse(error: z.ZodError): Response {
   const fields = zodFields(error);
   const first = Object.entries(fields)[0];
   const message = first ? (first[0] === '_' ? first[1] : `${first[0]}: ${first[1]}`) : 'Invalid input';
@@ -49,13 +49,6 @@ function invalidResponse(error: z.ZodError): Response {
 }
 
 export const MAX_JSON_BYTES = 256 * 1024;
-
-export interface Authed {
-  userId: number;
-  workspaceId: number;
-  role: Role;
-  timeZone: string;
-}
 
 type Params = Record<string, string | undefined>;
 
@@ -73,8 +66,6 @@ export interface RouteOptions<A extends Action | 'user' | 'public', B, Q> {
   maxBytes?: number;
 }
 
-type Handler<B, Q> = (args: { ctx: APIContext; auth: Authed; body: B; query: Q; params: Params }) => Promise<Response>;
-
 /**
  * Every API route goes through here, in a fixed order:
  * 401 no session -> 403 role -> 400 invalid input (413 past the body cap) -> handler
@@ -88,15 +79,12 @@ type Handler<B, Q> = (args: { ctx: APIContext; auth: Authed; body: B; query: Q; 
 export function route<A extends Action | 'user' | 'public', B = undefined, Q = undefined>(
   opts: RouteOptions<A, B, Q>,
   handler: (args: RouteArgs<A, B, Q>) => Promise<Response>,
-): APIRoute;
-/** @deprecated the older shape: `{ action }` and an `auth: Authed` argument. */
-export function route<B = undefined, Q = undefined>(opts: { action: Action; body?: ZodType<B>; query?: ZodType<Q> }, handler: Handler<B, Q>): APIRoute;
-export function route(opts: { auth?: Action | 'user' | 'public'; action?: Action; body?: ZodType<unknown>; query?: ZodType<unknown>; maxBytes?: number }, handler: (args: never) => Promise<Response>): APIRoute {
+): APIRoute {
   const call = handler as unknown as (args: Record<string, unknown>) => Promise<Response>;
   return async (req) => {
     try {
       const { user, workspace, role, sessionId } = req.locals;
-      const auth = opts.auth ?? opts.action!;
+      const auth: Action | 'user' | 'public' = opts.auth;
       let who: Record<string, unknown> = {};
       if (auth === 'user') {
         if (!user || !sessionId) return jsonError(401, 'unauthenticated', 'Sign in first.');
@@ -105,9 +93,7 @@ export function route(opts: { auth?: Action | 'user' | 'public'; action?: Action
         if (!user || !workspace || !role) return jsonError(401, 'unauthenticated', 'Sign in first.');
         if (!can(role, auth)) return jsonError(403, 'forbidden', 'Your role cannot do this.');
         const ctx: Ctx = { ws: workspace, actor: { userId: user.id, role, ip: clientIp(req) } };
-        who = opts.auth
-          ? { ctx }
-          : { ctx: req, auth: { userId: user.id, workspaceId: workspace.id, role, timeZone: workspace.timeZone } satisfies Authed };
+        who = { ctx };
       }
       let query: unknown = undefined;
       if (opts.query) {
@@ -123,25 +109,7 @@ export function route(opts: { auth?: Action | 'user' | 'public'; action?: Action
         body = parsed.data;
       }
       const params = req.params as Params;
-      return await call(opts.auth ? { req, body, query, params, ...who } : { ctx: req, body, query, params, ...who });
-    } catch (err) {
-      return errorResponse(err);
-    }
-  };
-}
-
-/** A public route (no session): same error handling, same validation. */
-export function publicRoute<B = undefined>(opts: { body?: ZodType<B> }, handler: (args: { ctx: APIContext; body: B }) => Promise<Response>): APIRoute {
-  return async (ctx) => {
-    try {
-      let body = undefined as B;
-      if (opts.body) {
-        const { raw: data } = await readBody(ctx.request, MAX_JSON_BYTES);
-        const parsed = opts.body.safeParse(data);
-        if (!parsed.success) return invalidResponse(parsed.error);
-        body = parsed.data;
-      }
-      return await handler({ ctx, body });
+      return await call({ req, body, query, params, ...who });
     } catch (err) {
       return errorResponse(err);
     }

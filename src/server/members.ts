@@ -1,12 +1,12 @@
 /**
  * People and the distillery itself: members and roles, invitations, workspace settings,
  * deleting a workspace, and reading the audit log. Every query is scoped by the
- * workspace id from the session (auth.workspaceId), never by an id from the request alone.
+ * workspace of the caller's context (ctx.ws.id), never by an id from the request alone.
  */
 import { and, eq, isNull, gt, asc, desc, sql, gte, lt, type SQL } from 'drizzle-orm';
 import { getDb } from '../db/client';
 import { memberships, users, invitations, workspaces, sessions, auditLog, type Role } from '../db/schema';
-import type { Authed } from './http';
+import type { Ctx } from './context';
 import { HttpError, conflict, notFound } from './http';
 import { audit } from './audit';
 import { inRetriedTransaction } from './runs';
@@ -23,51 +23,53 @@ const LAST_MANAGER = 'A distillery needs at least one manager. Make someone else
 export interface MemberRow { userId: number; name: string; email: string; role: Role; joinedAt: Date }
 export interface PendingInvitation { id: number; email: string; role: Role; expiresAt: Date; invitedByName: string | null }
 
-export async function listMembers(workspaceId: number): Promise<MemberRow[]> {
+export async function listMembers(ctx: Ctx): Promise<MemberRow[]> {
   return getDb().select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, joinedAt: memberships.createdAt })
     .from(memberships).innerJoin(users, eq(users.id, memberships.userId))
-    .where(eq(memberships.workspaceId, workspaceId)).orderBy(asc(users.name));
+    .where(eq(memberships.workspaceId, ctx.ws.id)).orderBy(asc(users.name));
 }
 
-export async function listPendingInvitations(workspaceId: number): Promise<PendingInvitation[]> {
+export async function listPendingInvitations(ctx: Ctx): Promise<PendingInvitation[]> {
   return getDb().select({ id: invitations.id, email: invitations.email, role: invitations.role, expiresAt: invitations.expiresAt, invitedByName: users.name })
     .from(invitations).leftJoin(users, eq(users.id, invitations.invitedBy))
-    .where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .where(and(eq(invitations.workspaceId, ctx.ws.id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
     .orderBy(desc(invitations.createdAt));
 }
 
 /** Invite an address with a role: a 7-day single-use link by e-mail. Re-inviting replaces the older link. */
-export async function invite(auth: Authed, input: { email: string; role: Role }, ip: string | null): Promise<{ invitationId: number }> {
+export async function invite(ctx: Ctx, input: { email: string; role: Role }): Promise<{ invitationId: number }> {
+  const { ws, actor } = ctx;
   const email = normaliseEmail(input.email);
   const db = getDb();
   return db.transaction(async (tx) => {
     const [member] = await tx.select({ id: users.id }).from(users)
-      .innerJoin(memberships, and(eq(memberships.userId, users.id), eq(memberships.workspaceId, auth.workspaceId)))
+      .innerJoin(memberships, and(eq(memberships.userId, users.id), eq(memberships.workspaceId, ws.id)))
       .where(eq(users.email, email)).limit(1);
     if (member) throw conflict(`${email} is already a member of this distillery.`);
-    const [ws] = await tx.select({ name: workspaces.name }).from(workspaces).where(eq(workspaces.id, auth.workspaceId)).limit(1);
-    const [inviter] = await tx.select({ name: users.name }).from(users).where(eq(users.id, auth.userId)).limit(1);
+    const [named] = await tx.select({ name: workspaces.name }).from(workspaces).where(eq(workspaces.id, ws.id)).limit(1);
+    const [inviter] = await tx.select({ name: users.name }).from(users).where(eq(users.id, actor.userId)).limit(1);
     await tx.update(invitations).set({ revokedAt: new Date() })
-      .where(and(eq(invitations.workspaceId, auth.workspaceId), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+      .where(and(eq(invitations.workspaceId, ws.id), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
     const token = newToken();
     const [row] = await tx.insert(invitations).values({
-      workspaceId: auth.workspaceId, email, role: input.role, tokenHash: hashToken(token), invitedBy: auth.userId,
+      workspaceId: ws.id, email, role: input.role, tokenHash: hashToken(token), invitedBy: actor.userId,
       expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000),
     }).$returningId();
-    const mail = invitationMail({ workspaceName: ws?.name ?? 'a distillery', inviterName: inviter?.name ?? 'A manager', role: input.role, link: publicUrl(`/invite/${token}`), days: INVITATION_DAYS });
-    await enqueue(tx, { workspaceId: auth.workspaceId, kind: 'invitation', to: email, ...mail });
-    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.invited', entityType: 'invitation', entityId: row!.id, details: { email, role: input.role }, ip }, tx);
+    const mail = invitationMail({ workspaceName: named?.name ?? 'a distillery', inviterName: inviter?.name ?? 'A manager', role: input.role, link: publicUrl(`/invite/${token}`), days: INVITATION_DAYS });
+    await enqueue(tx, { workspaceId: ws.id, kind: 'invitation', to: email, ...mail });
+    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'member.invited', entityType: 'invitation', entityId: row!.id, details: { email, role: input.role }, ip: actor.ip }, tx);
     return { invitationId: row!.id };
   });
 }
 
-export async function revokeInvitation(auth: Authed, invitationId: number, ip: string | null): Promise<void> {
+export async function revokeInvitation(ctx: Ctx, invitationId: number): Promise<void> {
+  const { ws, actor } = ctx;
   const db = getDb();
   await db.transaction(async (tx) => {
     const [res] = await tx.update(invitations).set({ revokedAt: new Date() })
-      .where(and(eq(invitations.id, invitationId), eq(invitations.workspaceId, auth.workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+      .where(and(eq(invitations.id, invitationId), eq(invitations.workspaceId, ws.id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
     if ((res as { affectedRows?: number }).affectedRows !== 1) throw notFound('No such invitation.');
-    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.invitation_revoked', entityType: 'invitation', entityId: invitationId, ip }, tx);
+    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'member.invitation_revoked', entityType: 'invitation', entityId: invitationId, ip: actor.ip }, tx);
   });
 }
 
@@ -93,25 +95,27 @@ async function lockMembers(tx: Tx, workspaceId: number, userId: number) {
 }
 
 /** Change a member's role. Refuses (409) to leave the distillery without a manager, even under concurrent changes. */
-export async function changeRole(auth: Authed, userId: number, role: Role, ip: string | null): Promise<void> {
+export async function changeRole(ctx: Ctx, userId: number, role: Role): Promise<void> {
+  const { ws, actor } = ctx;
   await inRetriedTransaction(async (tx) => {
-    const { target, managers } = await lockMembers(tx, auth.workspaceId, userId);
+    const { target, managers } = await lockMembers(tx, ws.id, userId);
     if (target.role === role) return;
     if (target.role === 'manager' && managers <= 1) throw conflict(LAST_MANAGER);
-    await tx.update(memberships).set({ role }).where(and(eq(memberships.workspaceId, auth.workspaceId), eq(memberships.userId, userId)));
-    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.role_changed', entityType: 'user', entityId: userId, details: { from: target.role, to: role }, ip }, tx);
+    await tx.update(memberships).set({ role }).where(and(eq(memberships.workspaceId, ws.id), eq(memberships.userId, userId)));
+    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'member.role_changed', entityType: 'user', entityId: userId, details: { from: target.role, to: role }, ip: actor.ip }, tx);
   });
 }
 
 /** Remove a member (their calendar feeds stop opening at once). Refuses (409) to remove the last manager. */
-export async function removeMember(auth: Authed, userId: number, ip: string | null): Promise<void> {
+export async function removeMember(ctx: Ctx, userId: number): Promise<void> {
+  const { ws, actor } = ctx;
   await inRetriedTransaction(async (tx) => {
-    const { target, managers } = await lockMembers(tx, auth.workspaceId, userId);
+    const { target, managers } = await lockMembers(tx, ws.id, userId);
     if (target.role === 'manager' && managers <= 1) throw conflict(LAST_MANAGER);
-    await tx.delete(memberships).where(and(eq(memberships.workspaceId, auth.workspaceId), eq(memberships.userId, userId)));
+    await tx.delete(memberships).where(and(eq(memberships.workspaceId, ws.id), eq(memberships.userId, userId)));
     // Sessions that were looking at this distillery fall back to another of the person's distilleries.
-    await tx.update(sessions).set({ workspaceId: null }).where(and(eq(sessions.userId, userId), eq(sessions.workspaceId, auth.workspaceId)));
-    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'member.removed', entityType: 'user', entityId: userId, details: { role: target.role }, ip }, tx);
+    await tx.update(sessions).set({ workspaceId: null }).where(and(eq(sessions.userId, userId), eq(sessions.workspaceId, ws.id)));
+    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'member.removed', entityType: 'user', entityId: userId, details: { role: target.role }, ip: actor.ip }, tx);
   });
 }
 
@@ -173,31 +177,33 @@ export async function acceptInvitation(
 
 export interface SettingsInput { name: string; timeZone: string; units: 'metric' | 'us'; calibrationTempC: number; stableDays: number; stableTolerance: number; wortCorrectionFactor: number }
 
-export async function updateWorkspaceSettings(auth: Authed, input: SettingsInput, ip: string | null): Promise<void> {
+export async function updateWorkspaceSettings(ctx: Ctx, input: SettingsInput): Promise<void> {
+  const { ws, actor } = ctx;
   const db = getDb();
   await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(workspaces).where(eq(workspaces.id, auth.workspaceId)).for('update').limit(1);
+    const [before] = await tx.select().from(workspaces).where(eq(workspaces.id, ws.id)).for('update').limit(1);
     if (!before) throw notFound();
     const changed: Record<string, { from: unknown; to: unknown }> = {};
     for (const k of Object.keys(input) as Array<keyof SettingsInput>) {
       if (before[k] !== input[k]) changed[k] = { from: before[k], to: input[k] };
     }
     if (!Object.keys(changed).length) return;
-    await tx.update(workspaces).set(input).where(eq(workspaces.id, auth.workspaceId));
-    await audit({ workspaceId: auth.workspaceId, userId: auth.userId, action: 'workspace.settings_changed', entityType: 'workspace', entityId: auth.workspaceId, details: changed, ip }, tx);
+    await tx.update(workspaces).set(input).where(eq(workspaces.id, ws.id));
+    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'workspace.settings_changed', entityType: 'workspace', entityId: ws.id, details: changed, ip: actor.ip }, tx);
   });
 }
 
 /** Delete the distillery and everything in it (the foreign keys cascade). The name must be typed exactly. */
-export async function deleteWorkspace(auth: Authed, confirmName: string, ip: string | null): Promise<void> {
+export async function deleteWorkspace(ctx: Ctx, confirmName: string): Promise<void> {
+  const { ws, actor } = ctx;
   const db = getDb();
-  const [ws] = await db.select({ name: workspaces.name }).from(workspaces).where(eq(workspaces.id, auth.workspaceId)).limit(1);
-  if (!ws) throw notFound();
-  if (confirmName.trim() !== ws.name) throw new HttpError(400, 'invalid', 'Type the distillery name exactly as shown to delete it.', { confirmName: 'The name does not match.' });
+  const [row] = await db.select({ name: workspaces.name }).from(workspaces).where(eq(workspaces.id, ws.id)).limit(1);
+  if (!row) throw notFound();
+  if (confirmName.trim() !== row.name) throw new HttpError(400, 'invalid', 'Type the distillery name exactly as shown to delete it.', { confirmName: 'The name does not match.' });
   await db.transaction(async (tx) => {
     // Kept outside the workspace (workspace_id NULL) so the deletion itself stays on record.
-    await audit({ workspaceId: null, userId: auth.userId, action: 'workspace.deleted', entityType: 'workspace', entityId: auth.workspaceId, details: { name: ws.name }, ip }, tx);
-    await tx.delete(workspaces).where(eq(workspaces.id, auth.workspaceId));
+    await audit({ workspaceId: null, userId: actor.userId, action: 'workspace.deleted', entityType: 'workspace', entityId: ws.id, details: { name: row.name }, ip: actor.ip }, tx);
+    await tx.delete(workspaces).where(eq(workspaces.id, ws.id));
   });
 }
 
@@ -207,8 +213,9 @@ export const AUDIT_PAGE_SIZE = 50;
 export interface AuditFilters { action?: string; userId?: number; from?: Date; to?: Date; page?: number }
 export interface AuditRow { id: number; createdAt: Date; action: string; userId: number | null; userName: string | null; entityType: string | null; entityId: string | null; details: unknown; ip: string | null }
 
-export async function listAudit(workspaceId: number, f: AuditFilters): Promise<{ rows: AuditRow[]; page: number; hasMore: boolean; actions: string[] }> {
+export async function listAudit(ctx: Ctx, f: AuditFilters): Promise<{ rows: AuditRow[]; page: number; hasMore: boolean; actions: string[] }> {
   const db = getDb();
+  const workspaceId = ctx.ws.id;
   const where: SQL[] = [eq(auditLog.workspaceId, workspaceId)];
   if (f.action) where.push(eq(auditLog.action, f.action));
   if (f.userId) where.push(eq(auditLog.userId, f.userId));

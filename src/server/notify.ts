@@ -12,14 +12,16 @@
  */
 import { and, eq, inArray, isNull } from 'drizzle-orm';
 import { getDb, type Db } from '../db/client';
-import { fermentForecasts, ferments, jobClaims, memberships, runFerments, runs, stills, users, workspaces, type Role } from '../db/schema';
+import { fermentForecasts, ferments, jobClaims, memberships, runs, stills, users, workspaces, type Role } from '../db/schema';
 import { RUN_TYPE_LABELS, shortDate } from '../lib/board';
 import type { BoardRun } from '../lib/board';
 import { wallClock } from '../lib/schedule';
 import { env } from '../config';
 import { enqueue } from './mail/outbox';
 import { escapeHtml, shell, type MailContent } from './mail/templates';
-import type { RunChange, Tx } from './runs';
+import type { Tx } from './tx';
+import { selectRuns, stillName, type RunChange } from './run-query';
+import type { Ctx } from './context';
 
 export type Writer = Pick<Db, 'insert' | 'select' | 'update'>;
 
@@ -73,15 +75,17 @@ export function effectivePrefs(role: Role, stored: Record<string, boolean> | nul
   return out;
 }
 
-export async function getNotifyPrefs(workspaceId: number, userId: number): Promise<{ role: Role; prefs: NotifyPrefs; kinds: NotifyKindInfo[] } | null> {
+export async function getNotifyPrefs(ctx: Ctx): Promise<{ role: Role; prefs: NotifyPrefs; kinds: NotifyKindInfo[] } | null> {
   const [m] = await getDb().select({ role: memberships.role, prefs: memberships.notifyPrefs }).from(memberships)
-    .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId))).limit(1);
+    .where(and(eq(memberships.workspaceId, ctx.ws.id), eq(memberships.userId, ctx.actor.userId))).limit(1);
   if (!m) return null;
   return { role: m.role, prefs: effectivePrefs(m.role, m.prefs), kinds: NOTIFY_KIND_INFO.filter((i) => i.roles.includes(m.role)) };
 }
 
 /** Save a person's choices (only kinds their role may receive are kept). */
-export async function setNotifyPrefs(workspaceId: number, userId: number, changes: Partial<Record<NotifyKind, boolean>>): Promise<NotifyPrefs> {
+export async function setNotifyPrefs(ctx: Ctx, changes: Partial<Record<NotifyKind, boolean>>): Promise<NotifyPrefs> {
+  const workspaceId = ctx.ws.id;
+  const userId = ctx.actor.userId;
   const db = getDb();
   return db.transaction(async (tx) => {
     const [m] = await tx.select({ role: memberships.role, prefs: memberships.notifyPrefs }).from(memberships)
@@ -305,9 +309,7 @@ export async function notifyFermentStatusChange(db: Pick<Db, 'transaction'>, cha
       // The claim commits with the mails: a second instance's insert fails and sends nothing.
       if (!(await claimOnce(tx, workspaceId, `ferment_${after}`, `${fermentId}:${day}`))) return false;
       const now = new Date();
-      const atRisk = await tx.select({ id: runs.id, type: runs.type, startsAt: runs.startsAt, stillName: stills.name })
-        .from(runFerments).innerJoin(runs, eq(runs.id, runFerments.runId)).innerJoin(stills, eq(stills.id, runs.stillId))
-        .where(and(eq(runFerments.workspaceId, workspaceId), eq(runFerments.fermentId, fermentId), inArray(runs.status, ['planned', 'confirmed'])));
+      const atRisk = await selectRuns(tx, workspaceId, { takingFerment: fermentId, where: inArray(runs.status, ['planned', 'confirmed']), extra: { stillName } });
       const upcoming = atRisk.filter((r) => r.startsAt.getTime() > now.getTime()).sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime());
       const subject = after === 'stalled' ? `Wash ${f.code} has stalled` : `Wash ${f.code} shows signs of souring`;
       const lines = [

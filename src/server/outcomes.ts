@@ -10,16 +10,19 @@
 import { and, asc, eq, inArray, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb, type Db } from '../db/client';
-import { ferments, runFeeds, runFerments, runOutcomes, runs, stills, users, OUTCOME_FRACTIONS } from '../db/schema';
+import { ferments, runFerments, runOutcomes, runs, stills, OUTCOME_FRACTIONS } from '../db/schema';
 import {
   chargedLaa, computeFraction, expectedLaaFromFeeds, expectedLaaFromFerments, recoveryRatio, sumLaa, validateRunRecord,
   EXPECTED_LAA_FORMULA, FRACTIONS_BY_RUN_TYPE, type Fraction, type FractionResult,
 } from '../lib/reports';
 import { laaToProofGallons } from '../lib/alcohol';
+import { runChargeLitres } from '../lib/schedule';
 import { audit } from './audit';
 import { getForecasts } from './forecasts';
 import { HttpError, conflict, notFound } from './http';
+import type { Ctx } from './context';
 import { getRun, inRetriedTransaction, onRunChanged, runJson } from './runs';
+import { operatorName, selectRun, stillCapacityLitres, stillName } from './run-query';
 
 type Reader = Pick<Db, 'select'>;
 
@@ -74,14 +77,15 @@ function fgFor(f: { emptiedAt: Date | null }, fc: { status: string; lastSg: numb
 }
 
 /** Ferment lines of stripping runs with the gravity each was expected to finish at. */
-export async function fermentLinesFor(workspaceId: number, runIds: number[], db: Reader = getDb()): Promise<Map<number, FermentLine[]>> {
+export async function fermentLinesFor(ctx: Ctx, runIds: number[], db: Reader = getDb()): Promise<Map<number, FermentLine[]>> {
+  const workspaceId = ctx.ws.id;
   const out = new Map<number, FermentLine[]>();
   if (runIds.length === 0) return out;
   const lines = await db.select({
     runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres, code: ferments.code, og: ferments.og, emptiedAt: ferments.emptiedAt,
   }).from(runFerments).innerJoin(ferments, and(eq(ferments.id, runFerments.fermentId), eq(ferments.workspaceId, workspaceId)))
     .where(and(eq(runFerments.workspaceId, workspaceId), inArray(runFerments.runId, runIds)));
-  const forecasts = lines.length ? await getForecasts(workspaceId, [...new Set(lines.map((l) => l.fermentId))]) : new Map();
+  const forecasts = lines.length ? await getForecasts(ctx, [...new Set(lines.map((l) => l.fermentId))]) : new Map();
   for (const l of lines) {
     const { fg, source } = fgFor(l, forecasts.get(l.fermentId));
     const list = out.get(l.runId) ?? [];
@@ -103,35 +107,35 @@ async function loadFractions(db: Reader, workspaceId: number, runIds: number[]) 
 
 const FRACTION_ORDER: Record<Fraction, number> = { low_wines: 0, heads: 1, hearts: 2, tails: 3, feints: 4 };
 
-export async function getRunRecord(workspaceId: number, runId: number): Promise<RunRecord> {
+export async function getRunRecord(ctx: Ctx, runId: number): Promise<RunRecord> {
   const db = getDb();
-  const [row] = await db.select({
-    id: runs.id, type: runs.type, status: runs.status, version: runs.version, stillId: runs.stillId, stillName: stills.name, stillCapacityLitres: stills.capacityLitres,
-    startsAt: runs.startsAt, endsAt: runs.endsAt, finishedAt: runs.finishedAt, operatorName: users.name, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv,
-  }).from(runs).innerJoin(stills, eq(stills.id, runs.stillId)).leftJoin(users, eq(users.id, runs.operatorId))
-    .where(and(eq(runs.id, runId), eq(runs.workspaceId, workspaceId))).limit(1);
-  if (!row) throw notFound('No such run in this distillery.');
+  const workspaceId = ctx.ws.id;
+  const run = await selectRun(db, workspaceId, runId, { stillName, stillCapacityLitres, operatorName, finishedAt: runs.finishedAt });
+  if (!run) throw notFound('No such run in this distillery.');
+  const row: RunRecord['run'] = {
+    id: run.id, type: run.type, status: run.status, version: run.version, stillId: run.stillId, stillName: run.stillName, stillCapacityLitres: run.stillCapacityLitres,
+    startsAt: run.startsAt, endsAt: run.endsAt, finishedAt: run.finishedAt, operatorName: run.operatorName, chargeLitres: run.chargeLitres, chargeAbv: run.chargeAbv,
+  };
   const fr = (await loadFractions(db, workspaceId, [runId]))
     .map((o) => ({
       id: o.id, fraction: o.fraction, volumeLitres: o.volumeLitres, alcoholmeterReading: o.alcoholmeterReading, readingTempC: o.readingTempC,
       cutNote: o.cutNote, abv20: o.abv20, laa: o.laa, proofGallons: laaToProofGallons(o.laa),
     }))
     .sort((a, b) => FRACTION_ORDER[a.fraction] - FRACTION_ORDER[b.fraction]);
-  const feedRows = await db.select({ runId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds)
-    .where(and(eq(runFeeds.workspaceId, workspaceId), eq(runFeeds.runId, runId)));
+  const feedRows = run.feeds;
   const lineRuns = [runId, ...feedRows.map((f) => f.runId)];
-  const lines = await fermentLinesFor(workspaceId, lineRuns, db);
+  const lines = await fermentLinesFor(ctx, lineRuns, db);
   const feedLowWines = await loadFractions(db, workspaceId, feedRows.map((f) => f.runId));
   const feeds = feedRows.map((f) => {
     const lw = feedLowWines.filter((o) => o.runId === f.runId && o.fraction === 'low_wines');
     return { runId: f.runId, litres: f.litres, lowWinesLitres: lw.length ? lw.reduce((s, o) => s + o.volumeLitres, 0) : null, expectedLaa: expectedForStripping(lines.get(f.runId)) };
   });
   const collected = sumLaa(fr);
-  const charged = chargedLaa({ litres: row.chargeLitres, abv: row.chargeAbv });
+  const charged = chargedLaa({ litres: runChargeLitres(run), abv: run.chargeAbv });
   const expected = row.type === 'stripping' ? expectedForStripping(lines.get(runId)) : expectedLaaFromFeeds(feeds);
   return {
     run: row,
-    allowedFractions: FRACTIONS_BY_RUN_TYPE[row.type],
+    allowedFractions: FRACTIONS_BY_RUN_TYPE[run.type],
     fractions: fr,
     ferments: lines.get(runId) ?? [],
     feeds,
@@ -148,14 +152,15 @@ export async function getRunRecord(workspaceId: number, runId: number): Promise<
 }
 
 /** Replace the run's fractions (and charge) in one transaction; optionally finish a running run. */
-export async function saveRunRecord(workspaceId: number, userId: number, runId: number, body: OutcomesBody): Promise<RunRecord> {
+export async function saveRunRecord(ctx: Ctx, runId: number, body: OutcomesBody): Promise<RunRecord> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   await inRetriedTransaction(async (tx) => {
     const [locked] = await tx.select({
       id: runs.id, type: runs.type, status: runs.status, version: runs.version, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, capacity: stills.capacityLitres,
     }).from(runs).innerJoin(stills, eq(stills.id, runs.stillId))
       .where(and(eq(runs.id, runId), eq(runs.workspaceId, workspaceId))).for('update');
     if (!locked) throw notFound('No such run in this distillery.');
-    const before = await getRun(workspaceId, runId, tx);
+    const before = await getRun(ctx, runId, tx);
     if (locked.version !== body.version) {
       throw new HttpError(409, 'stale', 'Someone changed this run since you loaded it.', undefined, { current: runJson(before) });
     }
@@ -194,7 +199,7 @@ export async function saveRunRecord(workspaceId: number, userId: number, runId: 
         .set({ updatedAt: sql`GREATEST(CURRENT_TIMESTAMP(3), ${stills.updatedAt} + INTERVAL 1000 MICROSECOND)` })
         .where(and(eq(stills.workspaceId, workspaceId), eq(stills.id, before.stillId)));
     }
-    const after = await getRun(workspaceId, runId, tx);
+    const after = await getRun(ctx, runId, tx);
     await audit({
       workspaceId, userId, action: 'run.record', entityType: 'run', entityId: runId,
       details: {
@@ -209,7 +214,7 @@ export async function saveRunRecord(workspaceId: number, userId: number, runId: 
       await onRunChanged(tx, { kind: 'update', workspaceId, before, after, actorId: userId });
     }
   });
-  return getRunRecord(workspaceId, runId);
+  return getRunRecord(ctx, runId);
 }
 
 /** JSON for the API (ISO times). */

@@ -4,7 +4,7 @@ import { ACTIONS, can, type Action } from './authz';
 import { HttpError } from './http';
 import type { Role } from '../db/schema';
 import type { WorkspaceSettings } from './workspaces';
-import type { Ctx } from './context';
+import type { Ctx, UserCtx } from './context';
 
 /**
  * The page gate: pages are authorized like API routes. A page calls `pageGate(Astro, action)`
@@ -12,7 +12,7 @@ import type { Ctx } from './context';
  *
  *   const gate = await pageGate(Astro, 'ferments.write');
  *   if (!gate.ok) return gate.response;          // 303 sign-in, or the 403 "not for your role" page
- *   const found = await pageRow(Astro, (id) => getFerment(gate.workspace.id, id));
+ *   const found = await pageRow(Astro, (id) => getFerment(gate.ctx, id));
  *   if (!found.ok) return found.response;        // the 404 page: bad id, or not in this distillery
  *
  * Same order as route(): no session, role, then the row. A refused role or id is never a 500.
@@ -84,10 +84,10 @@ export async function pageGate(Astro: AstroGlobal, action: Action): Promise<Gate
 }
 
 /** Pages that need a session but no role (the person's own account). */
-export function signedInGate(Astro: AstroGlobal): { ok: true; user: PageAccess['user'] } | Refused {
-  const { user } = Astro.locals;
-  if (!user) return { ok: false, response: Astro.redirect(`/sign-in?next=${encodeURIComponent(Astro.url.pathname + Astro.url.search)}`, 303) };
-  return { ok: true, user };
+export function signedInGate(Astro: AstroGlobal): { ok: true; user: PageAccess['user']; me: UserCtx } | Refused {
+  const { user, sessionId } = Astro.locals;
+  if (!user || !sessionId) return { ok: false, response: Astro.redirect(`/sign-in?next=${encodeURIComponent(Astro.url.pathname + Astro.url.search)}`, 303) };
+  return { ok: true, user, me: { userId: user.id, email: user.email, name: user.name, sessionId, ip: Astro.clientAddress ?? 'unknown' } };
 }
 
 /** A page's id parameter: a positive integer (at most 15 digits, so it is exact). */

@@ -1,13 +1,31 @@
 import { and, asc, eq, isNull, lt, ne } from 'drizzle-orm';
+import { z } from 'zod';
 import { getDb } from '../db/client';
-import { ferments, readings, users } from '../db/schema';
+import { ferments, readings, users, READING_METHODS, READING_UNITS } from '../db/schema';
 import { correctReading, GravityInputError, sgToBrix, type ReadingMethod, type ReadingUnit } from '../lib/gravity';
-import { parseTemperatureToC, temperatureUnitFor, formatTemperature } from '../lib/units';
+import { parseTemperatureToC, temperatureUnitFor, formatTemperature, temperatureForDisplay } from '../lib/units';
 import { audit } from './audit';
 import { HttpError, conflict, invalid, notFound, afterCommit } from './http';
 import type { WorkspaceSettings } from './workspaces';
-import { CLOCK_SKEW_MS, getFerment, parseWorkspaceTime } from './ferments';
+import type { Ctx } from './context';
+import type { Tx } from './tx';
+import { CLOCK_SKEW_MS, parseWorkspaceTime } from './workspace-time';
+import { getFerment } from './ferment-lookup';
 import { recomputeForecast } from './forecasts';
+
+/** A reading as a person sends it (POST /api/ferments/[id]/readings; PATCH /api/readings/[id] takes it partial). */
+export const readingInputSchema = z.object({
+  value: z.number({ error: 'Enter the reading as a number.' }),
+  unit: z.enum(READING_UNITS, { error: 'Choose SG, °Brix or °Plato.' }),
+  method: z.enum(READING_METHODS, { error: 'Choose hydrometer, refractometer or digital sensor.' }),
+  /** In the workspace's temperature unit (°C or °F). */
+  sampleTemp: z.number({ error: 'Enter the sample temperature as a number.' }).nullable().optional(),
+  /** ISO time with a zone, or a wall-clock time in the distillery's zone; defaults to now. */
+  takenAt: z.string().max(40).nullable().optional(),
+  note: z.string().max(500, 'Keep the note to 500 characters.').nullable().optional(),
+  fermentTemp: z.number({ error: 'Enter the ferment temperature as a number.' }).nullable().optional(),
+  ph: z.number({ error: 'Enter the pH as a number.' }).min(0, 'pH runs from 0 to 14.').max(14, 'pH runs from 0 to 14.').nullable().optional(),
+});
 
 /** Raw SG accepted from a person or a file. */
 export const SG_MIN = 0.98;
@@ -83,17 +101,8 @@ export function deriveCorrected(
   }
 }
 
-export interface ReadingBody {
-  value: number;
-  unit: ReadingUnit;
-  method: ReadingMethod;
-  /** In the workspace's temperature unit. */
-  sampleTemp?: number | null;
-  takenAt?: string | null;
-  note?: string | null;
-  fermentTemp?: number | null;
-  ph?: number | null;
-}
+/** Temperatures in the workspace's unit (°C or °F); takenAt as parseWorkspaceTime reads it. */
+export type ReadingBody = z.infer<typeof readingInputSchema>;
 
 function entryFrom(ws: WorkspaceSettings, body: ReadingBody, now: Date): ReadingEntry & { sampleTempUnit: 'C' | 'F' | null; fermentTempC: number | null } {
   const tUnit = temperatureUnitFor(ws.units);
@@ -131,7 +140,8 @@ export interface ReadingView {
   edited: boolean;
 }
 
-export async function listReadings(workspaceId: number, fermentId: number): Promise<ReadingView[]> {
+export async function listReadings(ctx: Ctx, fermentId: number): Promise<ReadingView[]> {
+  const workspaceId = ctx.ws.id;
   const rows = await getDb().select({
     id: readings.id, takenAt: readings.takenAt, method: readings.method, rawValue: readings.rawValue, rawUnit: readings.rawUnit,
     sampleTempC: readings.sampleTempC, sampleTempUnit: readings.sampleTempUnit, correctedSg: readings.correctedSg, lowConfidence: readings.lowConfidence,
@@ -149,8 +159,9 @@ async function readingById(workspaceId: number, id: number) {
   return row;
 }
 
-export async function addReading(ws: WorkspaceSettings, userId: number, fermentId: number, body: ReadingBody, now = new Date()): Promise<ReadingView> {
-  const ferment = await getFerment(ws.id, fermentId);
+export async function addReading(ctx: Ctx, fermentId: number, body: ReadingBody, now = new Date()): Promise<ReadingView> {
+  const { ws, actor: { userId } } = ctx;
+  const ferment = await getFerment(ctx, fermentId);
   if (ferment.emptiedAt) throw conflict(`${ferment.code} has been emptied; readings can no longer be added.`);
   const entry = entryFrom(ws, body, now);
   const corrected = deriveCorrected(ws, ferment, entry, await earlierReadings(ws.id, fermentId, entry.takenAt), now);
@@ -164,9 +175,9 @@ export async function addReading(ws: WorkspaceSettings, userId: number, fermentI
     await audit({ workspaceId: ws.id, userId, action: 'reading.create', entityType: 'reading', entityId: row!.id, details: { fermentId, rawValue: entry.value, rawUnit: entry.unit, method: entry.method, correctedSg: corrected.sg } }, tx);
     return row!.id;
   });
-  await recomputeForecast(ws.id, fermentId, now);
+  await recomputeForecast(ctx, fermentId, now);
   const stored = { id, fermentId, takenAt: entry.takenAt, method: entry.method, rawValue: entry.value, rawUnit: entry.unit, sampleTempC: entry.sampleTempC, correctedSg: corrected.sg, lowConfidence: corrected.lowConfidence };
-  return afterCommit(async () => (await listReadings(ws.id, fermentId)).find((r) => r.id === id)!, stored as never);
+  return afterCommit(async () => (await listReadings(ctx, fermentId)).find((r) => r.id === id)!, stored as never);
 }
 
 const AUDITED = ['takenAt', 'method', 'rawValue', 'rawUnit', 'sampleTempC', 'sampleTempUnit', 'correctedSg', 'lowConfidence', 'fermentTempC', 'ph', 'note'] as const;
@@ -176,18 +187,18 @@ function snapshot(r: Record<string, unknown>): Record<string, unknown> {
 }
 
 /** Edit = the new values, plus an audit entry holding the old and the new; the original stays readable there. */
-export async function updateReading(ws: WorkspaceSettings, userId: number, readingId: number, body: Partial<ReadingBody>, now = new Date()): Promise<ReadingView> {
+export async function updateReading(ctx: Ctx, readingId: number, body: Partial<ReadingBody>, now = new Date()): Promise<ReadingView> {
+  const { ws, actor: { userId } } = ctx;
   const before = await readingById(ws.id, readingId);
-  const ferment = await getFerment(ws.id, before.fermentId);
-  const tUnit = temperatureUnitFor(ws.units);
+  const ferment = await getFerment(ctx, before.fermentId);
   const merged: ReadingBody = {
     value: body.value ?? before.rawValue,
     unit: body.unit ?? before.rawUnit,
     method: body.method ?? before.method,
-    sampleTemp: body.sampleTemp !== undefined ? body.sampleTemp : before.sampleTempC == null ? null : tUnit === 'F' ? before.sampleTempC * 9 / 5 + 32 : before.sampleTempC,
+    sampleTemp: body.sampleTemp !== undefined ? body.sampleTemp : before.sampleTempC == null ? null : temperatureForDisplay(before.sampleTempC, ws.units),
     takenAt: body.takenAt ?? before.takenAt.toISOString(),
     note: body.note !== undefined ? body.note : before.note,
-    fermentTemp: body.fermentTemp !== undefined ? body.fermentTemp : before.fermentTempC == null ? null : tUnit === 'F' ? before.fermentTempC * 9 / 5 + 32 : before.fermentTempC,
+    fermentTemp: body.fermentTemp !== undefined ? body.fermentTemp : before.fermentTempC == null ? null : temperatureForDisplay(before.fermentTempC, ws.units),
     ph: body.ph !== undefined ? body.ph : before.ph,
   };
   const entry = entryFrom(ws, merged, now);
@@ -204,25 +215,25 @@ export async function updateReading(ws: WorkspaceSettings, userId: number, readi
     await tx.update(readings).set(after).where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id)));
     await audit({ workspaceId: ws.id, userId, action: 'reading.update', entityType: 'reading', entityId: readingId, details: { fermentId: ferment.id, before: snapshot(before), after: snapshot(after) } }, tx);
   });
-  await recomputeForecast(ws.id, ferment.id, now);
-  return (await listReadings(ws.id, ferment.id)).find((r) => r.id === readingId)!;
+  await recomputeForecast(ctx, ferment.id, now);
+  return (await listReadings(ctx, ferment.id)).find((r) => r.id === readingId)!;
 }
 
 /** Delete = soft delete (deleted_at) plus an audit entry with the full reading. */
-export async function deleteReading(ws: WorkspaceSettings, userId: number, readingId: number, now = new Date()): Promise<void> {
+export async function deleteReading(ctx: Ctx, readingId: number, now = new Date()): Promise<void> {
+  const { ws, actor: { userId } } = ctx;
   const before = await readingById(ws.id, readingId);
   const db = getDb();
   await db.transaction(async (tx) => {
     await tx.update(readings).set({ deletedAt: now }).where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id), isNull(readings.deletedAt)));
     await audit({ workspaceId: ws.id, userId, action: 'reading.delete', entityType: 'reading', entityId: readingId, details: { fermentId: before.fermentId, reading: snapshot(before) } }, tx);
   });
-  await recomputeForecast(ws.id, before.fermentId, now);
+  await recomputeForecast(ctx, before.fermentId, now);
 }
 
-type Tx = Parameters<Parameters<ReturnType<typeof getDb>['transaction']>[0]>[0];
-
 /** After an OG or pitch-time change: re-derive every reading's corrected SG (in order, since "started" depends on earlier ones). */
-export async function recorrectFermentReadings(tx: Tx, ws: WorkspaceSettings, userId: number, ferment: { id: number; og: number; pitchedAt: Date }): Promise<void> {
+export async function recorrectFermentReadings(ctx: Ctx, tx: Tx, ferment: { id: number; og: number; pitchedAt: Date }): Promise<void> {
+  const { ws, actor: { userId } } = ctx;
   const rows = await tx.select().from(readings)
     .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, ferment.id), isNull(readings.deletedAt))).orderBy(asc(readings.takenAt), asc(readings.id));
   const done: Array<{ takenAt: Date; correctedSg: number }> = [];
@@ -246,7 +257,8 @@ export async function recorrectFermentReadings(tx: Tx, ws: WorkspaceSettings, us
 }
 
 /** The workspace is the source of truth for a reading's ferment; used by routes addressing /api/readings/[id]. */
-export async function fermentOfReading(workspaceId: number, readingId: number): Promise<number> {
+export async function fermentOfReading(ctx: Ctx, readingId: number): Promise<number> {
+  const workspaceId = ctx.ws.id;
   const r = await readingById(workspaceId, readingId);
   const [f] = await getDb().select({ id: ferments.id }).from(ferments).where(and(eq(ferments.id, r.fermentId), eq(ferments.workspaceId, workspaceId))).limit(1);
   if (!f) throw notFound('No such reading.');

@@ -11,11 +11,12 @@ import {
   troubleRates, utilisationByStillWeek, weeksIn, yieldPerTonne,
   type AccuracyMonth, type AccuracyPoint, type CycleRow, type ThroughputWeek, type TroubleRate, type UtilisationRow, type YieldRow,
 } from '../lib/reports';
-import { addDaysYmd, isPlanningDate, PLANNING_YEARS, wallClock, zonedDateTime, type FermentState, type TimeRange } from '../lib/schedule';
+import { addDaysYmd, isPlanningDate, lineLitres, PLANNING_YEARS, runChargeLitres, wallClock, zonedDateTime, type FermentState, type TimeRange } from '../lib/schedule';
 import { getForecasts, type ForecastSummary } from './forecasts';
 import { invalid } from './http';
 import { expectedForStripping, fermentLinesFor } from './outcomes';
-import { attachLines } from './runs';
+import type { Ctx } from './context';
+import { selectRuns } from './run-query';
 import { listStills, type StillRow } from './stills';
 
 const DAY_MS = 86_400_000;
@@ -33,8 +34,6 @@ export const reportQuerySchema = z.object({
   still: z.string().regex(/^\d{1,15}$/, 'Pick a still from the list.').optional().or(z.literal('')),
 });
 export type ReportQuery = z.infer<typeof reportQuerySchema>;
-
-export interface ReportScope { id: number; timeZone: string }
 
 export interface ReportFilters {
   from: string;
@@ -89,21 +88,16 @@ export interface Report {
   recoveries: RunRecovery[];
 }
 
-async function loadRunsAround(workspaceId: number, range: TimeRange, stillId: number | null) {
-  const db = getDb();
+function loadRunsAround(workspaceId: number, range: TimeRange, stillId: number | null) {
   const from = new Date(range.start.getTime() - LOOKBACK_DAYS * DAY_MS);
-  const rows = await db.select({
-    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
-    finishedAt: runs.finishedAt,
-  }).from(runs).where(and(
-    eq(runs.workspaceId, workspaceId), ne(runs.status, 'cancelled'),
-    stillId ? eq(runs.stillId, stillId) : undefined,
-    or(and(lt(runs.startsAt, range.end), gt(runs.endsAt, from)), and(isNotNull(runs.finishedAt), gte(runs.finishedAt, range.start), lt(runs.finishedAt, range.end))),
-  )).orderBy(asc(runs.startsAt), asc(runs.id));
-  const finished = new Map(rows.map((r) => [r.id, r.finishedAt]));
-  const withLines = await attachLines(db, workspaceId, rows.map(({ finishedAt: _f, ...r }) => r));
-  return withLines.map((r) => ({ ...r, finishedAt: finished.get(r.id) ?? null }));
+  return selectRuns(getDb(), workspaceId, {
+    extra: { finishedAt: runs.finishedAt },
+    where: and(
+      ne(runs.status, 'cancelled'),
+      stillId ? eq(runs.stillId, stillId) : undefined,
+      or(and(lt(runs.startsAt, range.end), gt(runs.endsAt, from)), and(isNotNull(runs.finishedAt), gte(runs.finishedAt, range.start), lt(runs.finishedAt, range.end))),
+    ),
+  });
 }
 
 function toState(f: { id: number; code: string; volumeLitres: number; pitchedAt: Date; emptiedAt: Date | null }, fc: ForecastSummary | undefined): FermentState {
@@ -114,11 +108,12 @@ function toState(f: { id: number; code: string; volumeLitres: number; pitchedAt:
   };
 }
 
-export async function getReport(scope: ReportScope, filters: ReportFilters, now = new Date()): Promise<Report> {
+export async function getReport(ctx: Ctx, filters: ReportFilters, now = new Date()): Promise<Report> {
   const db = getDb();
   const { range } = filters;
+  const scope = ctx.ws;
   const tz = scope.timeZone;
-  const allStills = await listStills(scope.id, { includeInactive: true });
+  const allStills = await listStills(ctx, { includeInactive: true });
   if (filters.stillId !== null && !allStills.some((s) => s.id === filters.stillId)) throw invalid('still', 'That still is not in this distillery.');
   const theStills = allStills.filter((s) => (filters.stillId === null ? s.active : s.id === filters.stillId));
   const runRows = await loadRunsAround(scope.id, range, filters.stillId);
@@ -134,7 +129,7 @@ export async function getReport(scope: ReportScope, filters: ReportFilters, now 
       and(gte(ferments.pitchedAt, fermentStart), lt(ferments.pitchedAt, range.end)),
       chargedIds.length ? inArray(ferments.id, chargedIds) : undefined,
     )));
-  const forecasts = await getForecasts(scope.id, fermentRows.map((f) => f.id), now);
+  const forecasts = await getForecasts(ctx, fermentRows.map((f) => f.id), now);
   const states = new Map(fermentRows.map((f) => [f.id, toState(f, forecasts.get(f.id))]));
 
   // Utilisation per still and week.
@@ -171,20 +166,20 @@ export async function getReport(scope: ReportScope, filters: ReportFilters, now 
       .from(runOutcomes).where(and(eq(runOutcomes.workspaceId, scope.id), inArray(runOutcomes.runId, [...new Set([...doneIds, ...feedIds])])))
     : [];
   const fractionsOf = (id: number) => outcomeRows.filter((o) => o.runId === id);
-  const washLitres = (r: (typeof doneRuns)[number]) => (r.ferments.length ? r.ferments.reduce((s, f) => s + f.litres, 0) : r.chargeLitres ?? 0);
+  const washLitres = (r: (typeof doneRuns)[number]) => runChargeLitres(r) ?? 0;
   const throughput = throughputByWeek(
     doneRuns.map((r) => ({ type: r.type, finishedAt: r.finishedAt ?? r.endsAt, washLitres: washLitres(r), fractions: fractionsOf(r.id) })),
     weeksIn(range, tz).map((w) => w.week), tz,
   );
 
-  const lines = await fermentLinesFor(scope.id, [...new Set([...doneIds, ...feedIds])]);
+  const lines = await fermentLinesFor(ctx, [...new Set([...doneIds, ...feedIds])]);
   const stillName = new Map(allStills.map((s) => [s.id, s.name]));
   const recoveries: RunRecovery[] = doneRuns
     .filter((r) => r.type === 'stripping' || r.type === 'spirit' || r.type === 'redistillation')
     .map((r) => {
       const fr = fractionsOf(r.id);
       const collected = sumLaa(fr);
-      const charged = chargedLaa({ litres: r.chargeLitres, abv: r.chargeAbv });
+      const charged = chargedLaa({ litres: runChargeLitres(r), abv: r.chargeAbv });
       const expected = r.type === 'stripping'
         ? expectedForStripping(lines.get(r.id))
         : expectedLaaFromFeeds(r.feeds.map((f) => {
@@ -215,7 +210,7 @@ export async function getReport(scope: ReportScope, filters: ReportFilters, now 
     ingredientsKg: ingredients.filter((i) => i.fermentId === id).reduce((s, i) => s + i.kg, 0),
     runs: stripping.filter((r) => r.ferments.some((f) => f.fermentId === id) && fractionsOf(r.id).some((o) => o.fraction === 'low_wines')).map((r) => ({
       lowWinesLaa: sumLaa(fractionsOf(r.id).filter((o) => o.fraction === 'low_wines')),
-      totalLitres: r.ferments.reduce((s, f) => s + f.litres, 0),
+      totalLitres: lineLitres(r.ferments),
       litres: r.ferments.find((f) => f.fermentId === id)!.litres,
     })),
   })));
@@ -233,17 +228,13 @@ export function reportJson(r: Report): unknown {
 }
 
 /** Runs of one local day for the printable run sheet, with still, operator and charge lines. */
-export async function runSheet(scope: ReportScope, day: string) {
+export async function runSheet(ctx: Ctx, day: string) {
   if (!validYmd(day)) throw invalid('date', 'That is not a calendar date.');
   const db = getDb();
+  const scope = ctx.ws;
   const start = zonedDateTime(day, 0, scope.timeZone);
   const end = zonedDateTime(addDaysYmd(day, 1), 0, scope.timeZone);
-  const rows = await db.select({
-    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
-  }).from(runs).where(and(eq(runs.workspaceId, scope.id), ne(runs.status, 'cancelled'), lt(runs.startsAt, end), gt(runs.endsAt, start)))
-    .orderBy(asc(runs.startsAt), asc(runs.id));
-  const withLines = await attachLines(db, scope.id, rows);
+  const withLines = await selectRuns(db, scope.id, { window: { from: start, to: end }, where: ne(runs.status, 'cancelled') });
   const stillRows = await db.select({ id: stills.id, name: stills.name, capacityLitres: stills.capacityLitres, position: stills.position })
     .from(stills).where(eq(stills.workspaceId, scope.id)).orderBy(asc(stills.position), asc(stills.id));
   const opIds = [...new Set(withLines.map((r) => r.operatorId).filter((x): x is number => x !== null))];

@@ -9,18 +9,23 @@
  */
 import { and, asc, eq, gt, inArray, lt, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
-import { getDb, type Db } from '../db/client';
-import { memberships, ferments, runFeeds, runFerments, runOutcomes, runs, stills, RUN_TYPES } from '../db/schema';
+import { getDb } from '../db/client';
+import { memberships, ferments, runFeeds, runFerments, runs, stills, RUN_TYPES } from '../db/schema';
 import { defaultRunMinutes, dehydrateRun, type BoardRun, type BoardRunJson } from '../lib/board';
-import { findOverlap, type RunType } from '../lib/schedule';
+import { findOverlap, runChargeLitres, type RunType } from '../lib/schedule';
 import { audit } from './audit';
-import { isRetryableTxError } from './db-errors';
 import { conflict, HttpError, invalid, notFound } from './http';
+import type { Ctx } from './context';
+import { selectRun, type Reader, type RunChange } from './run-query';
+
+export type { RunChange };
 import { getStill } from './stills';
 import { notifyRunChanged } from './notify';
 
-export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
-type Reader = Pick<Db, 'select'>;
+import { inRetriedTransaction, type Tx } from './tx';
+
+// Moved to tx.ts; re-exported so importers of runs.ts keep working.
+export { inRetriedTransaction, type Tx };
 
 const MINUTE_MS = 60_000;
 const MAX_RUN_MINUTES = 7 * 24 * 60;
@@ -70,14 +75,6 @@ export function onlyMoves(input: UpdateRunInput): boolean {
   return Object.keys(input).every((k) => (MOVE_FIELDS as readonly string[]).includes(k));
 }
 
-export interface RunChange {
-  kind: 'create' | 'move' | 'update' | 'cancel' | 'start' | 'finish';
-  workspaceId: number;
-  before: BoardRun | null;
-  after: BoardRun;
-  actorId: number;
-}
-
 /**
  * Hook called inside the transaction of every run change (create, move, update incl.
  * operator assignment, cancel, start, finish). Notifications enqueue their mail here,
@@ -88,85 +85,14 @@ export async function onRunChanged(tx: Tx, change: RunChange): Promise<void> {
   await notifyRunChanged(tx, change);
 }
 
-/** Runs of a workspace with their charge lines, feeds and recorded low wines. */
-export async function loadRuns(db: Reader, workspaceId: number, where: ReturnType<typeof and>): Promise<BoardRun[]> {
-  const rows = await db.select({
-    id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-    operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
-  }).from(runs).where(and(eq(runs.workspaceId, workspaceId), where)).orderBy(asc(runs.startsAt), asc(runs.id));
-  return attachLines(db, workspaceId, rows);
-}
-
-type RunBase = Omit<BoardRun, 'ferments' | 'feeds' | 'lowWinesLitres'>;
-
-/**
- * Attach charge lines, feeds and recorded low wines to runs. `range` selects the lines by
- * joining runs in a time window instead of listing hundreds of run ids (much cheaper for
- * the board); rows outside `rows` are ignored either way.
- */
-export async function attachLines(db: Reader, workspaceId: number, rows: RunBase[], range?: { from: Date; to: Date }): Promise<BoardRun[]> {
-  if (rows.length === 0) return [];
-  const ids = rows.map((r) => r.id);
-  const inRuns = (runIdCol: typeof runFerments.runId | typeof runFeeds.runId | typeof runOutcomes.runId) =>
-    range ? and(eq(runs.workspaceId, workspaceId), lt(runs.startsAt, range.to), gt(runs.endsAt, range.from)) : inArray(runIdCol, ids);
-  const [charges, feeds, lowWines] = await Promise.all([
-    (range
-      ? db.select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres }).from(runFerments).innerJoin(runs, eq(runs.id, runFerments.runId))
-      : db.select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres }).from(runFerments))
-      .where(and(eq(runFerments.workspaceId, workspaceId), inRuns(runFerments.runId))),
-    (range
-      ? db.select({ runId: runFeeds.runId, feedRunId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds).innerJoin(runs, eq(runs.id, runFeeds.runId))
-      : db.select({ runId: runFeeds.runId, feedRunId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds))
-      .where(and(eq(runFeeds.workspaceId, workspaceId), inRuns(runFeeds.runId))),
-    (range
-      ? db.select({ runId: runOutcomes.runId, litres: sql<number>`SUM(${runOutcomes.volumeLitres})` }).from(runOutcomes).innerJoin(runs, eq(runs.id, runOutcomes.runId))
-      : db.select({ runId: runOutcomes.runId, litres: sql<number>`SUM(${runOutcomes.volumeLitres})` }).from(runOutcomes))
-      .where(and(eq(runOutcomes.workspaceId, workspaceId), eq(runOutcomes.fraction, 'low_wines'), inRuns(runOutcomes.runId)))
-      .groupBy(runOutcomes.runId),
-  ]);
-  const byRun = new Map<number, BoardRun>();
-  const out = rows.map((r) => {
-    const run: BoardRun = { ...r, ferments: [], feeds: [], lowWinesLitres: null };
-    byRun.set(r.id, run);
-    return run;
-  });
-  for (const c of charges) byRun.get(c.runId)?.ferments.push({ fermentId: c.fermentId, litres: c.litres });
-  for (const f of feeds) byRun.get(f.runId)?.feeds.push({ runId: f.feedRunId, litres: f.litres });
-  for (const l of lowWines) {
-    const run = byRun.get(l.runId);
-    if (run) run.lowWinesLitres = Number(l.litres);
-  }
-  return out;
-}
-
-export async function getRun(workspaceId: number, id: number, db: Reader = getDb()): Promise<BoardRun> {
-  const [run] = await loadRuns(db, workspaceId, and(eq(runs.id, id)));
+/** One run of the caller's distillery with its lines (404 when it is not theirs); `db` may be a transaction. */
+export async function getRun(ctx: Ctx, id: number, db: Reader = getDb()): Promise<BoardRun> {
+  const run = await selectRun(db, ctx.ws.id, id);
   if (!run) throw notFound('No such run in this distillery.');
   return run;
 }
 
 export const runJson = (r: BoardRun): BoardRunJson => dehydrateRun(r);
-
-function sleep(ms: number): Promise<void> {
-  return new Promise((resolve) => setTimeout(resolve, ms));
-}
-
-/**
- * Run `fn` in a READ COMMITTED transaction, retrying a few times on deadlock / Galera
- * certification failure (the whole transaction is replayed, so `fn` must be pure apart
- * from its database writes).
- */
-export async function inRetriedTransaction<T>(fn: (tx: Tx) => Promise<T>, attempts = 6): Promise<T> {
-  const db = getDb();
-  for (let attempt = 1; ; attempt++) {
-    try {
-      return await db.transaction(fn, { isolationLevel: 'read committed' });
-    } catch (err) {
-      if (attempt >= attempts || !isRetryableTxError(err)) throw err;
-      await sleep(5 * attempt + Math.random() * 15 * attempt);
-    }
-  }
-}
 
 /**
  * Lock the still rows (in id order, so two writers cannot deadlock on each other) and bump
@@ -249,16 +175,18 @@ async function writeLines(tx: Tx, workspaceId: number, runId: number, input: { f
 
 const auditRun = (r: BoardRun) => ({ stillId: r.stillId, type: r.type, status: r.status, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), operatorId: r.operatorId });
 
-export async function createRun(workspaceId: number, userId: number, input: CreateRunInput): Promise<BoardRun> {
+export async function createRun(ctx: Ctx, input: CreateRunInput): Promise<BoardRun> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   const db = getDb();
-  const still = await getStill(workspaceId, input.stillId);
+  const still = await getStill(ctx, input.stillId);
   if (!still.active) throw invalid('stillId', 'That still is retired.');
   await assertOperator(db, workspaceId, input.operatorId);
   await assertCharges(db, workspaceId, input.type, input.ferments);
   await assertFeeds(db, workspaceId, input.type, input.feeds);
-  const fromLines = input.ferments?.length ? input.ferments.reduce((s, l) => s + l.litres, 0)
-    : input.feeds?.length ? input.feeds.reduce((s, l) => s + l.litres, 0) : null;
-  const chargeLitres = input.chargeLitres !== undefined ? input.chargeLitres : fromLines;
+  // A charge sent (even null) is stored as sent; otherwise the charge the lines give.
+  const chargeLitres = input.chargeLitres !== undefined
+    ? input.chargeLitres
+    : runChargeLitres({ chargeLitres: null, ferments: input.ferments ?? [], feeds: input.feeds ?? [] });
   const minutes = input.durationMinutes ?? defaultRunMinutes(still, input.type, chargeLitres, input.chargeAbv ?? null);
   const endsAt = input.endsAt ?? new Date(input.startsAt.getTime() + minutes * MINUTE_MS);
   assertTimes(input.startsAt, endsAt);
@@ -274,7 +202,7 @@ export async function createRun(workspaceId: number, userId: number, input: Crea
     }).$returningId();
     const id = row!.id;
     await writeLines(tx, workspaceId, id, input);
-    const after = await getRun(workspaceId, id, tx);
+    const after = await getRun(ctx, id, tx);
     await audit({ workspaceId, userId, action: 'run.create', entityType: 'run', entityId: id, details: { after: auditRun(after) } }, tx);
     await onRunChanged(tx, { kind: 'create', workspaceId, before: null, after, actorId: userId });
     return after;
@@ -282,10 +210,10 @@ export async function createRun(workspaceId: number, userId: number, input: Crea
 }
 
 /** Lock the run row and check the version the caller saw; 409 with the current run when stale. */
-async function lockRun(tx: Tx, workspaceId: number, id: number, version: number): Promise<BoardRun> {
-  const [row] = await tx.select({ id: runs.id }).from(runs).where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId))).for('update');
+async function lockRun(tx: Tx, ctx: Ctx, id: number, version: number): Promise<BoardRun> {
+  const [row] = await tx.select({ id: runs.id }).from(runs).where(and(eq(runs.id, id), eq(runs.workspaceId, ctx.ws.id))).for('update');
   if (!row) throw notFound('No such run in this distillery.');
-  const current = await getRun(workspaceId, id, tx);
+  const current = await getRun(ctx, id, tx);
   if (current.version !== version) {
     throw new HttpError(409, 'stale', 'Someone changed this run since you loaded it.', undefined, { current: runJson(current) });
   }
@@ -295,17 +223,18 @@ async function lockRun(tx: Tx, workspaceId: number, id: number, version: number)
 const same = (a: Date, b: Date) => a.getTime() === b.getTime();
 
 /** Move, resize or edit a run. Moving and resizing keep its wall-clock meaning only as sent: the island snaps times. */
-export async function updateRun(workspaceId: number, userId: number, id: number, input: UpdateRunInput): Promise<BoardRun> {
+export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Promise<BoardRun> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   const db = getDb();
   await assertOperator(db, workspaceId, input.operatorId);
   // Validate lines against the type they will have (the current type when unchanged).
-  const pre = await getRun(workspaceId, id);
+  const pre = await getRun(ctx, id);
   const type = input.type ?? pre.type;
   await assertCharges(db, workspaceId, type, input.ferments, id);
   await assertFeeds(db, workspaceId, type, input.feeds, id);
 
   return inRetriedTransaction(async (tx) => {
-    const before = await lockRun(tx, workspaceId, id, input.version);
+    const before = await lockRun(tx, ctx, id, input.version);
     const moving = input.stillId !== undefined || input.startsAt !== undefined || input.endsAt !== undefined;
     if (moving && before.status !== 'planned' && before.status !== 'confirmed') {
       throw conflict(`A ${before.status} run cannot be moved.`, { current: runJson(before) });
@@ -340,7 +269,7 @@ export async function updateRun(workspaceId: number, userId: number, id: number,
     if (input.notes !== undefined) set.notes = input.notes;
     await tx.update(runs).set(set).where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
     await writeLines(tx, workspaceId, id, input);
-    const after = await getRun(workspaceId, id, tx);
+    const after = await getRun(ctx, id, tx);
     const kind = timeOrStillChanged ? 'move' : 'update';
     await audit({
       workspaceId, userId, action: timeOrStillChanged ? 'run.move' : 'run.update', entityType: 'run', entityId: id,
@@ -351,12 +280,10 @@ export async function updateRun(workspaceId: number, userId: number, id: number,
   });
 }
 
-async function changeStatus(
-  workspaceId: number, userId: number, id: number, version: number,
-  kind: 'cancel' | 'start' | 'finish', reason?: string,
-): Promise<BoardRun> {
+async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel' | 'start' | 'finish', reason?: string): Promise<BoardRun> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   return inRetriedTransaction(async (tx) => {
-    const before = await lockRun(tx, workspaceId, id, version);
+    const before = await lockRun(tx, ctx, id, version);
     const allowed: Record<typeof kind, string[]> = { cancel: ['planned', 'confirmed'], start: ['planned', 'confirmed'], finish: ['running'] };
     if (!allowed[kind].includes(before.status)) {
       const verb = kind === 'cancel' ? 'cancelled' : kind === 'start' ? 'started' : 'finished';
@@ -372,13 +299,13 @@ async function changeStatus(
       ...(kind === 'start' ? { startedAt: now } : {}),
       ...(kind === 'finish' ? { finishedAt: now } : {}),
     }).where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
-    const after = await getRun(workspaceId, id, tx);
+    const after = await getRun(ctx, id, tx);
     await audit({ workspaceId, userId, action: `run.${kind}`, entityType: 'run', entityId: id, details: { before: auditRun(before), ...(reason ? { reason } : {}) } }, tx);
     await onRunChanged(tx, { kind, workspaceId, before, after, actorId: userId });
     return after;
   });
 }
 
-export const cancelRun = (ws: number, user: number, id: number, version: number, reason?: string) => changeStatus(ws, user, id, version, 'cancel', reason);
-export const startRun = (ws: number, user: number, id: number, version: number) => changeStatus(ws, user, id, version, 'start');
-export const finishRun = (ws: number, user: number, id: number, version: number) => changeStatus(ws, user, id, version, 'finish');
+export const cancelRun = (ctx: Ctx, id: number, version: number, reason?: string) => changeStatus(ctx, id, version, 'cancel', reason);
+export const startRun = (ctx: Ctx, id: number, version: number) => changeStatus(ctx, id, version, 'start');
+export const finishRun = (ctx: Ctx, id: number, version: number) => changeStatus(ctx, id, version, 'finish');

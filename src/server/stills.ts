@@ -7,6 +7,7 @@ import type { BoardStill } from '../lib/board';
 import { isPlanningDate, type RunType } from '../lib/schedule';
 import { audit } from './audit';
 import { invalid, notFound } from './http';
+import type { Ctx } from './context';
 
 const hm = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$|^24:00$/, 'Use HH:MM (00:00 to 24:00).');
 const ymd = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-24.').refine(isPlanningDate, 'Use a real date, like 2026-12-24.');
@@ -43,6 +44,9 @@ export const closureInputSchema = z
   .refine((c) => c.endsOn >= c.startsOn, { message: 'The last day must be on or after the first.', path: ['endsOn'] });
 export type ClosureInput = z.infer<typeof closureInputSchema>;
 
+/** Board order of the stills, top to bottom (PUT /api/stills/order). */
+export const stillOrderSchema = z.object({ ids: z.array(z.number().int().positive()).min(1).max(200) });
+
 export interface StillRow extends BoardStill { active: boolean }
 
 export interface ClosureRow { id: number; stillId: number | null; startsOn: string; endsOn: string; reason: string }
@@ -54,13 +58,14 @@ function typicalOf(raw: Partial<Record<RunType, number>> | null | undefined): Re
 }
 
 /** Stills of a workspace in board order, each with its own and the distillery-wide closures. */
-export async function listStills(workspaceId: number, opts: { includeInactive?: boolean } = {}): Promise<StillRow[]> {
+export async function listStills(ctx: Ctx, opts: { includeInactive?: boolean } = {}): Promise<StillRow[]> {
   const db = getDb();
+  const workspaceId = ctx.ws.id;
   const [rows, closures] = await Promise.all([
     db.select().from(stills)
       .where(opts.includeInactive ? eq(stills.workspaceId, workspaceId) : and(eq(stills.workspaceId, workspaceId), eq(stills.active, true)))
       .orderBy(asc(stills.position), asc(stills.id)),
-    listClosures(workspaceId),
+    listClosures(ctx),
   ]);
   return rows.map((s) => ({
     id: s.id, name: s.name, kind: s.kind, capacityLitres: s.capacityLitres, heatingKw: s.heatingKw,
@@ -70,13 +75,14 @@ export async function listStills(workspaceId: number, opts: { includeInactive?: 
   }));
 }
 
-export async function listClosures(workspaceId: number): Promise<ClosureRow[]> {
+export async function listClosures(ctx: Ctx): Promise<ClosureRow[]> {
+  const workspaceId = ctx.ws.id;
   return getDb().select({ id: stillClosures.id, stillId: stillClosures.stillId, startsOn: stillClosures.startsOn, endsOn: stillClosures.endsOn, reason: stillClosures.reason })
     .from(stillClosures).where(eq(stillClosures.workspaceId, workspaceId)).orderBy(asc(stillClosures.startsOn), asc(stillClosures.id));
 }
 
-export async function getStill(workspaceId: number, id: number): Promise<StillRow> {
-  const all = await listStills(workspaceId, { includeInactive: true });
+export async function getStill(ctx: Ctx, id: number): Promise<StillRow> {
+  const all = await listStills(ctx, { includeInactive: true });
   const still = all.find((s) => s.id === id);
   if (!still) throw notFound('No such still in this distillery.');
   return still;
@@ -87,7 +93,8 @@ async function assertUniqueName(workspaceId: number, name: string, exceptId?: nu
   if (same.some((r) => r.id !== exceptId)) throw invalid('name', `A still called "${name}" already exists.`);
 }
 
-export async function createStill(workspaceId: number, userId: number, input: StillInput): Promise<StillRow> {
+export async function createStill(ctx: Ctx, input: StillInput): Promise<StillRow> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   await assertUniqueName(workspaceId, input.name);
   const db = getDb();
   const id = await db.transaction(async (tx) => {
@@ -97,22 +104,24 @@ export async function createStill(workspaceId: number, userId: number, input: St
     await audit({ workspaceId, userId, action: 'still.create', entityType: 'still', entityId: row!.id, details: { name: input.name } }, tx);
     return row!.id;
   });
-  return getStill(workspaceId, id);
+  return getStill(ctx, id);
 }
 
-export async function updateStill(workspaceId: number, userId: number, id: number, input: Partial<StillInput>): Promise<StillRow> {
-  const before = await getStill(workspaceId, id);
+export async function updateStill(ctx: Ctx, id: number, input: Partial<StillInput>): Promise<StillRow> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const before = await getStill(ctx, id);
   if (input.name !== undefined) await assertUniqueName(workspaceId, input.name, id);
   await getDb().transaction(async (tx) => {
     if (Object.keys(input).length) await tx.update(stills).set(input).where(and(eq(stills.id, id), eq(stills.workspaceId, workspaceId)));
     await audit({ workspaceId, userId, action: 'still.update', entityType: 'still', entityId: id, details: { name: before.name, changed: Object.keys(input) } }, tx);
   });
-  return getStill(workspaceId, id);
+  return getStill(ctx, id);
 }
 
 /** Remove a still: deleted outright when it never had runs, else retired (hidden from the board, its history kept). */
-export async function removeStill(workspaceId: number, userId: number, id: number): Promise<{ removed: 'deleted' | 'retired' }> {
-  const still = await getStill(workspaceId, id);
+export async function removeStill(ctx: Ctx, id: number): Promise<{ removed: 'deleted' | 'retired' }> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const still = await getStill(ctx, id);
   const db = getDb();
   return db.transaction(async (tx) => {
     const [used] = await tx.select({ id: runs.id }).from(runs).where(and(eq(runs.workspaceId, workspaceId), eq(runs.stillId, id))).limit(1);
@@ -128,7 +137,8 @@ export async function removeStill(workspaceId: number, userId: number, id: numbe
 }
 
 /** Board order: the stills named in `ids` take positions 0, 1, 2 ... in that order. */
-export async function setStillOrder(workspaceId: number, userId: number, ids: number[]): Promise<StillRow[]> {
+export async function setStillOrder(ctx: Ctx, ids: number[]): Promise<StillRow[]> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   const db = getDb();
   const mine = await db.select({ id: stills.id }).from(stills).where(and(eq(stills.workspaceId, workspaceId), inArray(stills.id, ids.length ? ids : [0])));
   if (mine.length !== new Set(ids).size) throw notFound('No such still in this distillery.');
@@ -138,11 +148,12 @@ export async function setStillOrder(workspaceId: number, userId: number, ids: nu
     }
     await audit({ workspaceId, userId, action: 'still.reorder', entityType: 'still', details: { order: ids } }, tx);
   });
-  return listStills(workspaceId, { includeInactive: true });
+  return listStills(ctx, { includeInactive: true });
 }
 
-export async function addClosure(workspaceId: number, userId: number, input: ClosureInput): Promise<ClosureRow> {
-  if (input.stillId !== null) await getStill(workspaceId, input.stillId);
+export async function addClosure(ctx: Ctx, input: ClosureInput): Promise<ClosureRow> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  if (input.stillId !== null) await getStill(ctx, input.stillId);
   const db = getDb();
   const id = await db.transaction(async (tx) => {
     const [row] = await tx.insert(stillClosures).values({ workspaceId, ...input }).$returningId();
@@ -152,7 +163,8 @@ export async function addClosure(workspaceId: number, userId: number, input: Clo
   return { id, ...input };
 }
 
-export async function removeClosure(workspaceId: number, userId: number, id: number): Promise<void> {
+export async function removeClosure(ctx: Ctx, id: number): Promise<void> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   const db = getDb();
   const [row] = await db.select().from(stillClosures).where(and(eq(stillClosures.id, id), eq(stillClosures.workspaceId, workspaceId)));
   if (!row) throw notFound('No such closure in this distillery.');

@@ -6,8 +6,8 @@ import { MAX_UPLOAD_BYTES, MAX_UPLOAD_ROWS, parseLoggerCsv, type LoggerRow } fro
 import { temperatureUnitFor } from '../lib/units';
 import { audit } from './audit';
 import { HttpError, conflict, notFound, readLimitedBytes } from './http';
-import type { WorkspaceSettings } from './workspaces';
-import { getFerment } from './ferments';
+import type { Ctx } from './context';
+import { getFerment } from './ferment-lookup';
 import { deriveCorrected } from './readings';
 import { recomputeForecast } from './forecasts';
 
@@ -71,8 +71,9 @@ export interface UploadPreview {
 }
 
 /** Parse, check and stage a logger CSV for one ferment; nothing is written to readings. */
-export async function stageUpload(ws: WorkspaceSettings, userId: number, fermentId: number, text: string, now = new Date()): Promise<UploadPreview> {
-  const ferment = await getFerment(ws.id, fermentId);
+export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now = new Date()): Promise<UploadPreview> {
+  const { ws, actor: { userId } } = ctx;
+  const ferment = await getFerment(ctx, fermentId);
   if (ferment.emptiedAt) throw conflict(`${ferment.code} has been emptied; readings can no longer be added.`);
   const parsed = parseLoggerCsv(text, { timeZone: ws.timeZone, defaultTempUnit: temperatureUnitFor(ws.units) });
   if (parsed.fatal) {
@@ -125,8 +126,9 @@ export async function stageUpload(ws: WorkspaceSettings, userId: number, ferment
  * as they are now; if any fails, nothing is written. Duplicates (same time as a reading
  * already there) are skipped, not imported twice.
  */
-export async function commitUpload(ws: WorkspaceSettings, userId: number, fermentId: number, uploadId: string, now = new Date()): Promise<{ imported: number; skippedDuplicates: number }> {
-  const ferment = await getFerment(ws.id, fermentId);
+export async function commitUpload(ctx: Ctx, fermentId: number, uploadId: string, now = new Date()): Promise<{ imported: number; skippedDuplicates: number }> {
+  const { ws, actor: { userId } } = ctx;
+  const ferment = await getFerment(ctx, fermentId);
   const db = getDb();
   const result = await db.transaction(async (tx) => {
     const [staged] = await tx.select().from(readingUploads)
@@ -165,6 +167,6 @@ export async function commitUpload(ws: WorkspaceSettings, userId: number, fermen
     await audit({ workspaceId: ws.id, userId, action: 'reading.upload', entityType: 'ferment', entityId: fermentId, details: { uploadId, imported: values.length, skippedDuplicates: skipped } }, tx);
     return { imported: values.length, skippedDuplicates: skipped };
   });
-  await recomputeForecast(ws.id, fermentId, now);
+  await recomputeForecast(ctx, fermentId, now);
   return result;
 }

@@ -1,8 +1,30 @@
 import { and, asc, eq, isNull } from 'drizzle-orm';
+import { z } from 'zod';
 import { getDb, type Db } from '../db/client';
 import { fermenters, ferments, washTypes, WASH_CATEGORIES } from '../db/schema';
 import { audit } from './audit';
 import { conflict, invalid, notFound } from './http';
+import type { Ctx } from './context';
+
+/** A fermenter as a manager sends it (POST /api/fermenters; PATCH takes it partial). */
+export const fermenterInputSchema = z.object({
+  name: z.string().trim().min(1, 'Give the fermenter a name.').max(80),
+  /** In the workspace's volume unit (L or US gal). */
+  capacity: z.number({ error: 'Enter the capacity as a number.' }).positive('Capacity must be above zero.').max(1_000_000),
+  active: z.boolean().optional(),
+  position: z.number().int().min(0).max(10_000).optional(),
+});
+
+const sg = (what: string) => z.number({ error: `Enter the ${what} as an SG, e.g. 1.004.` }).min(0.98, `The ${what} must be at least 0.980.`).max(1.2, `The ${what} must be at most 1.200.`);
+
+/** A wash type as a manager sends it (POST /api/wash-types; PATCH takes it partial). */
+export const washTypeInputSchema = z.object({
+  name: z.string().trim().min(1, 'Give the wash type a name.').max(80),
+  category: z.enum(WASH_CATEGORIES, { error: 'Choose sugar, grain, molasses, fruit or other.' }),
+  terminalMin: sg('bottom of the terminal range'),
+  terminalMax: sg('top of the terminal range'),
+  typicalOg: sg('typical OG').nullable().optional(),
+});
 
 export type WashCategory = (typeof WASH_CATEGORIES)[number];
 
@@ -28,10 +50,11 @@ export function defaultWashTypes(): WashTypeDefault[] {
   ];
 }
 
-type Tx = Pick<Db, 'insert'>;
+/** The sign-up transaction (or the database itself): only inserts are needed. */
+type Inserter = Pick<Db, 'insert'>;
 
 /** Insert the default wash types for a newly created workspace (pass the sign-up transaction). */
-export async function insertDefaultWashTypes(workspaceId: number, tx: Tx = getDb()): Promise<void> {
+export async function insertDefaultWashTypes(workspaceId: number, tx: Inserter = getDb()): Promise<void> {
   await tx.insert(washTypes).values(defaultWashTypes().map((w) => ({ workspaceId, ...w })));
 }
 
@@ -45,8 +68,9 @@ export interface FermenterRow {
   activeFerment: { id: number; code: string } | null;
 }
 
-export async function listFermenters(workspaceId: number): Promise<FermenterRow[]> {
+export async function listFermenters(ctx: Ctx): Promise<FermenterRow[]> {
   const db = getDb();
+  const workspaceId = ctx.ws.id;
   const rows = await db
     .select({
       id: fermenters.id, name: fermenters.name, capacityLitres: fermenters.capacityLitres, position: fermenters.position, active: fermenters.active,
@@ -75,7 +99,8 @@ async function assertUniqueFermenterName(workspaceId: number, name: string, exce
   if (same.some((r) => r.id !== exceptId)) throw invalid('name', `A fermenter called "${name}" already exists.`);
 }
 
-export async function createFermenter(workspaceId: number, userId: number, input: FermenterInput): Promise<FermenterRow> {
+export async function createFermenter(ctx: Ctx, input: FermenterInput): Promise<FermenterRow> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   await assertUniqueFermenterName(workspaceId, input.name);
   const db = getDb();
   const id = await db.transaction(async (tx) => {
@@ -85,10 +110,11 @@ export async function createFermenter(workspaceId: number, userId: number, input
     await audit({ workspaceId, userId, action: 'fermenter.create', entityType: 'fermenter', entityId: row!.id, details: { ...input } }, tx);
     return row!.id;
   });
-  return (await listFermenters(workspaceId)).find((f) => f.id === id)!;
+  return (await listFermenters(ctx)).find((f) => f.id === id)!;
 }
 
-export async function updateFermenter(workspaceId: number, userId: number, id: number, input: Partial<FermenterInput>): Promise<FermenterRow> {
+export async function updateFermenter(ctx: Ctx, id: number, input: Partial<FermenterInput>): Promise<FermenterRow> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   const db = getDb();
   const [before] = await db.select().from(fermenters).where(and(eq(fermenters.id, id), eq(fermenters.workspaceId, workspaceId))).limit(1);
   if (!before) throw notFound('No such fermenter.');
@@ -105,12 +131,13 @@ export async function updateFermenter(workspaceId: number, userId: number, id: n
       details: { before: { name: before.name, capacityLitres: before.capacityLitres, active: before.active, position: before.position }, after: input },
     }, tx);
   });
-  return (await listFermenters(workspaceId)).find((f) => f.id === id)!;
+  return (await listFermenters(ctx)).find((f) => f.id === id)!;
 }
 
 export interface WashTypeRow extends WashTypeDefault { id: number }
 
-export async function listWashTypes(workspaceId: number): Promise<WashTypeRow[]> {
+export async function listWashTypes(ctx: Ctx): Promise<WashTypeRow[]> {
+  const workspaceId = ctx.ws.id;
   return getDb().select({
     id: washTypes.id, name: washTypes.name, category: washTypes.category, terminalMin: washTypes.terminalMin,
     terminalMax: washTypes.terminalMax, typicalOg: washTypes.typicalOg,
@@ -124,7 +151,8 @@ function checkRange(min: number, max: number, og: number | null | undefined): vo
   if (og != null && og <= max) throw invalid('typicalOg', 'The typical OG must be above the terminal range.');
 }
 
-export async function createWashType(workspaceId: number, userId: number, input: WashTypeInput): Promise<WashTypeRow> {
+export async function createWashType(ctx: Ctx, input: WashTypeInput): Promise<WashTypeRow> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   checkRange(input.terminalMin, input.terminalMax, input.typicalOg);
   const db = getDb();
   const id = await db.transaction(async (tx) => {
@@ -132,10 +160,11 @@ export async function createWashType(workspaceId: number, userId: number, input:
     await audit({ workspaceId, userId, action: 'wash_type.create', entityType: 'wash_type', entityId: row!.id, details: { ...input } }, tx);
     return row!.id;
   });
-  return (await listWashTypes(workspaceId)).find((w) => w.id === id)!;
+  return (await listWashTypes(ctx)).find((w) => w.id === id)!;
 }
 
-export async function updateWashType(workspaceId: number, userId: number, id: number, input: Partial<WashTypeInput>): Promise<WashTypeRow> {
+export async function updateWashType(ctx: Ctx, id: number, input: Partial<WashTypeInput>): Promise<WashTypeRow> {
+  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
   const db = getDb();
   const [before] = await db.select().from(washTypes).where(and(eq(washTypes.id, id), eq(washTypes.workspaceId, workspaceId))).limit(1);
   if (!before) throw notFound('No such wash type.');
@@ -147,5 +176,5 @@ export async function updateWashType(workspaceId: number, userId: number, id: nu
       details: { before: { name: before.name, category: before.category, terminalMin: before.terminalMin, terminalMax: before.terminalMax, typicalOg: before.typicalOg }, after: input },
     }, tx);
   });
-  return (await listWashTypes(workspaceId)).find((w) => w.id === id)!;
+  return (await listWashTypes(ctx)).find((w) => w.id === id)!;
 }

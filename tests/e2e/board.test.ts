@@ -2,7 +2,7 @@ import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { launch, newPage, checkPage, signInUi, PHONE, DESKTOP } from '../helpers/browser';
 import { TEST_PASSWORD, type Client } from '../helpers/api';
-import { addFerment, boardFixture, type BoardFixture } from '../integration/board-fixture';
+import { addFerment, boardFixture, type BoardFixture } from '../helpers/board-fixture';
 import { addDaysYmd, wallClock, weekdayOfYmd, zonedDateTime } from '../../src/lib/schedule';
 
 const TZ = 'Europe/London';

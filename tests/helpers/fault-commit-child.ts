@@ -7,12 +7,13 @@
 import { commitUpload } from '../../src/server/uploads';
 import { workspaceSettings } from '../../src/server/workspaces';
 import { closeDb } from '../../src/db/client';
+import { systemCtx } from '../../src/server/context';
 
 const [workspaceId, userId, fermentId] = process.argv.slice(2, 5).map(Number);
 const uploadId = process.argv[5]!;
 const ws = await workspaceSettings(workspaceId!);
 if (!ws) throw new Error('no such workspace');
 process.stdout.write('committing\n');
-const result = await commitUpload(ws, userId!, fermentId!, uploadId);
+const result = await commitUpload(systemCtx(ws, userId!), fermentId!, uploadId);
 process.stdout.write(`done ${result.imported}\n`);
 await closeDb();

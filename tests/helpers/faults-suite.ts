@@ -21,6 +21,7 @@ import { databaseUrl } from '../../src/config';
 import * as t from '../../src/db/schema';
 import { stageUpload } from '../../src/server/uploads';
 import { workspaceSettings } from '../../src/server/workspaces';
+import { systemCtx } from '../../src/server/context';
 import { hashPassword } from '../../src/server/auth/password';
 import { BASE, Client, createTestWorkspace, TEST_PASSWORD, type TestWorkspace } from './api';
 
@@ -216,7 +217,7 @@ export function faultSuite(o: FaultOptions): void {
         const lines = ['time,value,unit,method'];
         const start = Date.now() - 190 * DAY;
         for (let i = 0; i < o.importRows; i++) lines.push(`${new Date(start + (minute++) * 60_000).toISOString()},${(1.05 - (i % 40) / 1000).toFixed(3)},sg,digital`);
-        const preview = await stageUpload(settings, ws.users.distiller.id, fermentId!, lines.join('\n') + '\n');
+        const preview = await stageUpload(systemCtx(settings, ws.users.distiller.id, 'distiller'), fermentId!, lines.join('\n') + '\n');
         expect(preview.counts.toImport).toBe(o.importRows);
         return preview.uploadId;
       };

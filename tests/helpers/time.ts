@@ -1,5 +1,8 @@
 /** Shared test fixtures for time: a still open round the clock, and the London wall-clock text people read in mail and feeds. */
 
+/** A UTC instant from wall-clock text without a zone: utc('2026-12-01T06:00') is 06:00 Z. */
+export const utc = (iso: string): Date => new Date(`${iso}Z`);
+
 export const HOUR = 3_600_000;
 export const DAY = 24 * HOUR;
 

@@ -1,6 +1,6 @@
 import { describe, it, expect, beforeAll } from 'vitest';
 import type { Client } from '../helpers/api';
-import { addFerment, at, boardFixture, iso, type BoardFixture } from './board-fixture';
+import { addFerment, at, boardFixture, iso, type BoardFixture } from '../helpers/board-fixture';
 import { eq, sql } from 'drizzle-orm';
 import { gunzipSync } from 'node:zlib';
 import { get as httpGet } from 'node:http';

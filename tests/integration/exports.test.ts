@@ -9,8 +9,8 @@ import Papa from 'papaparse';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers/api';
+import { utc } from '../helpers/time';
 
-const utc = (iso: string) => new Date(`${iso}Z`);
 let ws: TestWorkspace;
 let manager: Client;
 let planner: Client;

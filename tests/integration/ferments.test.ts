@@ -6,6 +6,11 @@ import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers
 import { insertDefaultWashTypes } from '../../src/server/vessels';
 import { getForecast, getForecasts, historyFor } from '../../src/server/forecasts';
 import { forecastFerment } from '../../src/lib/forecast';
+import { systemCtx } from '../../src/server/context';
+import { workspaceSettings } from '../../src/server/workspaces';
+
+/** The server functions take the caller's context: the workspace's settings (as the session loads them). */
+const ctxOf = async (workspaceId: number) => systemCtx((await workspaceSettings(workspaceId))!);
 
 describe('fermenters, wash types and ferments', () => {
   let ws: TestWorkspace;
@@ -135,7 +140,7 @@ describe('forecast wiring', () => {
     expect(new Date(fc.json.forecast.ruleMetAt).getTime()).toBe(pitched.getTime() + 8 * 86_400_000 + 60_000);
     const [cached] = await getDb().select().from(t.fermentForecasts).where(eq(t.fermentForecasts.fermentId, id));
     expect(cached!.status).toBe('finished');
-    const summaries = await getForecasts(ws.workspaceId, [id]);
+    const summaries = await getForecasts(await ctxOf(ws.workspaceId), [id]);
     expect(summaries.get(id)!.status).toBe('finished');
     expect(summaries.get(id)!.lastSg).toBe(0.995);
     const [again] = await getDb().select().from(t.fermentForecasts).where(eq(t.fermentForecasts.fermentId, id));
@@ -144,7 +149,7 @@ describe('forecast wiring', () => {
     expect(history.length).toBe(1); // ten recomputes within minutes, one history row
     // Another workspace's ids give nothing.
     const other = await createTestWorkspace('Forecast stranger');
-    expect((await getForecasts(other.workspaceId, [id])).size).toBe(0);
+    expect((await getForecasts(await ctxOf(other.workspaceId), [id])).size).toBe(0);
   });
 
   it('learns from the wash type\'s finished ferments: same type only, not itself, only those finished by then', async () => {
@@ -182,7 +187,7 @@ describe('forecast wiring', () => {
       expect(r.status, r.text).toBe(201);
     }
     const now = new Date();
-    const withHistory = (await getForecast(ws.workspaceId, live, now))!;
+    const withHistory = (await getForecast(await ctxOf(ws.workspaceId), live, now))!;
     expect(withHistory.history).not.toBeNull();
     expect(withHistory.history!.count).toBe(4); // the grain wash is not counted
     expect(withHistory.history!.medianDays).toBeCloseTo(6.5, 6);

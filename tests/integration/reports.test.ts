@@ -27,8 +27,8 @@ import { eq } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers/api';
+import { utc } from '../helpers/time';
 
-const utc = (iso: string) => new Date(`${iso}Z`);
 const DAY = 86_400_000;
 let ws: TestWorkspace;
 let manager: Client;

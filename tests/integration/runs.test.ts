@@ -3,7 +3,7 @@ import { and, eq, ne } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import type { Client } from '../helpers/api';
-import { addFerment, at, boardFixture, iso, type BoardFixture } from './board-fixture';
+import { addFerment, at, boardFixture, iso, type BoardFixture } from '../helpers/board-fixture';
 
 const MIN = 60_000;
 

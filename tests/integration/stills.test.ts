@@ -1,6 +1,6 @@
 import { describe, it, expect, beforeAll } from 'vitest';
 import type { Client } from '../helpers/api';
-import { boardFixture, type BoardFixture } from './board-fixture';
+import { boardFixture, type BoardFixture } from '../helpers/board-fixture';
 
 const hours = [1, 2, 3, 4, 5].map((weekday) => ({ weekday, open: '06:00', close: '22:00' }));
 const typicalMinutes = { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 };

@@ -9,7 +9,7 @@ import {
   proofFromAbv,
   proofGallons,
   volPercentToMassFraction,
-} from '@/lib/alcohol';
+} from '../../src/lib/alcohol';
 
 function expectAlcoholError(fn: () => unknown, field: string): void {
   let caught: unknown;

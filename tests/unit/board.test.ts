@@ -3,11 +3,11 @@ import {
   boardWindow, bookableFerments, defaultRunMinutes, describeChanges, moveTarget, movedMessage, notBeforeForRisk, resizeTarget, runsAtRisk,
   slotAtX, vesselBars, windowPlacement, boardWarnings, mondayOf,
   type BoardFerment, type BoardRun, type BoardStill,
-} from '@/lib/board';
+} from '../../src/lib/board';
+import { utc } from '../helpers/time';
 
 const H = 3_600_000;
 const D = 24 * H;
-const utc = (s: string) => new Date(`${s}Z`);
 const TZ = 'Europe/London';
 
 const still = (id: number, over: Partial<BoardStill> = {}): BoardStill => ({

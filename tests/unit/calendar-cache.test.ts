@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { buildFeed, buildFeedAsync, EventCache, eventKey, uidForRun, type FeedEvent } from '@/lib/calendar';
+import { buildFeed, buildFeedAsync, EventCache, eventKey, uidForRun, type FeedEvent } from '../../src/lib/calendar';
+import { utc } from '../helpers/time';
 
-const utc = (iso: string) => new Date(`${iso}Z`);
 const now = utc('2026-12-01T08:00:00');
 
 function event(i: number, patch: Partial<FeedEvent> = {}): FeedEvent {

@@ -9,9 +9,9 @@ import {
   runEventStatus,
   uidForRun,
   type FeedEvent,
-} from '@/lib/calendar';
+} from '../../src/lib/calendar';
+import { utc } from '../helpers/time';
 
-const utc = (iso: string) => new Date(`${iso}Z`);
 const now = utc('2026-12-01T08:00:05');
 
 // Multi-byte text: ° (2 octets), é (2 octets), ‰ (3 octets), 🥃 (4 octets, a surrogate pair in JS).

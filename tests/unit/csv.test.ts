@@ -9,7 +9,7 @@ import {
   parseLoggerCsv,
   toCsv,
   type LoggerCsvOptions,
-} from '@/lib/csv';
+} from '../../src/lib/csv';
 
 const fixture = (name: string): string =>
   readFileSync(fileURLToPath(new URL(`../fixtures/csv/${name}`, import.meta.url)), 'utf8');

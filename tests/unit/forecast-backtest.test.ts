@@ -1,6 +1,6 @@
 import { describe, it, expect, beforeAll } from 'vitest';
-import { runBacktest, type BacktestFerment, type BacktestReport } from '@/lib/forecast/backtest';
-import { DEFAULT_RANGES, generateFerments, type TrueCurve } from '@/lib/forecast/synthetic';
+import { runBacktest, type BacktestFerment, type BacktestReport } from '../../src/lib/forecast/backtest';
+import { DEFAULT_RANGES, generateFerments, type TrueCurve } from '../../src/lib/forecast/synthetic';
 
 // A small seeded backtest on synthetic ferments drawn from the published curve models
 // (four-parameter logistic, Speers et al. 2003; first-order decay with lag), a seed

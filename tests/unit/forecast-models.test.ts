@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { fitModel, firstOrderAt, logisticAt } from '@/lib/forecast';
+import { fitModel, firstOrderAt, logisticAt } from '../../src/lib/forecast';
 
 const H_PER_DAY = 24;
 

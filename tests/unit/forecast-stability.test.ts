@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { dailyLevels, firstRuleMet, forecastFerment, stabilityCheck, FORECAST_STATUSES, STATUS_LABELS, type ForecastInput } from '@/lib/forecast';
+import { dailyLevels, firstRuleMet, forecastFerment, stabilityCheck, FORECAST_STATUSES, STATUS_LABELS, type ForecastInput } from '../../src/lib/forecast';
 
 const H = 3_600_000;
 const T0 = Date.UTC(2025, 2, 3, 8, 0);

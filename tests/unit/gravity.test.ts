@@ -17,7 +17,7 @@ import {
   sgToPlato,
   waterDensity,
   type RawReading,
-} from '@/lib/gravity';
+} from '../../src/lib/gravity';
 
 /** Expect fn to throw a GravityInputError naming field. */
 function expectGravityError(fn: () => unknown, field: string): void {

@@ -19,10 +19,10 @@ import {
   weeksIn,
   yieldPerTonne,
   type FractionInput,
-} from '@/lib/reports';
-import type { FermentState, Run, Still } from '@/lib/schedule';
+} from '../../src/lib/reports';
+import type { FermentState, Run, Still } from '../../src/lib/schedule';
+import { utc } from '../helpers/time';
 
-const utc = (iso: string) => new Date(`${iso}Z`);
 const TZ = 'Europe/London';
 
 describe('fraction strength, LAA and proof gallons', () => {

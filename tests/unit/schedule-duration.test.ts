@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { bubblePointC, estimateDurationMinutes } from '@/lib/schedule';
+import { bubblePointC, estimateDurationMinutes } from '../../src/lib/schedule';
 
 describe('estimateDurationMinutes (heat-up: t = m·cp·(T_boil − T0)/(P·η))', () => {
   // REFERENCES §7 check value [computed]: 100 L at FG 0.995, 8 % vol, 20 -> 94 °C, 10 kW, η = 1

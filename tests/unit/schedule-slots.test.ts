@@ -1,10 +1,10 @@
 import { describe, expect, it } from 'vitest';
-import { findEarliestSlots, type Run, type Still } from '@/lib/schedule';
+import { findEarliestSlots, type Run, type Still } from '../../src/lib/schedule';
+import { utc } from '../helpers/time';
 
 // Europe/London in December is GMT (UTC+0): wall-clock times equal UTC.
 // 1 Dec 2026 is a Tuesday; 4 Dec a Friday; 7 Dec a Monday.
 const TZ = 'Europe/London';
-const utc = (iso: string) => new Date(`${iso}Z`);
 const iso = (d: Date) => d.toISOString().slice(0, 16);
 
 const weekdays = ([1, 2, 3, 4, 5] as const).map((weekday) => ({ weekday, open: '08:00', close: '18:00' }));

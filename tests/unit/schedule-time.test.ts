@@ -7,10 +7,10 @@ import {
   wallClock,
   zonedDateTime,
   type Run,
-} from '@/lib/schedule';
+} from '../../src/lib/schedule';
+import { utc } from '../helpers/time';
 
 const HOUR = 3_600_000;
-const utc = (iso: string) => new Date(`${iso}Z`);
 
 // Offsets and change dates below are the IANA tz rules (from memory): the UK
 // is on GMT (UTC+0) in winter and BST (UTC+1) in summer, clocks going back at

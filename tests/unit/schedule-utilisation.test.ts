@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { availableHours, bookedHours, idleWaitingHours, type FermentState, type Run, type Still } from '@/lib/schedule';
+import { availableHours, bookedHours, idleWaitingHours, type FermentState, type Run, type Still } from '../../src/lib/schedule';
+import { utc } from '../helpers/time';
 
 // Europe/London in January is GMT (UTC+0). Mon 5 Jan 2026 to Sat 10 Jan 2026 00:00.
 const TZ = 'Europe/London';
-const utc = (iso: string) => new Date(`${iso}Z`);
 const week = { start: utc('2026-01-05T00:00'), end: utc('2026-01-10T00:00') };
 
 const still: Still = {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { computeRunWarnings, type FermentState, type Run, type Still, type WarningCode } from '@/lib/schedule';
+import { computeRunWarnings, type FermentState, type Run, type Still, type WarningCode } from '../../src/lib/schedule';
 
 // Europe/London in December is on GMT (UTC+0), so every wall-clock time in
 // these cases reads the same as its UTC instant. 3 Dec 2026 is a Thursday.

@@ -16,7 +16,7 @@ import {
   usGallonsToLitres,
   volumeForDisplay,
   volumeUnitFor,
-} from '@/lib/units';
+} from '../../src/lib/units';
 
 describe('temperature (definition of the Fahrenheit scale: 0 °C = 32 °F, 100 °C = 212 °F)', () => {
   it.each([

@@ -2,6 +2,7 @@ import { useState } from 'react';
 import GravityChart from './GravityChart';
 import UploadPanel from './UploadPanel';
 import { fermentStats } from './stats';
+import { LITRES_PER_US_GALLON, formatTemperature } from '../../lib/units';
 import { STATUS_TEXT, statusTagClass, fmtSg, fmtDateTime, fmtWindow, fmtRaw, METHOD_LABEL, type Status } from './format';
 
 export interface ViewReading {
@@ -34,8 +35,7 @@ export interface FermentViewProps {
   initial: { readings: ViewReading[]; forecast: ViewForecast | null; now: string };
 }
 
-const GAL = 3.785411784;
-const fmtTemp = (c: number | null, units: 'metric' | 'us') => (c === null ? '–' : units === 'us' ? `${(c * 9 / 5 + 32).toFixed(1)} °F` : `${c.toFixed(1)} °C`);
+const fmtTemp = (c: number | null, units: 'metric' | 'us') => (c === null ? '–' : formatTemperature(c, units));
 const TABLE_ROWS = 60;
 
 export default function FermentView(p: FermentViewProps) {
@@ -62,7 +62,7 @@ export default function FermentView(p: FermentViewProps) {
   const stats = fermentStats(p.og, p.volumeLitres, last?.correctedSg ?? null, f?.predictedFg?.value ?? null, { min: p.terminalMin, max: p.terminalMax });
   const status = (f?.status ?? 'insufficient_data') as Status;
   const toMs = (s: string | null) => (s ? new Date(s).getTime() : null);
-  const laaText = (v: number | null) => (v === null ? '–' : p.units === 'us' ? `${v.toFixed(0)} LAA (${(v / (GAL / 2)).toFixed(0)} proof gal)` : `${v.toFixed(0)} L`);
+  const laaText = (v: number | null) => (v === null ? '–' : p.units === 'us' ? `${v.toFixed(0)} LAA (${(v / (LITRES_PER_US_GALLON / 2)).toFixed(0)} proof gal)` : `${v.toFixed(0)} L`);
   const rows = [...data.readings].reverse();
   const shown = showAll ? rows : rows.slice(0, TABLE_ROWS);
 

@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { litresToUsGallons } from '../../lib/units';
 
 export interface FermenterItem { id: number; name: string; capacity: string; active: boolean; holds: string | null }
 
@@ -26,7 +27,7 @@ export default function FermentersEditor({ initial, volumeUnit }: { initial: Fer
     setErrors({});
     return data.fermenter as { id: number; name: string; capacityLitres: number; active: boolean; activeFerment: { code: string } | null };
   }
-  const display = (litres: number) => (volumeUnit === 'gal' ? String(Number((litres / 3.785411784).toFixed(1))) : String(Number(litres.toFixed(1))));
+  const display = (litres: number) => (volumeUnit === 'gal' ? String(Number(litresToUsGallons(litres).toFixed(1))) : String(Number(litres.toFixed(1))));
 
   async function add() {
     const f = await save(null, { name: draft.name, capacity: num(draft.capacity) }, 'new');

@@ -14,3 +14,12 @@ export {
 } from './planning';
 export type { WindowPlacement, BookableFerment, RunAtRisk, VesselBar } from './planning';
 export { SAFETY_CAUTIONS } from './safety';
+export {
+  LABEL_WIDTH, ROW_HEIGHT, VESSEL_ROW_HEIGHT, HEADER_HEIGHT, canvasWidth, slotWidth, dayWidth, initials, runsByStill, closedSpans,
+  readyWindowSpans, runBlockLayout, vesselBarLayout, dropGhostBox, rangeLabel, pageName, axisDayLabel, axisTicks, initialScrollLeft,
+} from './geometry';
+export type { Span, ReadyWindowSpan, RunBlockLayout, RunBlockContext, VesselBarLayout } from './geometry';
+export { boardKeyboardCoordinates } from './keyboard';
+export type { Coordinates, KeyboardStepSizes, BoardKeyboardCoordinates } from './keyboard';
+export { firstHit } from './collision';
+export { fermentDraftRun, firstBookableHour, fermentBooking } from './drafts';

@@ -33,7 +33,8 @@ export {
 export type { SnapMode, WallClock } from './time';
 export { findOverlap, needsCleaningAfter, occupiedRange } from './overlap';
 export type { OverlapCandidate } from './overlap';
-export { computeRunWarnings, lookupFerment, runChargeLitres } from './warnings';
+export { computeRunWarnings, lookupFerment } from './warnings';
+export { lineLitres, runChargeLitres, type ChargeSource, type LitresLine } from './charge';
 export type { FermentLookup, WarningContext } from './warnings';
 export { bubblePointC, estimateDurationMinutes, WASH_SPECIFIC_HEAT_KJ_PER_KG_K, WATER_DENSITY_20C_KG_PER_L } from './duration';
 export type { DurationEstimate, DurationEstimateInput } from './duration';

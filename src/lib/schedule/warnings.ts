@@ -2,6 +2,7 @@
  * Warnings for one run on the board. The same function runs on the server
  * and in the board island while a run is dragged.
  */
+import { runChargeLitres } from './charge';
 import { formatLitres, formatReadyWindow, formatWhen, formatYmd } from './format';
 import { isClosedOn, localDatesTouched, openIntervals, totalHours } from './time';
 import type { FermentState, Run, RunType, Still, Warning } from './types';
@@ -31,14 +32,6 @@ const RUN_LABELS: Record<RunType, string> = {
 export function lookupFerment(ferments: FermentLookup, id: number): FermentState | undefined {
   if (ferments instanceof Map) return ferments.get(id);
   return (ferments as Readonly<Record<number, FermentState>>)[id];
-}
-
-/** Litres the run puts in the still: its stated charge, else the ferment litres, else the low wines from its feeds. */
-export function runChargeLitres(run: Pick<Run, 'chargeLitres' | 'ferments' | 'feeds'>): number | null {
-  if (run.chargeLitres !== null && run.chargeLitres !== undefined) return run.chargeLitres;
-  if (run.ferments.length > 0) return run.ferments.reduce((sum, f) => sum + f.litres, 0);
-  if (run.feeds.length > 0) return run.feeds.reduce((sum, f) => sum + f.litres, 0);
-  return null;
 }
 
 const overlaps = (a: Pick<Run, 'startsAt' | 'endsAt'>, b: Pick<Run, 'startsAt' | 'endsAt'>) =>

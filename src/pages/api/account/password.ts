@@ -1,8 +1,7 @@
 import { z } from 'zod';
-import { json } from '../../../server/http';
-import { userRoute, changePassword, MIN_PASSWORD } from '../../../server/accounts';
+import { route, json } from '../../../server/http';
+import { changePassword, MIN_PASSWORD } from '../../../server/accounts';
 import { takeAttempt, forgive, refund } from '../../../server/throttle';
-import { clientIp } from '../../../server/request';
 
 const Body = z.object({
   currentPassword: z.string().min(1, 'Enter your current password.').max(1000),
@@ -10,11 +9,11 @@ const Body = z.object({
 });
 
 /** Change the password; every other session of this person ends. */
-export const POST = userRoute({ body: Body }, async ({ ctx, user, sessionId, body }) => {
+export const POST = route({ auth: 'user', body: Body }, async ({ me, body }) => {
   // Re-entering the current password is a guess like a sign-in: counted first, forgiven on success.
-  await takeAttempt('password_change', [`user:${user.id}`, `ip:${clientIp(ctx)}`]);
-  const r = await changePassword(user.id, sessionId, body.currentPassword, body.newPassword);
-  await forgive('password_change', `user:${user.id}`);
-  await refund('password_change', [`ip:${clientIp(ctx)}`]);
+  await takeAttempt('password_change', [`user:${me.userId}`, `ip:${me.ip}`]);
+  const r = await changePassword(me, body.currentPassword, body.newPassword);
+  await forgive('password_change', `user:${me.userId}`);
+  await refund('password_change', [`ip:${me.ip}`]);
   return json({ ok: true, endedSessions: r.endedSessions, message: `Password changed. ${r.endedSessions === 1 ? '1 other session was' : `${r.endedSessions} other sessions were`} signed out.` });
 });

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { publicRoute, json } from '../../../server/http';
+import { route, json } from '../../../server/http';
 import { acceptInvitation } from '../../../server/members';
 import { MIN_PASSWORD } from '../../../server/accounts';
 import { setSessionCookie } from '../../../server/auth/session';
@@ -16,10 +16,10 @@ const Body = z.object({
 });
 
 /** Existing account: must be signed in as the invited address. New address: name + password here. */
-export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
-  await takeAttempt('accept_invitation', [`ip:${clientIp(ctx)}`]);
-  const r = await acceptInvitation(body.token, { signedInUserId: ctx.locals.user?.id ?? null, name: body.name, password: body.password, ip: clientIp(ctx), userAgent: ctx.request.headers.get('user-agent') });
-  if (r.newSession) setSessionCookie(ctx.cookies, r.newSession.token);
-  else if (ctx.locals.sessionId) await getDb().update(sessions).set({ workspaceId: r.workspaceId }).where(eq(sessions.id, ctx.locals.sessionId));
+export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) => {
+  await takeAttempt('accept_invitation', [`ip:${clientIp(req)}`]);
+  const r = await acceptInvitation(body.token, { signedInUserId: req.locals.user?.id ?? null, name: body.name, password: body.password, ip: clientIp(req), userAgent: req.request.headers.get('user-agent') });
+  if (r.newSession) setSessionCookie(req.cookies, r.newSession.token);
+  else if (req.locals.sessionId) await getDb().update(sessions).set({ workspaceId: r.workspaceId }).where(eq(sessions.id, req.locals.sessionId));
   return json({ ok: true, workspaceId: r.workspaceId, redirect: '/' });
 });

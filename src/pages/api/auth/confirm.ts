@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { publicRoute, json } from '../../../server/http';
+import { route, json } from '../../../server/http';
 import { confirmSignUp, MIN_PASSWORD } from '../../../server/accounts';
 import { setSessionCookie } from '../../../server/auth/session';
 import { clientIp } from '../../../server/request';
@@ -14,10 +14,10 @@ const Body = z.object({
 });
 
 /** Following the e-mailed link opens a page; its form posts here (a GET never changes anything). */
-export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
+export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) => {
   // Each confirmation hashes a password (argon2): bounded per address.
-  await takeAttempt('confirm', [`ip:${clientIp(ctx)}`]);
-  const { session } = await confirmSignUp(body.token, { name: body.name, workspaceName: body.workspaceName, password: body.password }, { ip: clientIp(ctx), userAgent: ctx.request.headers.get('user-agent') });
-  setSessionCookie(ctx.cookies, session.token);
+  await takeAttempt('confirm', [`ip:${clientIp(req)}`]);
+  const { session } = await confirmSignUp(body.token, { name: body.name, workspaceName: body.workspaceName, password: body.password }, { ip: clientIp(req), userAgent: req.request.headers.get('user-agent') });
+  setSessionCookie(req.cookies, session.token);
   return json({ ok: true, redirect: '/settings' });
 });

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { publicRoute, json } from '../../../server/http';
+import { route, json } from '../../../server/http';
 import { resetPassword, MIN_PASSWORD } from '../../../server/accounts';
 import { clearSessionCookie } from '../../../server/auth/session';
 import { clientIp } from '../../../server/request';
@@ -11,9 +11,9 @@ const Body = z.object({
 });
 
 /** Single use; every session of the person ends, including this browser's. */
-export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
-  await takeAttempt('reset_password', [`ip:${clientIp(ctx)}`]);
-  await resetPassword(body.token, body.password, { ip: clientIp(ctx) });
-  clearSessionCookie(ctx.cookies);
+export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) => {
+  await takeAttempt('reset_password', [`ip:${clientIp(req)}`]);
+  await resetPassword(body.token, body.password, { ip: clientIp(req) });
+  clearSessionCookie(req.cookies);
   return json({ ok: true, message: 'Your password is changed and every device is signed out. Sign in with the new password.', redirect: '/sign-in' });
 });

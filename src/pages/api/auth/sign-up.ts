@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { publicRoute, json } from '../../../server/http';
+import { route, json } from '../../../server/http';
 import { requestSignUp } from '../../../server/accounts';
 import { clientIp } from '../../../server/request';
 import { takeAttempt } from '../../../server/throttle';
@@ -13,8 +13,8 @@ const Body = z.object({
 });
 
 /** Always the same answer, so it never reveals whether the address already has an account. */
-export const POST = publicRoute({ body: Body }, async ({ ctx, body }) => {
-  const ip = clientIp(ctx);
+export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) => {
+  const ip = clientIp(req);
   // Each sign-up mails an address anyone may type: a few per address and per e-mail an hour.
   await takeAttempt('sign_up', [`email:${body.email.trim().toLowerCase()}`, `ip:${ip}`]);
   await requestSignUp({ ...body, ip });

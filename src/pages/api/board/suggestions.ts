@@ -5,7 +5,6 @@ import { suggestSlots } from '../../../server/board';
 const query = z.object({ runId: z.string() });
 
 /** Earliest feasible slots for moving a run at risk. */
-export const GET = route({ action: 'runs.move', query }, async ({ ctx, auth, query }) => {
-  const ws = ctx.locals.workspace!;
-  return json(await suggestSlots({ id: auth.workspaceId, timeZone: ws.timeZone, stableDays: ws.stableDays }, idParam(query.runId)));
+export const GET = route({ auth: 'runs.move', query }, async ({ ctx, query }) => {
+  return json(await suggestSlots(ctx, idParam(query.runId)));
 });

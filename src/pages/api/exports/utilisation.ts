@@ -3,8 +3,8 @@ import { getReport, reportQuerySchema, resolveFilters } from '../../../server/re
 import { attachment, CSV_CONTENT_TYPE, safeFileName, utilisationCsv } from '../../../server/exports';
 
 /** CSV: per still and ISO week, available / booked / done / idle-waiting hours and utilisation. */
-export const GET = route({ action: 'reports.read', query: reportQuerySchema }, async ({ auth, query }) => {
-  const filters = resolveFilters(query, auth.timeZone);
-  const report = await getReport({ id: auth.workspaceId, timeZone: auth.timeZone }, filters);
+export const GET = route({ auth: 'reports.read', query: reportQuerySchema }, async ({ ctx, query }) => {
+  const filters = resolveFilters(query, ctx.ws.timeZone);
+  const report = await getReport(ctx, filters);
   return attachment(utilisationCsv(report.utilisation), safeFileName('utilisation', filters, 'csv', filters.stillId), CSV_CONTENT_TYPE);
 });

@@ -3,8 +3,7 @@
  * it through): the token is the capability. The URL is never logged here, and an unknown
  * or revoked token gets the same bare 404 as any missing page.
  */
-import type { APIRoute } from 'astro';
-import { errorResponse, jsonError } from '../../../server/http';
+import { route, jsonError } from '../../../server/http';
 import { feedForToken, notModified, renderFeedCached, stampFetched } from '../../../server/feeds';
 import { ensureDigestScheduler } from '../../../server/digest';
 
@@ -16,25 +15,21 @@ const FEED_HEADERS = {
 
 const notFound = () => jsonError(404, 'not_found', 'Not found', undefined, { 'referrer-policy': 'no-referrer' });
 
-export const GET: APIRoute = async (ctx) => {
+export const GET = route({ auth: 'public' }, async ({ req, params }) => {
   ensureDigestScheduler();
-  try {
-    const feed = await feedForToken(ctx.params.token ?? '');
-    if (!feed) return notFound();
-    const now = new Date();
-    const rendered = await renderFeedCached(feed, now);
-    await stampFetched(feed, now).catch(() => {});
-    const headers = {
-      ...FEED_HEADERS,
-      etag: rendered.etag,
-      'last-modified': rendered.lastModified.toUTCString(),
-    };
-    if (notModified(ctx.request.headers, rendered.etag, rendered.lastModified)) return new Response(null, { status: 304, headers });
-    return new Response(rendered.body, {
-      status: 200,
-      headers: { ...headers, 'content-type': 'text/calendar; charset=utf-8', 'content-disposition': 'inline; filename="plateau.ics"' },
-    });
-  } catch (err) {
-    return errorResponse(err);
-  }
-};
+  const feed = await feedForToken(params.token ?? '');
+  if (!feed) return notFound();
+  const now = new Date();
+  const rendered = await renderFeedCached(feed, now);
+  await stampFetched(feed, now).catch(() => {});
+  const headers = {
+    ...FEED_HEADERS,
+    etag: rendered.etag,
+    'last-modified': rendered.lastModified.toUTCString(),
+  };
+  if (notModified(req.request.headers, rendered.etag, rendered.lastModified)) return new Response(null, { status: 304, headers });
+  return new Response(rendered.body, {
+    status: 200,
+    headers: { ...headers, 'content-type': 'text/calendar; charset=utf-8', 'content-disposition': 'inline; filename="plateau.ics"' },
+  });
+});

@@ -1,14 +1,12 @@
 import { route, json, idParam, nonEmpty } from '../../../server/http';
-import { updateFermenter } from '../../../server/vessels';
+import { fermenterInputSchema, updateFermenter } from '../../../server/vessels';
 import { parseVolumeToLitres, volumeUnitFor } from '../../../lib/units';
-import { fermenterBody } from './index';
 
-export const PATCH = route({ action: 'vessels.manage', body: nonEmpty(fermenterBody.partial()) }, async ({ ctx, auth, body, params }) => {
+export const PATCH = route({ auth: 'vessels.manage', body: nonEmpty(fermenterInputSchema.partial()) }, async ({ ctx, body, params }) => {
   const id = idParam(params.id);
-  const units = ctx.locals.workspace!.units;
   const { capacity, ...rest } = body;
-  const fermenter = await updateFermenter(auth.workspaceId, auth.userId, id, {
-    ...rest, ...(capacity !== undefined ? { capacityLitres: parseVolumeToLitres(capacity, volumeUnitFor(units)) } : {}),
+  const fermenter = await updateFermenter(ctx, id, {
+    ...rest, ...(capacity !== undefined ? { capacityLitres: parseVolumeToLitres(capacity, volumeUnitFor(ctx.ws.units)) } : {}),
   });
   return json({ fermenter });
 });

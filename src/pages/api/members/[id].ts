@@ -2,15 +2,14 @@ import { z } from 'zod';
 import { route, json, idParam } from '../../../server/http';
 import { changeRole, removeMember } from '../../../server/members';
 import { ROLES } from '../../../db/schema';
-import { clientIp } from '../../../server/request';
 
 /** [id] is the person's user id; the membership looked up is always this workspace's. */
-export const PATCH = route({ action: 'members.manage', body: z.object({ role: z.enum(ROLES, 'Choose a role.') }) }, async ({ ctx, auth, body, params }) => {
-  await changeRole(auth, idParam(params.id), body.role, clientIp(ctx));
+export const PATCH = route({ auth: 'members.manage', body: z.object({ role: z.enum(ROLES, 'Choose a role.') }) }, async ({ ctx, body, params }) => {
+  await changeRole(ctx, idParam(params.id), body.role);
   return json({ ok: true, message: 'Role changed.' });
 });
 
-export const DELETE = route({ action: 'members.manage' }, async ({ ctx, auth, params }) => {
-  await removeMember(auth, idParam(params.id), clientIp(ctx));
+export const DELETE = route({ auth: 'members.manage' }, async ({ ctx, params }) => {
+  await removeMember(ctx, idParam(params.id));
   return json({ ok: true, message: 'Removed from the distillery.' });
 });

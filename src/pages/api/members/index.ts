@@ -1,7 +1,7 @@
 import { route, json } from '../../../server/http';
 import { listMembers, listPendingInvitations } from '../../../server/members';
 
-export const GET = route({ action: 'members.manage' }, async ({ auth }) => {
-  const [members, invitations] = await Promise.all([listMembers(auth.workspaceId), listPendingInvitations(auth.workspaceId)]);
+export const GET = route({ auth: 'members.manage' }, async ({ ctx }) => {
+  const [members, invitations] = await Promise.all([listMembers(ctx), listPendingInvitations(ctx)]);
   return json({ members, invitations });
 });

@@ -3,8 +3,8 @@ import { route, json, notFound } from '../../../server/http';
 import { getNotifyPrefs, setNotifyPrefs } from '../../../server/notify';
 
 /** "My notifications": which e-mails this person receives in the current distillery. Every member may read and set their own. */
-export const GET = route({ action: 'board.read' }, async ({ auth }) => {
-  const mine = await getNotifyPrefs(auth.workspaceId, auth.userId);
+export const GET = route({ auth: 'board.read' }, async ({ ctx }) => {
+  const mine = await getNotifyPrefs(ctx);
   if (!mine) throw notFound();
   return json({ prefs: mine.prefs, kinds: mine.kinds.map((k) => ({ kind: k.kind, label: k.label, hint: k.hint })) });
 });
@@ -16,7 +16,7 @@ const prefsSchema = z.object({
   digest: z.boolean().optional(),
 }).strict();
 
-export const PUT = route({ action: 'board.read', body: prefsSchema }, async ({ auth, body }) => {
-  const prefs = await setNotifyPrefs(auth.workspaceId, auth.userId, body);
+export const PUT = route({ auth: 'board.read', body: prefsSchema }, async ({ ctx, body }) => {
+  const prefs = await setNotifyPrefs(ctx, body);
   return json({ prefs });
 });

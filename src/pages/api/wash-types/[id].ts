@@ -1,6 +1,5 @@
 import { route, json, idParam, nonEmpty } from '../../../server/http';
-import { updateWashType } from '../../../server/vessels';
-import { washTypeBody } from './index';
+import { updateWashType, washTypeInputSchema } from '../../../server/vessels';
 
-export const PATCH = route({ action: 'washtypes.manage', body: nonEmpty(washTypeBody.partial()) }, async ({ auth, body, params }) =>
-  json({ washType: await updateWashType(auth.workspaceId, auth.userId, idParam(params.id), body) }));
+export const PATCH = route({ auth: 'washtypes.manage', body: nonEmpty(washTypeInputSchema.partial()) }, async ({ ctx, body, params }) =>
+  json({ washType: await updateWashType(ctx, idParam(params.id), body) }));

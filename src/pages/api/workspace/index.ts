@@ -1,8 +1,6 @@
 import { z } from 'zod';
 import { route, json } from '../../../server/http';
 import { updateWorkspaceSettings, deleteWorkspace } from '../../../server/members';
-import { workspaceSettings } from '../../../server/workspaces';
-import { clientIp } from '../../../server/request';
 import { clearSessionCookie } from '../../../server/auth/session';
 
 function validZone(tz: string): boolean {
@@ -19,17 +17,18 @@ export const SettingsBody = z.object({
   wortCorrectionFactor: z.coerce.number().min(0.9, 'Between 0.90 and 1.20.').max(1.2, 'Between 0.90 and 1.20.'),
 });
 
-export const GET = route({ action: 'board.read' }, async ({ auth }) => json({ workspace: await workspaceSettings(auth.workspaceId) }));
+/** The workspace's settings, as the session read them for this request. */
+export const GET = route({ auth: 'board.read' }, async ({ ctx }) => json({ workspace: ctx.ws }));
 
-export const PATCH = route({ action: 'settings.manage', body: SettingsBody }, async ({ ctx, auth, body }) => {
-  await updateWorkspaceSettings(auth, body, clientIp(ctx));
+export const PATCH = route({ auth: 'settings.manage', body: SettingsBody }, async ({ ctx, body }) => {
+  await updateWorkspaceSettings(ctx, body);
   return json({ ok: true, message: 'Settings saved.' });
 });
 
 /** Deletes the distillery and all its data; the name must be typed exactly. */
-export const DELETE = route({ action: 'settings.manage', body: z.object({ confirmName: z.string().max(200) }) }, async ({ ctx, auth, body }) => {
-  await deleteWorkspace(auth, body.confirmName, clientIp(ctx));
-  const others = ctx.locals.memberships.filter((m) => m.workspaceId !== auth.workspaceId);
-  if (!others.length) clearSessionCookie(ctx.cookies);
+export const DELETE = route({ auth: 'settings.manage', body: z.object({ confirmName: z.string().max(200) }) }, async ({ req, ctx, body }) => {
+  await deleteWorkspace(ctx, body.confirmName);
+  const others = req.locals.memberships.filter((m) => m.workspaceId !== ctx.ws.id);
+  if (!others.length) clearSessionCookie(req.cookies);
   return json({ ok: true, message: 'The distillery and all its data are deleted.', redirect: others.length ? '/' : '/sign-in' });
 });

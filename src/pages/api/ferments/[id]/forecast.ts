@@ -1,9 +1,8 @@
-import { route, json, idParam } from '../../../../server/http';
+import { route, json, idParam, notFound } from '../../../../server/http';
 import { getForecast, forecastJson } from '../../../../server/forecasts';
-import { notFound } from '../../../../server/http';
 
-export const GET = route({ action: 'ferments.read' }, async ({ auth, params }) => {
-  const forecast = await getForecast(auth.workspaceId, idParam(params.id));
+export const GET = route({ auth: 'ferments.read' }, async ({ ctx, params }) => {
+  const forecast = await getForecast(ctx, idParam(params.id));
   if (!forecast) throw notFound('No such ferment.');
   return json({ forecast: forecastJson(forecast) });
 });

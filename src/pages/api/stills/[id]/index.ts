@@ -1,8 +1,8 @@
 import { route, json, idParam } from '../../../../server/http';
 import { removeStill, stillInputSchema, updateStill } from '../../../../server/stills';
 
-export const PATCH = route({ action: 'vessels.manage', body: stillInputSchema.partial() }, async ({ auth, body, params }) =>
-  json({ still: await updateStill(auth.workspaceId, auth.userId, idParam(params.id), body) }));
+export const PATCH = route({ auth: 'vessels.manage', body: stillInputSchema.partial() }, async ({ ctx, body, params }) =>
+  json({ still: await updateStill(ctx, idParam(params.id), body) }));
 
-export const DELETE = route({ action: 'vessels.manage' }, async ({ auth, params }) =>
-  json(await removeStill(auth.workspaceId, auth.userId, idParam(params.id))));
+export const DELETE = route({ auth: 'vessels.manage' }, async ({ ctx, params }) =>
+  json(await removeStill(ctx, idParam(params.id))));

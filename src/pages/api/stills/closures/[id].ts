@@ -1,7 +1,7 @@
 import { route, idParam } from '../../../../server/http';
 import { removeClosure } from '../../../../server/stills';
 
-export const DELETE = route({ action: 'vessels.manage' }, async ({ auth, params }) => {
-  await removeClosure(auth.workspaceId, auth.userId, idParam(params.id));
+export const DELETE = route({ auth: 'vessels.manage' }, async ({ ctx, params }) => {
+  await removeClosure(ctx, idParam(params.id));
   return new Response(null, { status: 204 });
 });

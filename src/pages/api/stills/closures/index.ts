@@ -1,7 +1,7 @@
 import { route, json } from '../../../../server/http';
 import { addClosure, closureInputSchema, listClosures } from '../../../../server/stills';
 
-export const GET = route({ action: 'board.read' }, async ({ auth }) => json({ closures: await listClosures(auth.workspaceId) }));
+export const GET = route({ auth: 'board.read' }, async ({ ctx }) => json({ closures: await listClosures(ctx) }));
 
-export const POST = route({ action: 'vessels.manage', body: closureInputSchema }, async ({ auth, body }) =>
-  json({ closure: await addClosure(auth.workspaceId, auth.userId, body) }, 201));
+export const POST = route({ auth: 'vessels.manage', body: closureInputSchema }, async ({ ctx, body }) =>
+  json({ closure: await addClosure(ctx, body) }, 201));

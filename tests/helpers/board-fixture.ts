@@ -1,7 +1,7 @@
 /** Data for the board's integration and e2e tests: a workspace with stills, fermenters and ferments, built in the database. */
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
-import { createTestWorkspace, type TestWorkspace } from '../helpers/api';
+import { createTestWorkspace, type TestWorkspace } from './api';
 
 export interface BoardFixture extends TestWorkspace {
   stills: { ws1: number; ws2: number; small: number };
