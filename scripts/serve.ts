@@ -8,7 +8,8 @@
  * not a trusted proxy. Either way X-Forwarded-For then holds exactly that one address, which is
  * what Astro reports as ctx.clientAddress. It also serves the built static files (dist/client,
  * /_astro/ with a year's immutable caching, as the adapter's standalone server did), refuses a
- * declared body larger than any route accepts, and stops gracefully on SIGTERM / SIGINT.
+ * declared body larger than any route accepts, starts the background jobs (src/server/jobs.ts)
+ * and stops gracefully on SIGTERM / SIGINT.
  */
 import { createReadStream, readdirSync, statSync } from 'node:fs';
 import http, { type IncomingMessage, type ServerResponse } from 'node:http';
@@ -17,6 +18,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { env } from '../src/config';
 import { clientAddressFrom, parseTrustProxy, type TrustedProxies } from '../src/lib/net';
 import { MAX_UPLOAD_BYTES } from '../src/lib/csv/format';
+import { startBackgroundJobs } from '../src/server/jobs';
 
 type AstroHandler = (req: IncomingMessage, res: ServerResponse) => Promise<void>;
 
@@ -180,6 +182,8 @@ async function main(): Promise<void> {
     console.error(`[plateau] ${ENTRY} exports no handler: build with the node adapter in middleware mode (astro.config.mjs).`);
     process.exit(1);
   }
+  // The outbox sender and the daily digest check: started here, once per process, never from a request.
+  startBackgroundJobs();
   const files = indexStaticFiles(CLIENT_DIR);
 
   let stopping = false;

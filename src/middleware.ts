@@ -6,11 +6,12 @@ import { jsonError } from './server/http';
 import { isSameOrigin } from './server/request';
 import { isDbUnavailable } from './server/db-errors';
 import { forgetFingerprints } from './server/snapshot-cache';
-// Starts the mail outbox sender once per server process.
-import './server/mail/start';
+import { startBackgroundJobs } from './server/jobs';
 import { runStartupChecks } from './server/startup';
 
 runStartupChecks();
+// The production server (scripts/serve.ts) starts the background jobs; `astro dev` has no serve.ts.
+if (import.meta.env.DEV) startBackgroundJobs();
 
 /** Reachable without a session. Everything else needs one. */
 const PUBLIC_PAGES = [/^\/sign-in\/?$/, /^\/sign-up\/?$/, /^\/confirm\//, /^\/invite\//, /^\/forgot-password\/?$/, /^\/reset-password\//, /^\/404\/?$/, /^\/500\/?$/];

@@ -117,7 +117,7 @@ async function rawSql(workspaceId: number, from: Date, to: Date): Promise<void> 
   const pool = getPool();
   const ctxFrom = new Date(from.getTime() - 3 * DAY);
   const ctxTo = new Date(to.getTime() + 3 * DAY);
-  const [runs] = await pool.query('SELECT id, still_id, type, status, starts_at, ends_at, operator_id, charge_litres, charge_abv, version, sequence, notes FROM runs WHERE workspace_id = ? AND starts_at < ? AND ends_at > ? ORDER BY starts_at, id', [workspaceId, ctxTo, ctxFrom]) as any;
+  const [runs] = await pool.query('SELECT id, still_id, type, status, starts_at, ends_at, operator_id, charge_litres, charge_abv, version, sequence, notes FROM runs WHERE workspace_id = ? AND starts_at < ? AND ends_at > ? ORDER BY starts_at, id', [workspaceId, ctxTo, ctxFrom]) as unknown as [Array<{ id: number }>];
   const ids = (runs as Array<{ id: number }>).map((r) => r.id);
   await Promise.all([
     pool.query('SELECT * FROM stills WHERE workspace_id = ? AND active = 1 ORDER BY position, id', [workspaceId]),

@@ -4,7 +4,7 @@ import { lucia } from './auth/session';
 import { newToken, hashToken } from './auth/tokens';
 import { enqueue } from './mail/outbox';
 import { signUpConfirmMail, alreadyRegisteredMail, passwordResetMail } from './mail/templates';
-import { env, demoAllowed } from '../config';
+import { env, demoAllowed, publicUrl } from '../config';
 import { HttpError, notFound } from './http';
 import type { UserCtx } from './context';
 import { getDb } from '../db/client';
@@ -56,7 +56,6 @@ export const SIGNUP_TOKEN_HOURS = 24;
 export const RESET_TOKEN_MINUTES = 30;
 export const MIN_PASSWORD = 10;
 
-export const publicUrl = (path: string) => env().PUBLIC_URL.replace(/\/$/, '') + path;
 
 /**
  * Ask to open a new distillery. The answer is the same whether or not the address has an
@@ -227,5 +226,3 @@ export async function switchWorkspace(me: UserCtx, workspaceId: number): Promise
   if (!role) throw notFound('You are not a member of that distillery.');
   await getDb().update(sessions).set({ workspaceId }).where(and(eq(sessions.id, me.sessionId), eq(sessions.userId, me.userId)));
 }
-
-export const PASSWORD_RULE = `at least ${MIN_PASSWORD} characters`;

@@ -1,4 +1,4 @@
-import type { Role } from '../db/schema';
+import type { Role } from '../lib/vocabulary';
 
 /**
  * The one place that decides role × action. Every API route and page asks `can()`.

@@ -8,11 +8,12 @@ import { and, asc, eq, gte, inArray, isNull, lt, ne, or, sql } from 'drizzle-orm
 import { getDb } from '../db/client';
 import { fermentForecasts, fermenters, ferments, memberships, runFerments, runs, users, washTypes } from '../db/schema';
 import {
-  boardWarnings, dehydrateRun, notBeforeForRisk, toFermentState, toScheduleRun, toScheduleStill,
-  type BoardFerment, type BoardFermentJson, type BoardPayload, type BoardRun, type BoardStill,
+  dehydrateRun, notBeforeForRisk, toFermentState, toScheduleRun, toScheduleStill,
+  type BoardFerment, type BoardPayload, type BoardRun, type BoardStill,
 } from '../lib/board';
 import { computeRunWarnings, findEarliestSlots, runChargeLitres, type FermentStatus, type Slot, type Warning } from '../lib/schedule';
 import { getForecasts } from './forecasts';
+import { fermentJson } from './ferment-lookup';
 import { notFound } from './http';
 import type { Ctx } from './context';
 import { selectRuns } from './run-query';
@@ -77,14 +78,6 @@ const fermentColumns = {
   washCategory: washTypes.category, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt,
 };
 
-export function fermentJson(f: BoardFerment): BoardFermentJson {
-  const iso = (d: Date | null) => (d ? d.toISOString() : null);
-  return {
-    ...f, pitchedAt: iso(f.pitchedAt), emptiedAt: iso(f.emptiedAt), readyAt: iso(f.readyAt),
-    readyP10: iso(f.readyP10), readyP90: iso(f.readyP90), confirmedAt: iso(f.confirmedAt),
-  };
-}
-
 export interface BoardData {
   stills: BoardStill[];
   runs: BoardRun[];
@@ -144,9 +137,10 @@ export async function loadBoardData(ctx: Ctx, from: Date, to: Date, now: Date): 
   return { stills: stillRows, runs: allRuns, ferments: fermentList, fermenters: fermenterRows, people };
 }
 
-/** Recently built payloads, reused while the workspace's fingerprint is unchanged (and for at most 15 s). */
-// Kept while the workspace's fingerprint and the hour are unchanged, for at most five minutes
-// (forecast statuses move with time alone); the island draws "now" from its own clock.
+/**
+ * Recently built payloads, kept while the workspace's fingerprint and the hour are unchanged, for
+ * at most five minutes (forecast statuses move with time alone); the island draws "now" from its own clock.
+ */
 const boardCache = new SnapshotCache<BoardBody>(5 * 60_000);
 
 /** The board as bytes ready to send: plain and gzip-compressed JSON and a validator. */
@@ -198,12 +192,6 @@ export async function warningsForRun(ctx: Ctx, run: BoardRun, now = new Date()):
     still: toScheduleStill(still), runs: [...others, toScheduleRun(run)],
     ferments: new Map(data.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: ctx.ws.timeZone, now,
   });
-}
-
-/** All warnings of the runs on the board for a range (the server side of the island's badges). */
-export async function boardWarningsFor(ctx: Ctx, from: Date, to: Date, now = new Date()): Promise<Map<number, Warning[]>> {
-  const data = await loadBoardData(ctx, from, to, now);
-  return boardWarnings({ stills: data.stills, runs: data.runs, ferments: data.ferments, timeZone: ctx.ws.timeZone, now });
 }
 
 export interface Suggestions {

@@ -4,7 +4,7 @@
  * first: `listFerments(ctx, filters)`, `createRun(ctx, input)`. Queries are scoped by
  * `ctx.ws.id`, never by an id sent in the request.
  */
-import type { Role } from '../db/schema';
+import type { Role } from '../lib/vocabulary';
 import type { WorkspaceSettings } from './workspaces';
 
 /** Who is acting: the signed-in person, their role in this workspace, and their address (for the audit log). */

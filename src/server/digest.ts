@@ -9,7 +9,7 @@ import { getDb } from '../db/client';
 import { ferments, runs, users, workspaces } from '../db/schema';
 import { RUN_STATUS_LABELS, RUN_TYPE_LABELS, shortDate } from '../lib/board';
 import { addDaysYmd, wallClock, weekdayOfYmd, zonedDateTime } from '../lib/schedule';
-import { env } from '../config';
+import { env, publicUrl } from '../config';
 import { enqueue } from './mail/outbox';
 import { claimOnce, membersOf, noticeMail } from './notify';
 import { selectRuns, stillName } from './run-query';
@@ -68,12 +68,11 @@ export async function runDigestFor(workspaceId: number, now: Date = new Date(), 
         return `- ${wallClock(r.startsAt, ws.timeZone).hm}–${wallClock(r.endsAt, ws.timeZone).hm} ${RUN_TYPE_LABELS[r.type]} on ${r.stillName}${w ? ` (wash ${w.join(', ')})` : ''}, ${op}, ${RUN_STATUS_LABELS[r.status].toLowerCase()}`;
       }).join('\n')}`;
     };
-    const base = env().PUBLIC_URL.replace(/\/+$/, '');
     for (const m of members) {
       const subject = `Still runs today and tomorrow at ${ws.name}`;
       const mail = noticeMail(subject, [dayLines(today, m.id), dayLines(tomorrow, m.id), 'Times are distillery time. Never leave a running still unattended.'],
-        { label: 'Open the board', href: `${base}/` },
-        `You asked for this daily digest in ${ws.name}. Turn it off at ${base}/settings/notifications`);
+        { label: 'Open the board', href: publicUrl('/') },
+        `You asked for this daily digest in ${ws.name}. Turn it off at ${publicUrl('/settings/notifications')}`);
       await enqueue(tx, { workspaceId, kind: 'digest', to: m.email, ...mail });
     }
     return { outcome: 'sent' as const, recipients: members.length, runs: rows.length, date: today };

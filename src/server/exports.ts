@@ -157,12 +157,6 @@ function strip<T extends Record<string, unknown>>(table: string, rows: T[]): Arr
   return rows.map((r) => Object.fromEntries(Object.entries(r).filter(([k]) => !omit.includes(k))));
 }
 
-/** Every table that holds workspace rows, by name; sessions, e-mail tokens and throttles are left out on purpose. */
-export const FULL_EXPORT_TABLES = [
-  'members', 'stills', 'still_closures', 'fermenters', 'wash_types', 'ferments', 'ferment_ingredients', 'readings', 'ferment_forecasts', 'forecast_history',
-  'runs', 'run_ferments', 'run_feeds', 'run_outcomes', 'calendar_feeds', 'invitations', 'mail_outbox', 'audit_log', 'job_claims',
-] as const;
-
 export async function fullExport(ctx: Ctx, now = new Date()): Promise<Record<string, unknown>> {
   const db = getDb();
   const w = ctx.ws.id;

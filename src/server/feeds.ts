@@ -16,7 +16,7 @@ import {
   type EventStatus, type FeedEvent,
 } from '../lib/calendar';
 import { computeRunWarnings, runChargeLitres, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
-import { env } from '../config';
+import { env, publicUrl } from '../config';
 import { audit } from './audit';
 import { ACTIONS, can } from './authz';
 import { getForecasts } from './forecasts';
@@ -25,7 +25,7 @@ import { hashToken, newToken } from './auth/tokens';
 import { listStills } from './stills';
 import { systemCtx, type Ctx } from './context';
 import { toSettings } from './workspaces';
-import type { Role } from '../db/schema';
+import type { Role } from '../lib/vocabulary';
 import { SnapshotCache } from './snapshot-cache';
 import { selectRuns } from './run-query';
 import { buildFeedWithStore } from './feed-blocks';
@@ -81,8 +81,7 @@ export interface FeedGroup {
 
 /** The subscription URLs for a token: https (or http in development) and webcal. */
 export function feedUrls(token: string): { url: string; webcal: string } {
-  const base = env().PUBLIC_URL.replace(/\/+$/, '');
-  const url = `${base}/api/feeds/${token}.ics`;
+  const url = publicUrl(`/api/feeds/${token}.ics`);
   return { url, webcal: url.replace(/^https?:\/\//, 'webcal://') };
 }
 
@@ -422,7 +421,6 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
     || (feed.scope === 'person' && r.operatorId === feed.personId));
   inScope.sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime() || a.id - b.id);
 
-  const base = env().PUBLIC_URL.replace(/\/+$/, '');
   const host = uidHost();
   const events: FeedEvent[] = [];
   let lastModified = maxDate(wsRow.updatedAt, new Date(0))!;
@@ -433,7 +431,7 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
     const warnings = still && (run.status === 'planned' || run.status === 'confirmed')
       ? computeRunWarnings(run, { still: toScheduleStill(still), runs: scheduleRuns, ferments: states, timeZone: wsRow.timeZone, now })
       : [];
-    const url = `${base}/runs/${run.id}`;
+    const url = publicUrl(`/runs/${run.id}`);
     const modified = changedAt(run);
     lastModified = maxDate(lastModified, modified)!;
     events.push({

@@ -40,6 +40,11 @@ const fermentColumns = {
   createdAt: ferments.createdAt, updatedAt: ferments.updatedAt,
 };
 
+/** A ferment as the API and the board send it: each instant (a Date field) as its ISO string, as JSON writes it. */
+export function fermentJson<F extends object>(f: F): { [K in keyof F]: F[K] extends infer V ? (V extends Date ? string : V) : never } {
+  return Object.fromEntries(Object.entries(f).map(([k, v]) => [k, v instanceof Date ? v.toISOString() : v])) as never;
+}
+
 /** For pages: the ferment named by a route param, or null when it is not this workspace's (render the 404). */
 export async function fermentForPage(ctx: Ctx, param: string | undefined): Promise<FermentRecord | null> {
   const id = Number(param);

@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { getDb } from '../db/client';
 import { fermentIngredients, fermenters, ferments, readings, washTypes } from '../db/schema';
 import { parseMassToKg, parseVolumeToLitres, massUnitFor, volumeUnitFor, volumeForDisplay } from '../lib/units';
+import { EMPTIED_REASONS, type EmptiedReason } from '../lib/vocabulary';
 import { audit } from './audit';
 import { HttpError, conflict, invalid } from './http';
 import type { Ctx } from './context';
@@ -14,7 +15,7 @@ import { getForecasts, recomputeForecast, type ForecastSummary } from './forecas
 
 // The lookup and the time parsing live in their own modules (readings.ts needs them too); re-exported here.
 export { CLOCK_SKEW_MS, parseWorkspaceTime } from './workspace-time';
-export { fermentForPage, getFerment, type FermentRecord } from './ferment-lookup';
+export { fermentForPage, fermentJson, getFerment, type FermentRecord } from './ferment-lookup';
 
 const sgField = (what: string) => z.number({ error: `Enter the ${what} as an SG, e.g. 1.060.` }).min(1, `The ${what} must be at least 1.000.`).max(1.2, `The ${what} must be at most 1.200.`);
 
@@ -38,7 +39,7 @@ export const fermentInputSchema = z.object({
 
 /** Marking a fermenter emptied: the wash went to the still (distilled) or was dumped. */
 export const emptyInputSchema = z.object({
-  reason: z.enum(['distilled', 'dumped'], { error: 'Say whether the wash went to the still or was dumped.' }),
+  reason: z.enum(EMPTIED_REASONS, { error: 'Say whether the wash went to the still or was dumped.' }),
   at: z.string().max(40).optional(),
 });
 
@@ -60,7 +61,7 @@ export interface FermentListRow {
   pitchedAt: Date;
   og: number;
   emptiedAt: Date | null;
-  emptiedReason: 'distilled' | 'dumped' | null;
+  emptiedReason: EmptiedReason | null;
   lastReadingAt: Date | null;
   lastSg: number | null;
   readingCount: number;
@@ -238,7 +239,3 @@ export async function emptyFerment(ctx: Ctx, id: number, input: z.infer<typeof e
   return getFerment(ctx, id);
 }
 
-/** Ferment as JSON in the workspace's display units. */
-export function fermentJson(f: FermentRecord): Record<string, unknown> {
-  return { ...f, pitchedAt: f.pitchedAt.toISOString(), emptiedAt: f.emptiedAt?.toISOString() ?? null };
-}

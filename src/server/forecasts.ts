@@ -19,9 +19,6 @@ export interface ForecastSummary {
   lastSg: number | null;
 }
 
-/** The whole forecast, as the ferment page draws it (dates revived). */
-export interface StoredForecast extends Forecast { fermentId: number; computedAt: Date }
-
 const HOUR_MS = 3_600_000;
 /** forecast_history gets at most one row per ferment per this interval. */
 const HISTORY_EVERY_MS = 6 * HOUR_MS;
@@ -101,10 +98,12 @@ function compute(f: FermentInputs, rs: ReadingInput[], s: Settings, now: Date, h
 const toDate = (v: unknown): Date | null => (v == null ? null : new Date(v as string));
 
 /** JSON payload back to a Forecast with Date objects. */
-function revive(payload: any): Forecast {
+type ForecastPayload = Omit<Forecast, 'fit'> & { fit: (Omit<NonNullable<Forecast['fit']>, 'curve'> & { curve?: Array<{ t: string; sg: number }> }) | null };
+
+function revive(payload: ForecastPayload): Forecast {
   return {
     ...payload,
-    fit: payload.fit ? { ...payload.fit, curve: (payload.fit.curve ?? []).map((p: any) => ({ t: new Date(p.t), sg: p.sg })) } : null,
+    fit: payload.fit ? { ...payload.fit, curve: (payload.fit.curve ?? []).map((p) => ({ t: new Date(p.t), sg: p.sg })) } : null,
     plateauAt: toDate(payload.plateauAt),
     readyAt: toDate(payload.readyAt),
     readyP10: toDate(payload.readyP10),

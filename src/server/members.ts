@@ -5,7 +5,8 @@
  */
 import { and, eq, isNull, gt, asc, desc, sql, gte, lt, type SQL } from 'drizzle-orm';
 import { getDb } from '../db/client';
-import { memberships, users, invitations, workspaces, sessions, auditLog, type Role } from '../db/schema';
+import { memberships, users, invitations, workspaces, sessions, auditLog } from '../db/schema';
+import type { Role } from '../lib/vocabulary';
 import type { Ctx } from './context';
 import { HttpError, conflict, notFound } from './http';
 import { audit } from './audit';
@@ -15,7 +16,8 @@ import { invitationMail } from './mail/templates';
 import { newToken, hashToken } from './auth/tokens';
 import { hashPassword } from './auth/password';
 import { createSession } from './auth/session';
-import { normaliseEmail, publicUrl } from './accounts';
+import { normaliseEmail } from './accounts';
+import { publicUrl } from '../config';
 
 export const INVITATION_DAYS = 7;
 const LAST_MANAGER = 'A distillery needs at least one manager. Make someone else a manager first.';

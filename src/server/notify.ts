@@ -12,18 +12,17 @@
  */
 import { and, eq, inArray, isNull } from 'drizzle-orm';
 import { getDb, type Db } from '../db/client';
-import { fermentForecasts, ferments, jobClaims, memberships, runs, stills, users, workspaces, type Role } from '../db/schema';
+import { fermentForecasts, ferments, jobClaims, memberships, runs, stills, users, workspaces } from '../db/schema';
+import type { Role } from '../lib/vocabulary';
 import { RUN_TYPE_LABELS, shortDate } from '../lib/board';
 import type { BoardRun } from '../lib/board';
 import { wallClock } from '../lib/schedule';
-import { env } from '../config';
+import { env, publicUrl } from '../config';
 import { enqueue } from './mail/outbox';
 import { escapeHtml, shell, type MailContent } from './mail/templates';
 import type { Tx } from './tx';
 import { selectRuns, stillName, type RunChange } from './run-query';
 import type { Ctx } from './context';
-
-export type Writer = Pick<Db, 'insert' | 'select' | 'update'>;
 
 export const NOTIFY_KINDS = ['ferment_trouble', 'run_early', 'run_changes', 'digest'] as const;
 export type NotifyKind = (typeof NOTIFY_KINDS)[number];
@@ -132,9 +131,8 @@ export function noticeMail(subject: string, paragraphs: string[], link: { label:
   return { subject, text, html };
 }
 
-const base = () => env().PUBLIC_URL.replace(/\/+$/, '');
 const prefsFooter = (workspaceName: string) =>
-  `You get this because of your notification choices in ${workspaceName}. Change them at ${base()}/settings/notifications`;
+  `You get this because of your notification choices in ${workspaceName}. Change them at ${publicUrl('/settings/notifications')}`;
 
 export interface RunWords { type: BoardRun['type']; stillName: string; startsAt: Date }
 
@@ -183,7 +181,7 @@ export async function notifyRunChanged(tx: Tx, change: RunChange): Promise<void>
   const actor = byId.get(actorId)?.name ?? 'Someone';
   const afterWords: RunWords = { type: after.type, stillName: names.get(after.stillId) ?? 'a still', startsAt: after.startsAt };
   const beforeWords: RunWords | null = before ? { type: before.type, stillName: names.get(before.stillId) ?? 'a still', startsAt: before.startsAt } : null;
-  const link = { label: 'Open the run', href: `${base()}/runs/${after.id}` };
+  const link = { label: 'Open the run', href: publicUrl(`/runs/${after.id}`) };
   const label = RUN_TYPE_LABELS[after.type];
   const at = `${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}–${wallClock(after.endsAt, ws.timeZone).hm}`;
 
@@ -320,7 +318,7 @@ export async function notifyFermentStatusChange(db: Pick<Db, 'transaction'>, cha
           ? `Runs it is booked into:\n${upcoming.map((r) => `- ${RUN_TYPE_LABELS[r.type]} on ${r.stillName}, ${mailWhen(r.startsAt, ws.timeZone)}`).join('\n')}`
           : 'It is not booked into any run yet.',
       ];
-      const mail = noticeMail(subject, lines, { label: 'Open the ferment', href: `${base()}/ferments/${fermentId}` }, prefsFooter(ws.name));
+      const mail = noticeMail(subject, lines, { label: 'Open the ferment', href: publicUrl(`/ferments/${fermentId}`) }, prefsFooter(ws.name));
       for (const m of await membersOf(tx, workspaceId)) {
         if (!m.prefs.ferment_trouble) continue;
         await enqueue(tx, { workspaceId, kind: `ferment_${after}`, to: m.email, ...mail });

@@ -10,7 +10,8 @@
 import { and, asc, eq, inArray, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb, type Db } from '../db/client';
-import { ferments, runFerments, runOutcomes, runs, stills, OUTCOME_FRACTIONS } from '../db/schema';
+import { ferments, runFerments, runOutcomes, runs, stills } from '../db/schema';
+import { OUTCOME_FRACTIONS } from '../lib/vocabulary';
 import {
   chargedLaa, computeFraction, expectedLaaFromFeeds, expectedLaaFromFerments, recoveryRatio, sumLaa, validateRunRecord,
   EXPECTED_LAA_FORMULA, FRACTIONS_BY_RUN_TYPE, type Fraction, type FractionResult,

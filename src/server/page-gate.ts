@@ -2,7 +2,7 @@ import type { AstroGlobal } from 'astro';
 import { z } from 'zod';
 import { ACTIONS, can, type Action } from './authz';
 import { HttpError } from './http';
-import type { Role } from '../db/schema';
+import type { Role } from '../lib/vocabulary';
 import type { WorkspaceSettings } from './workspaces';
 import type { Ctx, UserCtx } from './context';
 
@@ -51,7 +51,6 @@ export const ACTION_WORDS: Record<Action, { what: string; verb: 'is' | 'are' }> 
 };
 
 const ROLE_PLURAL: Record<Role, string> = { manager: 'managers', planner: 'planners', distiller: 'distillers', staff: 'staff' };
-export const ROLE_LABEL: Record<Role, string> = { manager: 'Manager', planner: 'Planner', distiller: 'Distiller', staff: 'Staff' };
 
 /** "managers and planners", "managers, planners and distillers". */
 export function whoMay(action: Action): string {

@@ -1,8 +1,9 @@
 import { and, asc, eq, isNull, lt, ne } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb } from '../db/client';
-import { ferments, readings, users, READING_METHODS, READING_UNITS } from '../db/schema';
-import { correctReading, GravityInputError, sgToBrix, type ReadingMethod, type ReadingUnit } from '../lib/gravity';
+import { readings, users } from '../db/schema';
+import { READING_METHODS, READING_UNITS, type TemperatureUnit } from '../lib/vocabulary';
+import { correctReading, GravityInputError, sgToBrix, WATER_DENSITY_MAX_C, WATER_DENSITY_MIN_C, type ReadingMethod, type ReadingUnit } from '../lib/gravity';
 import { parseTemperatureToC, temperatureUnitFor, formatTemperature, temperatureForDisplay } from '../lib/units';
 import { audit } from './audit';
 import { HttpError, conflict, invalid, notFound, afterCommit } from './http';
@@ -30,9 +31,6 @@ export const readingInputSchema = z.object({
 /** Raw SG accepted from a person or a file. */
 export const SG_MIN = 0.98;
 export const SG_MAX = 1.2;
-/** Sample temperatures the hydrometer correction covers. */
-export const SAMPLE_MIN_C = 0;
-export const SAMPLE_MAX_C = 60;
 /** A reading this far below the OG shows the yeast is at work. */
 export const STARTED_DROP = 0.002;
 /** After this long since pitching, fermentation is taken as started even without a lower reading. */
@@ -74,7 +72,8 @@ export function deriveCorrected(
   if (entry.unit === 'sg' && (entry.value < SG_MIN || entry.value > SG_MAX)) {
     throw invalid('value', `An SG of ${entry.value} is not plausible: readings must lie between ${SG_MIN.toFixed(3)} and ${SG_MAX.toFixed(3)}.`);
   }
-  if (entry.sampleTempC !== null && (entry.sampleTempC < SAMPLE_MIN_C || entry.sampleTempC > SAMPLE_MAX_C)) {
+  // Sample temperatures: the range the hydrometer correction covers (lib/gravity), whatever the method.
+  if (entry.sampleTempC !== null && (entry.sampleTempC < WATER_DENSITY_MIN_C || entry.sampleTempC > WATER_DENSITY_MAX_C)) {
     throw invalid('sampleTemp', `A sample at ${formatTemperature(entry.sampleTempC, ws.units)} is outside ${tempRange}: cool or warm it and read again.`);
   }
   if (entry.method === 'hydrometer' && entry.sampleTempC === null) {
@@ -104,7 +103,7 @@ export function deriveCorrected(
 /** Temperatures in the workspace's unit (°C or °F); takenAt as parseWorkspaceTime reads it. */
 export type ReadingBody = z.infer<typeof readingInputSchema>;
 
-function entryFrom(ws: WorkspaceSettings, body: ReadingBody, now: Date): ReadingEntry & { sampleTempUnit: 'C' | 'F' | null; fermentTempC: number | null } {
+function entryFrom(ws: WorkspaceSettings, body: ReadingBody, now: Date): ReadingEntry & { sampleTempUnit: TemperatureUnit | null; fermentTempC: number | null } {
   const tUnit = temperatureUnitFor(ws.units);
   const sampleTempC = body.sampleTemp == null ? null : parseTemperatureToC(body.sampleTemp, tUnit);
   const fermentTempC = body.fermentTemp == null ? null : parseTemperatureToC(body.fermentTemp, tUnit);
@@ -128,7 +127,7 @@ export interface ReadingView {
   rawValue: number;
   rawUnit: ReadingUnit;
   sampleTempC: number | null;
-  sampleTempUnit: 'C' | 'F' | null;
+  sampleTempUnit: TemperatureUnit | null;
   correctedSg: number;
   lowConfidence: boolean;
   source: 'manual' | 'upload';
@@ -254,13 +253,4 @@ export async function recorrectFermentReadings(ctx: Ctx, tx: Tx, ferment: { id: 
     }
     done.push({ takenAt: r.takenAt, correctedSg: sg });
   }
-}
-
-/** The workspace is the source of truth for a reading's ferment; used by routes addressing /api/readings/[id]. */
-export async function fermentOfReading(ctx: Ctx, readingId: number): Promise<number> {
-  const workspaceId = ctx.ws.id;
-  const r = await readingById(workspaceId, readingId);
-  const [f] = await getDb().select({ id: ferments.id }).from(ferments).where(and(eq(ferments.id, r.fermentId), eq(ferments.workspaceId, workspaceId))).limit(1);
-  if (!f) throw notFound('No such reading.');
-  return f.id;
 }

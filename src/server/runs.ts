@@ -10,7 +10,8 @@
 import { and, asc, eq, gt, inArray, lt, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb } from '../db/client';
-import { memberships, ferments, runFeeds, runFerments, runs, stills, RUN_TYPES } from '../db/schema';
+import { memberships, ferments, runFeeds, runFerments, runs, stills } from '../db/schema';
+import { BOOKABLE_RUN_STATUSES, RUN_TYPES } from '../lib/vocabulary';
 import { defaultRunMinutes, dehydrateRun, type BoardRun, type BoardRunJson } from '../lib/board';
 import { findOverlap, runChargeLitres, type RunType } from '../lib/schedule';
 import { audit } from './audit';
@@ -47,7 +48,7 @@ const runDetails = {
 export const createRunSchema = z.object({
   stillId: z.number().int().positive(),
   type: z.enum(RUN_TYPES),
-  status: z.enum(['planned', 'confirmed']).optional(),
+  status: z.enum(BOOKABLE_RUN_STATUSES).optional(),
   startsAt: isoDate,
   /** Give endsAt, or durationMinutes, or neither (then the default duration applies). */
   endsAt: isoDate.optional(),
@@ -62,7 +63,7 @@ export const updateRunSchema = z.object({
   startsAt: isoDate.optional(),
   endsAt: isoDate.optional(),
   type: z.enum(RUN_TYPES).optional(),
-  status: z.enum(['planned', 'confirmed']).optional(),
+  status: z.enum(BOOKABLE_RUN_STATUSES).optional(),
   ...runDetails,
 });
 export type UpdateRunInput = z.infer<typeof updateRunSchema>;
@@ -78,7 +79,7 @@ export function onlyMoves(input: UpdateRunInput): boolean {
 /**
  * Hook called inside the transaction of every run change (create, move, update incl.
  * operator assignment, cancel, start, finish). Notifications enqueue their mail here,
- * so the mail commits with the change or not at all. Does nothing yet.
+ * so the mail commits with the change or not at all.
  */
 export async function onRunChanged(tx: Tx, change: RunChange): Promise<void> {
   // Mail to operators and planners, through the outbox, in this same transaction.
@@ -135,14 +136,13 @@ async function assertOperator(db: Reader, workspaceId: number, operatorId: numbe
   if (!m) throw invalid('operatorId', 'That person is not a member of this distillery.');
 }
 
-async function assertCharges(db: Reader, workspaceId: number, type: RunType, lines: CreateRunInput['ferments'], runId?: number): Promise<void> {
+async function assertCharges(db: Reader, workspaceId: number, type: RunType, lines: CreateRunInput['ferments']): Promise<void> {
   if (!lines?.length) return;
   if (type !== 'stripping' && type !== 'redistillation') throw invalid('ferments', 'Only stripping runs take wash from ferments; spirit runs are fed by stripping runs.');
   const ids = [...new Set(lines.map((l) => l.fermentId))];
   if (ids.length !== lines.length) throw invalid('ferments', 'Name each ferment once.');
   const found = await db.select({ id: ferments.id }).from(ferments).where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, ids)));
   if (found.length !== ids.length) throw invalid('ferments', 'One of those ferments is not in this distillery.');
-  void runId;
 }
 
 async function assertFeeds(db: Reader, workspaceId: number, type: RunType, lines: CreateRunInput['feeds'], runId?: number): Promise<void> {
@@ -230,7 +230,7 @@ export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Pr
   // Validate lines against the type they will have (the current type when unchanged).
   const pre = await getRun(ctx, id);
   const type = input.type ?? pre.type;
-  await assertCharges(db, workspaceId, type, input.ferments, id);
+  await assertCharges(db, workspaceId, type, input.ferments);
   await assertFeeds(db, workspaceId, type, input.feeds, id);
 
   return inRetriedTransaction(async (tx) => {

@@ -2,7 +2,8 @@
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb } from '../db/client';
-import { runs, stillClosures, stills, STILL_KINDS, RUN_TYPES } from '../db/schema';
+import { runs, stillClosures, stills } from '../db/schema';
+import { RUN_TYPES, STILL_KINDS } from '../lib/vocabulary';
 import type { BoardStill } from '../lib/board';
 import { isPlanningDate, type RunType } from '../lib/schedule';
 import { audit } from './audit';
@@ -172,10 +173,5 @@ export async function removeClosure(ctx: Ctx, id: number): Promise<void> {
     await tx.delete(stillClosures).where(and(eq(stillClosures.id, id), eq(stillClosures.workspaceId, workspaceId)));
     await audit({ workspaceId, userId, action: 'still.closure.remove', entityType: 'still_closure', entityId: id, details: { startsOn: row.startsOn, endsOn: row.endsOn, reason: row.reason } }, tx);
   });
-}
-
-/** Closures that concern one still (its own and the distillery's). */
-export function closuresOf(all: ClosureRow[], stillId: number): ClosureRow[] {
-  return all.filter((c) => c.stillId === null || c.stillId === stillId);
 }
 

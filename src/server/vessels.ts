@@ -1,7 +1,8 @@
 import { and, asc, eq, isNull } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb, type Db } from '../db/client';
-import { fermenters, ferments, washTypes, WASH_CATEGORIES } from '../db/schema';
+import { fermenters, ferments, washTypes } from '../db/schema';
+import { WASH_CATEGORIES, type WashCategory } from '../lib/vocabulary';
 import { audit } from './audit';
 import { conflict, invalid, notFound } from './http';
 import type { Ctx } from './context';
@@ -26,7 +27,7 @@ export const washTypeInputSchema = z.object({
   typicalOg: sg('typical OG').nullable().optional(),
 });
 
-export type WashCategory = (typeof WASH_CATEGORIES)[number];
+export type { WashCategory };
 
 export interface WashTypeDefault {
   name: string;

@@ -1,6 +1,7 @@
 import { and, eq, asc } from 'drizzle-orm';
 import { getDb } from '../db/client';
-import { memberships, workspaces, type Role } from '../db/schema';
+import { memberships, workspaces } from '../db/schema';
+import type { Role } from '../lib/vocabulary';
 
 export interface WorkspaceSettings {
   id: number;

@@ -3,7 +3,7 @@ import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import type { Browser } from 'playwright-core';
 import { launch, newPage, checkPage, signInUi, DESKTOP } from '../helpers/browser';
 import { createTestWorkspace, TEST_PASSWORD, type TestWorkspace } from '../helpers/api';
-import type { Role } from '../../src/db/schema';
+import type { Role } from '../../src/lib/vocabulary';
 
 const EXPECT: Record<Role, { form: boolean; members: boolean; audit: boolean; mailbox: boolean; remove: boolean }> = {
   manager: { form: true, members: true, audit: true, mailbox: true, remove: true },

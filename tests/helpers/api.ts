@@ -5,7 +5,7 @@
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { hashPassword } from '../../src/server/auth/password';
-import type { Role } from '../../src/db/schema';
+import { ROLES, type Role } from '../../src/lib/vocabulary';
 
 export const BASE = () => process.env.PLATEAU_TEST_URL ?? 'http://127.0.0.1:4399';
 
@@ -71,7 +71,7 @@ export async function createTestWorkspace(name = 'Test distillery', settings: Pa
   const tag = `${Date.now().toString(36)}${(++counter).toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}`;
   const [ws] = await db.insert(t.workspaces).values({ name: `${name} ${tag}`, timeZone: 'Europe/London', ...settings }).$returningId();
   const users = {} as TestWorkspace['users'];
-  for (const role of t.ROLES) {
+  for (const role of ROLES) {
     const email = `${role}-${tag}@test.example`;
     const [u] = await db.insert(t.users).values({ email, name: `${role[0]!.toUpperCase()}${role.slice(1)} ${tag}`, passwordHash: hashCache, emailVerifiedAt: new Date() }).$returningId();
     await db.insert(t.memberships).values({ workspaceId: ws!.id, userId: u!.id, role });

@@ -14,7 +14,7 @@
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import http from 'node:http';
-import { ROLES, type Role } from '../../src/db/schema';
+import { ROLES, type Role } from '../../src/lib/vocabulary';
 import { createSession } from '../../src/server/auth/session';
 import { reportQuerySchema } from '../../src/server/reports';
 import { BASE } from './api';

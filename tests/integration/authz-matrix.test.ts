@@ -11,7 +11,7 @@ import { eq, getTableColumns } from 'drizzle-orm';
 import { getTableConfig, type MySqlTable } from 'drizzle-orm/mysql-core';
 import { getDb } from '../../src/db/client';
 import * as schema from '../../src/db/schema';
-import { ROLES, type Role } from '../../src/db/schema';
+import { ROLES, type Role } from '../../src/lib/vocabulary';
 import { createSession } from '../../src/server/auth/session';
 import { Client } from '../helpers/api';
 import { buildFixture } from './authz/fixture';

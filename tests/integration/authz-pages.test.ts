@@ -6,7 +6,7 @@
  * sign-in, a refused role -> the 403 "not for your role" page, another distillery's id -> 404.
  */
 import { describe, it, expect, beforeAll } from 'vitest';
-import { ROLES, type Role } from '../../src/db/schema';
+import { ROLES, type Role } from '../../src/lib/vocabulary';
 import { createSession } from '../../src/server/auth/session';
 import { Client } from '../helpers/api';
 import { discoverPages } from '../helpers/pages';

@@ -2,7 +2,7 @@ import { describe, it, expect, beforeAll } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
-import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers/api';
+import { createTestWorkspace } from '../helpers/api';
 
 /** Water density, Tanaka et al. (2001), Metrologia 38, 301–309 (REFERENCES §2), written out here from the paper. */
 function tanaka(tC: number): number {

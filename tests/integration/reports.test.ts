@@ -26,6 +26,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
+import type { RunStatus, RunType } from '../../src/lib/vocabulary';
 import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers/api';
 import { utc } from '../helpers/time';
 
@@ -62,7 +63,7 @@ beforeAll(async () => {
   ids.f2 = await ferment('RF-2', grain!.id, '2025-01-01T14:00', 1.06, [1.06, 1.04, 1.02, 1.005, 1.005, 1.005, 1.005]);
   ids.f3 = await ferment('RF-3', grain!.id, '2025-01-02T08:00', 1.06, [1.06, 1.045, 1.03, 1.015, 1.01, 1.005, 1.005, 1.005, 1.005]);
   await db.insert(t.fermentIngredients).values({ workspaceId: w, fermentId: ids.f1, name: 'Cane sugar', quantityKg: 480 });
-  const run = async (type: (typeof t.RUN_TYPES)[number], status: (typeof t.RUN_STATUSES)[number], from: string, to: string, extra: Partial<typeof t.runs.$inferInsert> = {}) => {
+  const run = async (type: RunType, status: RunStatus, from: string, to: string, extra: Partial<typeof t.runs.$inferInsert> = {}) => {
     const [r] = await db.insert(t.runs).values({ workspaceId: w, stillId: still!.id, type, status, startsAt: utc(from), endsAt: utc(to), finishedAt: status === 'done' ? utc(to) : null, ...extra }).$returningId();
     return r!.id;
   };

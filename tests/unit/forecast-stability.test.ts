@@ -1,5 +1,6 @@
 import { describe, it, expect } from 'vitest';
-import { dailyLevels, firstRuleMet, forecastFerment, stabilityCheck, FORECAST_STATUSES, STATUS_LABELS, type ForecastInput } from '../../src/lib/forecast';
+import { dailyLevels, firstRuleMet, forecastFerment, stabilityCheck, type ForecastInput } from '../../src/lib/forecast';
+import { FORECAST_STATUSES, FORECAST_STATUS_LABELS } from '../../src/lib/vocabulary';
 
 const H = 3_600_000;
 const T0 = Date.UTC(2025, 2, 3, 8, 0);
@@ -132,7 +133,7 @@ describe('every status is reachable', () => {
     expect(f.reason.length).toBeGreaterThan(5);
   });
   it('has a plain-language label for each status', () => {
-    for (const s of FORECAST_STATUSES) expect(STATUS_LABELS[s]).toMatch(/^[A-Z]/);
+    for (const s of FORECAST_STATUSES) expect(FORECAST_STATUS_LABELS[s]).toMatch(/^[A-Z]/);
   });
   it('does not call a ferment souring when its logged pH is steady', () => {
     const f = forecastFerment({

@@ -37,6 +37,8 @@ export function BoardTimeline(p: {
   // Scroll to the working morning (or today) on first paint and when the page changes.
   useEffect(() => {
     if (scrollRef.current) scrollRef.current.scrollLeft = initialScrollLeft(win, board.now, spec.pxPerHour);
+    // Only a new page (zoom or anchor) scrolls; the 30 s refresh of board.now must not move the view.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [zoom, anchor]);
 
   const runs = useMemo(() => runsByStill(board.stills, board.runs, win), [board.runs, board.stills, win]);

@@ -1,12 +1,10 @@
 import { memo } from 'react';
 import { useDraggable } from '@dnd-kit/core';
 import type { BoardFerment } from '../../lib/board';
+import { FORECAST_STATUS_LABELS } from '../../lib/vocabulary';
 
 const STATUS_TAG: Record<string, string> = {
   finished: 'tag-settled', slowing: 'tag-working', active: 'tag-working', lag: 'tag-quiet', insufficient_data: 'tag-quiet', stalled: 'tag-stalled', souring: 'tag-souring',
-};
-const STATUS_WORD: Record<string, string> = {
-  finished: 'Finished', slowing: 'Slowing', active: 'Fermenting', lag: 'Lag', insufficient_data: 'Few readings', stalled: 'Stalled', souring: 'Souring',
 };
 
 export interface FermentChipProps {
@@ -32,10 +30,10 @@ function FermentChipInner(p: FermentChipProps) {
         {...attributes}
         {...listeners}
         aria-roledescription={p.canBook ? 'wash you can drag onto a still' : 'wash'}
-        aria-label={`Wash ${p.ferment.code}, ${STATUS_WORD[p.ferment.status]}, ${p.whenText}, ${p.unbookedText} not booked`}
+        aria-label={`Wash ${p.ferment.code}, ${FORECAST_STATUS_LABELS[p.ferment.status]}, ${p.whenText}, ${p.unbookedText} not booked`}
       >
         <span className="font-bold">{p.ferment.code}</span>
-        <span className={`tag ${STATUS_TAG[p.ferment.status] ?? 'tag-quiet'}`}>{STATUS_WORD[p.ferment.status] ?? p.ferment.status}</span>
+        <span className={`tag ${STATUS_TAG[p.ferment.status] ?? 'tag-quiet'}`}>{FORECAST_STATUS_LABELS[p.ferment.status] ?? p.ferment.status}</span>
         <span className="block w-full text-xs text-ink-soft">{p.whenText} · {p.unbookedText} free</span>
       </div>
       {p.canBook && (

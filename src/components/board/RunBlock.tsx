@@ -1,7 +1,7 @@
 import { memo, useRef, useState } from 'react';
 import { useDraggable } from '@dnd-kit/core';
 import type { BoardRun, WindowPlacement } from '../../lib/board';
-import { RUN_STATUS_LABELS, RUN_TYPE_LABELS } from '../../lib/board';
+import { RUN_STATUS_LABELS, RUN_TYPE_ABBREVIATIONS, RUN_TYPE_LABELS } from '../../lib/vocabulary';
 import type { Warning } from '../../lib/schedule';
 import { WarningBadges } from './WarningBadges';
 
@@ -32,7 +32,6 @@ const TYPE_CLASS: Record<BoardRun['type'], string> = {
   maintenance: 'run-maintenance',
 };
 
-const SHORT: Record<BoardRun['type'], string> = { stripping: 'Strip', spirit: 'Spirit', redistillation: 'Redist.', cleaning: 'Clean', maintenance: 'Maint.' };
 
 const PLACEMENT_TEXT: Record<WindowPlacement, string> = {
   before: 'starts before its wash is ready',
@@ -53,7 +52,7 @@ const RunBlockBody = memo(function RunBlockBody(p: {
     <>
       <div className="run-body" style={{ width: p.width }}>
         <div className="run-line1">
-          <span className="run-type">{p.compact ? SHORT[p.type].slice(0, 1) : p.narrow ? SHORT[p.type] : RUN_TYPE_LABELS[p.type]}</span>
+          <span className="run-type">{p.compact ? RUN_TYPE_ABBREVIATIONS[p.type].slice(0, 1) : p.narrow ? RUN_TYPE_ABBREVIATIONS[p.type] : RUN_TYPE_LABELS[p.type]}</span>
           {!p.compact && p.fermentCodes && <span className="run-codes">{p.fermentCodes}</span>}
         </div>
         {!p.compact && (
@@ -91,6 +90,8 @@ function RunBlockInner(p: RunBlockProps) {
 
   return (
     <>
+    {/* dnd-kit's spread attributes give this block role="button", tabIndex and its keyboard handling. */}
+    {/* eslint-disable-next-line jsx-a11y/no-static-element-interactions */}
     <div
       ref={setNodeRef}
       className={`run-block ${TYPE_CLASS[p.run.type]} status-${p.run.status} place-${p.placement}${isDragging ? ' is-dragging' : ''}${movable ? '' : ' is-fixed'}`}

@@ -3,6 +3,7 @@ import type { Board, BoardRun } from '../../lib/board';
 import { defaultRunMinutes, RUN_STATUS_LABELS, RUN_TYPE_LABELS, SAFETY_CAUTIONS, toFermentState, toScheduleRun, toScheduleStill } from '../../lib/board';
 import { computeRunWarnings, wallClock, zonedDateTime, type RunType, type Warning } from '../../lib/schedule';
 import { formatVolume, parseVolumeToLitres, volumeForDisplay, volumeUnitFor, type UnitSystem } from '../../lib/units';
+import { RUN_TYPES } from '../../lib/vocabulary';
 
 export interface DialogDraft {
   /** Null when booking a new run. */
@@ -26,7 +27,6 @@ export interface RunDialogProps {
   onAction: (action: 'cancel' | 'start' | 'finish', run: BoardRun) => void;
 }
 
-const TYPES: RunType[] = ['stripping', 'spirit', 'redistillation', 'cleaning', 'maintenance'];
 
 function localInput(date: Date, tz: string): string {
   const w = wallClock(date, tz);
@@ -80,6 +80,8 @@ export function RunDialog(p: RunDialogProps) {
       still: toScheduleStill(still), runs: board.runs.filter((r) => r.id !== existing?.id).map(toScheduleRun),
       ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: tz, now: board.now,
     });
+    // Recomputed when the form's fields change; the board and the run being edited are fixed while the dialog is open.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [start, duration, stillId, type, status, operatorId, chargeLitres, lines, feeds]);
 
   const openFerments = board.ferments.filter((f) => !f.emptiedAt || lines.some((l) => l.fermentId === f.id));
@@ -116,7 +118,7 @@ export function RunDialog(p: RunDialogProps) {
           <div className="field">
             <label htmlFor="rd-type">Run type</label>
             <select id="rd-type" className="input" value={type} onChange={(e) => setType(e.target.value as RunType)}>
-              {TYPES.map((t) => <option key={t} value={t}>{RUN_TYPE_LABELS[t]}</option>)}
+              {RUN_TYPES.map((t) => <option key={t} value={t}>{RUN_TYPE_LABELS[t]}</option>)}
             </select>
           </div>
           <div className="field">

@@ -4,21 +4,24 @@ import type { BoardStill } from '../../lib/board';
 import { RUN_TYPE_LABELS, WEEKDAY_NAMES } from '../../lib/board';
 import type { RunType } from '../../lib/schedule';
 import { formatVolume, parseVolumeToLitres, volumeForDisplay, volumeUnitFor, type UnitSystem } from '../../lib/units';
+import { RUN_TYPES, STILL_KIND_LABELS, STILL_KINDS, type StillKind } from '../../lib/vocabulary';
 
 type Still = BoardStill & { active: boolean };
 interface Closure { id: number; stillId: number | null; startsOn: string; endsOn: string; reason: string }
 
-const TYPES: RunType[] = ['stripping', 'spirit', 'redistillation', 'cleaning', 'maintenance'];
 const WEEK = [1, 2, 3, 4, 5, 6, 0];
 
-async function send(method: string, url: string, body?: unknown): Promise<{ ok: boolean; json: any }> {
+/** What the stills API answers: the changed still or the lists, or an error. */
+interface StillsAnswer { still?: Still; stills?: Still[]; closures?: Closure[]; removed?: 'deleted' | 'retired'; error?: { message?: string; fields?: Record<string, string> } }
+
+async function send(method: string, url: string, body?: unknown): Promise<{ ok: boolean; json: StillsAnswer }> {
   const res = await fetch(url, { method, headers: { 'content-type': 'application/json', accept: 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
   const text = await res.text();
   return { ok: res.ok, json: text ? JSON.parse(text) : null };
 }
 
 interface Draft {
-  name: string; kind: 'pot' | 'column' | 'reflux'; capacity: string; heatingKw: string; cleaning: string;
+  name: string; kind: StillKind; capacity: string; heatingKw: string; cleaning: string;
   hours: Record<number, { open: string; close: string } | null>; typical: Record<RunType, string>;
 }
 
@@ -31,7 +34,7 @@ function draftOf(s: Still | null, units: UnitSystem): Draft {
   return {
     name: s?.name ?? '', kind: s?.kind ?? 'pot', capacity: s ? String(Math.round(volumeForDisplay(s.capacityLitres, units))) : '', heatingKw: s ? String(s.heatingKw) : '',
     cleaning: String(s?.cleaningAfterRunMinutes ?? 60), hours,
-    typical: Object.fromEntries(TYPES.map((t) => [t, String(s?.typicalMinutes[t] ?? { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 }[t])])) as Record<RunType, string>,
+    typical: Object.fromEntries(RUN_TYPES.map((t) => [t, String(s?.typicalMinutes[t] ?? { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 }[t])])) as Record<RunType, string>,
   };
 }
 
@@ -47,11 +50,11 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
       name: d.name, kind: d.kind, capacityLitres: parseVolumeToLitres(Number(d.capacity), volumeUnitFor(units)), heatingKw: Number(d.heatingKw),
       cleaningAfterRunMinutes: Number(d.cleaning),
       operatingHours: WEEK.flatMap((w) => (d.hours[w] ? [{ weekday: w, open: d.hours[w]!.open, close: d.hours[w]!.close === '00:00' ? '24:00' : d.hours[w]!.close }] : [])),
-      typicalMinutes: Object.fromEntries(TYPES.map((t) => [t, Number(d.typical[t])])),
+      typicalMinutes: Object.fromEntries(RUN_TYPES.map((t) => [t, Number(d.typical[t])])),
     };
     const r = still ? await send('PATCH', `/api/stills/${still.id}`, body) : await send('POST', '/api/stills', body);
     setBusy(false);
-    if (r.ok) onDone(r.json.still);
+    if (r.ok) onDone(r.json.still ?? null);
     else setError(r.json?.error?.message ?? 'Not saved.');
   }
   const set = (patch: Partial<Draft>) => setD({ ...d, ...patch });
@@ -62,7 +65,7 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
         <div className="field"><label htmlFor={`${idp}-name`}>Name</label><input id={`${idp}-name`} className="input" value={d.name} onChange={(e) => set({ name: e.target.value })} required maxLength={80} /></div>
         <div className="field"><label htmlFor={`${idp}-kind`}>Kind</label>
           <select id={`${idp}-kind`} className="input" value={d.kind} onChange={(e) => set({ kind: e.target.value as Draft['kind'] })}>
-            <option value="pot">Pot</option><option value="column">Column</option><option value="reflux">Reflux</option>
+            {STILL_KINDS.map((k) => <option key={k} value={k}>{STILL_KIND_LABELS[k]}</option>)}
           </select></div>
         <div className="field"><label htmlFor={`${idp}-cap`}>Working charge ({volumeUnitFor(units) === 'L' ? 'litres' : 'US gallons'})</label><input id={`${idp}-cap`} className="input" type="number" min={1} step="any" value={d.capacity} onChange={(e) => set({ capacity: e.target.value })} required /></div>
         <div className="field"><label htmlFor={`${idp}-kw`}>Heating power (kW)</label><input id={`${idp}-kw`} className="input" type="number" min={0.1} step="any" value={d.heatingKw} onChange={(e) => set({ heatingKw: e.target.value })} required /></div>
@@ -88,7 +91,7 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
       <fieldset>
         <legend className="label">Typical minutes once at the boil, by run type</legend>
         <div className="mt-1 grid grid-cols-2 gap-2 sm:grid-cols-5">
-          {TYPES.map((t) => (
+          {RUN_TYPES.map((t) => (
             <div key={t} className="field"><label htmlFor={`${idp}-t-${t}`}>{RUN_TYPE_LABELS[t]}</label>
               <input id={`${idp}-t-${t}`} className="input" type="number" min={0} value={d.typical[t]} onChange={(e) => set({ typical: { ...d.typical, [t]: e.target.value } })} /></div>
           ))}
@@ -111,8 +114,8 @@ export default function StillsEditor(props: { initial: Still[]; closures: Closur
 
   async function reload() {
     const [s, cl] = await Promise.all([send('GET', '/api/stills'), send('GET', '/api/stills/closures')]);
-    if (s.ok) setStills(s.json.stills);
-    if (cl.ok) setClosures(cl.json.closures);
+    if (s.ok) setStills(s.json.stills ?? []);
+    if (cl.ok) setClosures(cl.json.closures ?? []);
   }
   async function move(id: number, dir: -1 | 1) {
     const active = stills.filter((s) => s.active).map((s) => s.id);
@@ -121,7 +124,7 @@ export default function StillsEditor(props: { initial: Still[]; closures: Closur
     if (j < 0 || j >= active.length) return;
     [active[i], active[j]] = [active[j]!, active[i]!];
     const r = await send('PUT', '/api/stills/order', { ids: active });
-    if (r.ok) { setStills(r.json.stills); setMsg('Board order saved.'); }
+    if (r.ok) { setStills(r.json.stills ?? []); setMsg('Board order saved.'); }
   }
   async function retire(s: Still) {
     if (!window.confirm(`Remove ${s.name} from the board? Its past runs stay on record.`)) return;

@@ -1,11 +1,12 @@
 import type { Warning, WarningCode } from '../../lib/schedule';
+import { FORECAST_STATUS_LABELS } from '../../lib/vocabulary';
 
 /** Short badge words for each warning; the full sentence is in the title and the run's details. */
 export const WARNING_BADGES: Record<WarningCode, string> = {
   booked_before_ready: 'Not ready',
   booked_before_stable: 'Not stable',
-  ferment_stalled: 'Stalled',
-  ferment_souring: 'Souring',
+  ferment_stalled: FORECAST_STATUS_LABELS.stalled,
+  ferment_souring: FORECAST_STATUS_LABELS.souring,
   over_capacity: 'Over capacity',
   ferment_overallocated: 'Wash overbooked',
   outside_hours: 'Out of hours',

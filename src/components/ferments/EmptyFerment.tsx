@@ -1,7 +1,8 @@
 import { useState, type FormEvent } from 'react';
+import type { EmptiedReason } from '../../lib/vocabulary';
 
 export default function EmptyFerment({ fermentId, defaultAt }: { fermentId: number; defaultAt: string }) {
-  const [reason, setReason] = useState<'distilled' | 'dumped'>('distilled');
+  const [reason, setReason] = useState<EmptiedReason>('distilled');
   const [at, setAt] = useState(defaultAt);
   const [error, setError] = useState('');
   const [busy, setBusy] = useState(false);

@@ -3,14 +3,15 @@ import GravityChart from './GravityChart';
 import UploadPanel from './UploadPanel';
 import { fermentStats } from './stats';
 import { LITRES_PER_US_GALLON, formatTemperature } from '../../lib/units';
-import { STATUS_TEXT, statusTagClass, fmtSg, fmtDateTime, fmtWindow, fmtRaw, METHOD_LABEL, type Status } from './format';
+import { statusTagClass, fmtSg, fmtDateTime, fmtWindow, fmtRaw } from './format';
+import { FORECAST_STATUS_LABELS, READING_METHOD_LABELS, type ForecastStatus, type TemperatureUnit, type UnitSystem } from '../../lib/vocabulary';
 
 export interface ViewReading {
-  id: number; takenAt: string; method: string; rawValue: number; rawUnit: string; sampleTempC: number | null; sampleTempUnit: 'C' | 'F' | null;
+  id: number; takenAt: string; method: string; rawValue: number; rawUnit: string; sampleTempC: number | null; sampleTempUnit: TemperatureUnit | null;
   correctedSg: number; lowConfidence: boolean; source: string; fermentTempC: number | null; ph: number | null; note: string | null; takenByName: string | null; edited: boolean;
 }
 export interface ViewForecast {
-  status: Status; reason: string; fit: { curve: Array<{ t: string; sg: number }> } | null; predictedFg: { value: number; p10: number; p90: number } | null;
+  status: ForecastStatus; reason: string; fit: { curve: Array<{ t: string; sg: number }> } | null; predictedFg: { value: number; p10: number; p90: number } | null;
   readyAt: string | null; readyP10: string | null; readyP90: string | null; ruleMetAt: string | null; stableSince: string | null; lastSg: number | null;
   /** Absent in forecasts stored before the wash type's history was used. */
   history?: { count: number; medianDays: number; weight: number } | null;
@@ -25,7 +26,7 @@ export interface FermentViewProps {
   terminalMin: number;
   terminalMax: number;
   stableDays: number;
-  units: 'metric' | 'us';
+  units: UnitSystem;
   timeZone: string;
   canWrite: boolean;
   abvFormula: string;
@@ -35,7 +36,7 @@ export interface FermentViewProps {
   initial: { readings: ViewReading[]; forecast: ViewForecast | null; now: string };
 }
 
-const fmtTemp = (c: number | null, units: 'metric' | 'us') => (c === null ? '–' : formatTemperature(c, units));
+const fmtTemp = (c: number | null, units: UnitSystem) => (c === null ? '–' : formatTemperature(c, units));
 const TABLE_ROWS = 60;
 
 export default function FermentView(p: FermentViewProps) {
@@ -60,7 +61,7 @@ export default function FermentView(p: FermentViewProps) {
   const f = data.forecast;
   const last = data.readings.length ? data.readings[data.readings.length - 1]! : null;
   const stats = fermentStats(p.og, p.volumeLitres, last?.correctedSg ?? null, f?.predictedFg?.value ?? null, { min: p.terminalMin, max: p.terminalMax });
-  const status = (f?.status ?? 'insufficient_data') as Status;
+  const status = (f?.status ?? 'insufficient_data') as ForecastStatus;
   const toMs = (s: string | null) => (s ? new Date(s).getTime() : null);
   const laaText = (v: number | null) => (v === null ? '–' : p.units === 'us' ? `${v.toFixed(0)} LAA (${(v / (LITRES_PER_US_GALLON / 2)).toFixed(0)} proof gal)` : `${v.toFixed(0)} L`);
   const rows = [...data.readings].reverse();
@@ -71,7 +72,7 @@ export default function FermentView(p: FermentViewProps) {
       <section className="card mt-3" aria-labelledby="verdict-heading">
         <h2 id="verdict-heading" className="sr-only">Status</h2>
         <p className="flex flex-wrap items-center gap-2 text-lg">
-          <span className={statusTagClass(status)} data-testid="status-tag">{STATUS_TEXT[status]}</span>
+          <span className={statusTagClass(status)} data-testid="status-tag">{FORECAST_STATUS_LABELS[status]}</span>
           <span data-testid="status-reason">{f?.reason ?? 'no forecast yet'}</span>
         </p>
         <p className="mt-1 text-sm text-ink-soft">
@@ -132,7 +133,7 @@ export default function FermentView(p: FermentViewProps) {
                   <tr key={r.id} className={r.id === p.highlightId ? 'bg-barley-soft' : ''} data-reading={r.id}>
                     <td className="whitespace-nowrap">{fmtDateTime(r.takenAt, p.timeZone)}</td>
                     <td className="font-semibold tabular-nums">{r.correctedSg.toFixed(4)}{r.lowConfidence && <span aria-hidden="true"> △</span>}</td>
-                    <td className="whitespace-nowrap">{fmtRaw(r.rawValue, r.rawUnit)} · {METHOD_LABEL[r.method] ?? r.method}</td>
+                    <td className="whitespace-nowrap">{fmtRaw(r.rawValue, r.rawUnit)} · {(READING_METHOD_LABELS as Record<string, string>)[r.method] ?? r.method}</td>
                     <td className="whitespace-nowrap">{fmtTemp(r.sampleTempC, r.sampleTempUnit === 'F' ? 'us' : r.sampleTempUnit === 'C' ? 'metric' : p.units)}</td>
                     <td>{r.takenByName ?? '–'}</td>
                     <td className="text-sm">

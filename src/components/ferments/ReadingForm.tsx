@@ -1,13 +1,14 @@
 import { useState, type FormEvent, type ReactNode } from 'react';
+import { READING_METHOD_LABELS, READING_METHODS, READING_UNIT_LABELS, READING_UNITS, type ReadingMethod, type ReadingUnit, type TemperatureUnit } from '../../lib/vocabulary';
 
 export interface ReadingFormProps {
   fermentId: number;
   code: string;
-  tempUnit: 'C' | 'F';
+  tempUnit: TemperatureUnit;
   timeZone: string;
   /** Present when editing an existing reading. */
   readingId?: number;
-  initial: { value: string; unit: 'sg' | 'brix' | 'plato'; method: 'hydrometer' | 'refractometer' | 'digital'; sampleTemp: string; takenAt: string; note: string; fermentTemp: string; ph: string };
+  initial: { value: string; unit: ReadingUnit; method: ReadingMethod; sampleTemp: string; takenAt: string; note: string; fermentTemp: string; ph: string };
 }
 
 const num = (s: string): number | null => (s.trim() === '' ? null : Number(s.trim().replace(',', '.')));
@@ -18,7 +19,7 @@ function Choice<T extends string>({ legend, name, value, options, onChange }: { 
       <legend className="label">{legend}</legend>
       <div className="mt-1 grid grid-cols-3 gap-2">
         {options.map(([v, label]) => (
-          <label key={v} className={`flex min-h-12 cursor-pointer items-center justify-center rounded-lg border-2 px-2 text-center font-semibold ${value === v ? 'border-slate-deep bg-slate-deep text-white' : 'border-line bg-panel'}`}>
+          <label key={v} className={`flex min-h-12 cursor-pointer items-center justify-center rounded-lg border-2 px-2 text-center font-semibold hyphens-auto ${value === v ? 'border-slate-deep bg-slate-deep text-white' : 'border-line bg-panel'}`}>
             <input type="radio" name={name} value={v} checked={value === v} onChange={() => onChange(v)} className="sr-only" />
             {label}
           </label>
@@ -86,8 +87,8 @@ export default function ReadingForm(p: ReadingFormProps) {
   return (
     <form onSubmit={submit} noValidate className="mt-3 flex max-w-md flex-col gap-4" aria-label={p.readingId ? 'Edit reading' : 'Log a reading'}>
       <Choice legend="Instrument" name="method" value={v.method} onChange={(m) => setV((o) => ({ ...o, method: m, unit: m === 'refractometer' && o.unit === 'sg' ? 'brix' : o.unit }))}
-        options={[['hydrometer', 'Hydrometer'], ['refractometer', 'Refracto­meter'], ['digital', 'Digital']]} />
-      <Choice legend="Unit" name="unit" value={v.unit} onChange={(u) => set('unit', u)} options={[['sg', 'SG'], ['brix', '°Brix'], ['plato', '°Plato']]} />
+        options={READING_METHODS.map((m) => [m, READING_METHOD_LABELS[m]])} />
+      <Choice legend="Unit" name="unit" value={v.unit} onChange={(u) => set('unit', u)} options={READING_UNITS.map((u) => [u, READING_UNIT_LABELS[u]])} />
       <div className="field">
         <label htmlFor="value">{valueLabel}</label>
         <input id="value" className={big} inputMode="decimal" autoComplete="off" placeholder={v.unit === 'sg' ? '1.012' : '8.5'} value={v.value} onChange={(e) => set('value', e.target.value)} {...aria('value')} />

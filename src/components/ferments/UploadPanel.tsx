@@ -36,7 +36,7 @@ export default function UploadPanel(p: UploadPanelProps) {
     xhr.upload.onload = () => setPhase({ kind: 'parsing' });
     xhr.onerror = () => { setPhase({ kind: 'idle' }); setError('The upload failed (no connection?). Nothing was imported.'); };
     xhr.onload = () => {
-      let data: any = null;
+      let data: { preview?: Preview; error?: { message?: string; fields?: Record<string, string> } } | null = null;
       try { data = JSON.parse(xhr.responseText); } catch { /* not JSON */ }
       if (xhr.status === 201 && data?.preview) setPhase({ kind: 'preview', preview: data.preview });
       else { setPhase({ kind: 'idle' }); setError(data?.error?.message ?? `The upload was refused (${xhr.status}). Nothing was imported.`); }
@@ -97,9 +97,9 @@ export default function UploadPanel(p: UploadPanelProps) {
           {phase.preview.rejected.length > 0 && (
             <details className="mt-2" open={phase.preview.counts.toImport === 0}>
               <summary className="cursor-pointer font-semibold">Rejected lines</summary>
-              <ul className="mt-1 max-h-60 overflow-auto text-sm" tabIndex={0} aria-label="Rejected lines with reasons">
+              <div className="mt-1 max-h-60 overflow-auto text-sm" tabIndex={0} role="region" aria-label="Rejected lines with reasons"><ul>
                 {phase.preview.rejected.map((r) => <li key={r.line}><strong>Line {r.line}:</strong> {r.reason}</li>)}
-              </ul>
+              </ul></div>
               {phase.preview.truncated.rejected && <p className="text-sm text-ink-soft">Only the first {phase.preview.rejected.length} are listed.</p>}
             </details>
           )}

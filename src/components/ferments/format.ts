@@ -1,16 +1,5 @@
 /** Display helpers shared by the ferment pages (server) and islands (browser). No server imports. */
-
-export type Status = 'insufficient_data' | 'lag' | 'active' | 'slowing' | 'finished' | 'stalled' | 'souring';
-
-export const STATUS_TEXT: Record<Status, string> = {
-  insufficient_data: 'Not enough readings',
-  lag: 'Not falling yet',
-  active: 'Fermenting',
-  slowing: 'Slowing',
-  finished: 'Finished',
-  stalled: 'Stalled',
-  souring: 'Possible souring',
-};
+import { READING_UNIT_SYMBOLS } from '../../lib/vocabulary';
 
 export function statusTagClass(status: string | null | undefined): string {
   switch (status) {
@@ -65,9 +54,7 @@ export function fmtWindow(p10: Date | string | null | undefined, p90: Date | str
   return a === b ? a : `${a} – ${b}`;
 }
 
-export const UNIT_LABEL: Record<string, string> = { sg: 'SG', brix: '°Bx', plato: '°P' };
-export const METHOD_LABEL: Record<string, string> = { hydrometer: 'Hydrometer', refractometer: 'Refractometer', digital: 'Digital sensor' };
 
 export function fmtRaw(value: number, unit: string): string {
-  return unit === 'sg' ? value.toFixed(3) : `${value.toFixed(1)} ${UNIT_LABEL[unit] ?? unit}`;
+  return unit === 'sg' ? value.toFixed(3) : `${value.toFixed(1)} ${(READING_UNIT_SYMBOLS as Record<string, string>)[unit] ?? unit}`;
 }

@@ -1,7 +1,7 @@
 import { useMemo, useState, type FormEvent } from 'react';
 import { AlcoholInputError, alcoholmeterCorrection, laa, laaToProofGallons } from '../../lib/alcohol';
 import { FRACTION_LABELS, READING_TEMP_MAX_C, READING_TEMP_MIN_C, type Fraction } from '../../lib/reports';
-import { celsiusToFahrenheit, fahrenheitToCelsius, litresToUsGallons, usGallonsToLitres, type UnitSystem } from '../../lib/units';
+import { celsiusToFahrenheit, fahrenheitToCelsius, usGallonsToLitres, type UnitSystem } from '../../lib/units';
 
 export interface RecordFractionInit {
   fraction: Fraction;
@@ -71,6 +71,8 @@ export default function RunRecordForm(p: RunRecordFormProps) {
       if (err instanceof AlcoholInputError) return null;
       throw err;
     }
+    // toL and toC are fixed by `us`.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
   }), [rows, us]);
   const collected = live.reduce((s, x) => s + (x?.laa ?? 0), 0);
   const cv = num(charge.volume); const ca = num(charge.abv);
@@ -86,14 +88,11 @@ export default function RunRecordForm(p: RunRecordFormProps) {
     rows.forEach((r) => {
       const blank = [r.volume, r.reading, r.temp].every((s) => s.trim() === '') && r.cutNote.trim() === '';
       if (blank) return;
-      const i = fractions.length;
-      const k = (f: string) => `fractions.${i}.${f}`;
       const v = num(r.volume); const rd = num(r.reading); const t = num(r.temp);
       if (v === null || !Number.isFinite(v)) local[`${r.fraction}.volume`] = 'Enter the volume collected.';
       if (rd === null || !Number.isFinite(rd)) local[`${r.fraction}.reading`] = 'Enter the alcoholmeter reading (% vol).';
       if (t === null || !Number.isFinite(t)) local[`${r.fraction}.temp`] = `Enter the temperature the reading was taken at (${tempUnit}).`;
       else if (t < tMin || t > tMax) local[`${r.fraction}.temp`] = `Reading temperature must be between ${Math.round(tMin)} and ${Math.round(tMax)} ${tempUnit}.`;
-      void k;
       fractions.push({
         fraction: r.fraction, volumeLitres: v === null ? null : toL(v), alcoholmeterReading: rd, readingTempC: t === null ? null : toC(t),
         cutNote: r.cutNote.trim() || null,
@@ -151,7 +150,8 @@ export default function RunRecordForm(p: RunRecordFormProps) {
   const shownMessage = message === 'Check the fields marked below.' && !hasErrors ? '' : message;
   const inputCls = (k: string) => `input w-full ${err(k) ? 'border-ember' : ''}`;
   const describedBy = (k: string) => (err(k) ? `${k.replace('.', '-')}-err` : undefined);
-  const ErrorText = ({ k }: { k: string }) => (err(k) ? <p id={`${k.replace('.', '-')}-err`} className="field-error">{err(k)}</p> : null);
+  // A plain function, not a component: a component declared in render would remount every time.
+  const errorText = (k: string) => (err(k) ? <p id={`${k.replace('.', '-')}-err`} className="field-error">{err(k)}</p> : null);
 
   return (
     <form onSubmit={(e) => submit(e, false)} noValidate className="flex flex-col gap-4" aria-describedby="record-status">
@@ -162,13 +162,13 @@ export default function RunRecordForm(p: RunRecordFormProps) {
             <label htmlFor="charge-volume">Volume ({volUnit})</label>
             <input id="charge-volume" className={inputCls('chargeLitres')} inputMode="decimal" value={charge.volume}
               onChange={(e) => { setCharge({ ...charge, volume: e.target.value }); clearError('chargeLitres'); }} aria-invalid={!!err('chargeLitres')} aria-describedby={describedBy('chargeLitres')} />
-            <ErrorText k="chargeLitres" />
+            {errorText('chargeLitres')}
           </div>
           <div className="field">
             <label htmlFor="charge-abv">Strength (% vol at 20 °C)</label>
             <input id="charge-abv" className={inputCls('chargeAbv')} inputMode="decimal" value={charge.abv}
               onChange={(e) => { setCharge({ ...charge, abv: e.target.value }); clearError('chargeAbv'); }} aria-invalid={!!err('chargeAbv')} aria-describedby={describedBy('chargeAbv')} />
-            <ErrorText k="chargeAbv" />
+            {errorText('chargeAbv')}
           </div>
         </div>
         <p className="mt-2 text-sm text-ink-soft">LAA charged: <strong data-testid="charged-laa">{charged === null ? '—' : `${f1(charged)} LAA`}</strong>{us && charged !== null ? ` (${f2(laaToProofGallons(charged))} proof gal)` : ''}</p>
@@ -199,12 +199,12 @@ export default function RunRecordForm(p: RunRecordFormProps) {
                   aria-invalid={!!err(k('temp'))} aria-describedby={describedBy(k('temp'))} />
               </div>
             </div>
-            <ErrorText k={k('volume')} /><ErrorText k={k('reading')} /><ErrorText k={k('temp')} />
+            {errorText(k('volume'))}{errorText(k('reading'))}{errorText(k('temp'))}
             <div className="field mt-2">
               <label htmlFor={id('note')}>Cut note <span className="font-normal text-ink-soft">(your own: where and why you cut)</span></label>
               <input id={id('note')} className={inputCls(k('cutNote'))} maxLength={200} value={r.cutNote} onChange={(e) => setRow(i, 'cutNote', e.target.value)}
                 aria-invalid={!!err(k('cutNote'))} aria-describedby={describedBy(k('cutNote'))} />
-              <ErrorText k={k('cutNote')} />
+              {errorText(k('cutNote'))}
             </div>
             <p className="mt-2 text-sm" data-testid={`live-${r.fraction}`}>
               {x ? <>True strength <strong>{f1(x.abv20)} % vol</strong> at 20 °C · <strong>{f1(x.laa)} LAA</strong>{us ? ` · ${f2(x.pg)} proof gal` : ''}</> : <span className="text-ink-soft">Strength at 20 °C and LAA appear when volume, reading and temperature are in.</span>}

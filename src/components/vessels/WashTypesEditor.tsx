@@ -1,7 +1,7 @@
 import { useState } from 'react';
+import { WASH_CATEGORIES } from '../../lib/vocabulary';
 
 export interface WashTypeItem { id: number; name: string; category: string; terminalMin: string; terminalMax: string; typicalOg: string }
-const CATEGORIES = ['sugar', 'grain', 'molasses', 'fruit', 'other'];
 const num = (s: string) => Number(s.trim().replace(',', '.'));
 const blank: WashTypeItem = { id: 0, name: '', category: 'grain', terminalMin: '', terminalMax: '', typicalOg: '' };
 
@@ -61,7 +61,7 @@ function Editor({ item, errors, onSave }: { item: WashTypeItem; errors: Record<s
         <div className="field">
           <label htmlFor={`wt-${id}-category`}>Category</label>
           <select id={`wt-${id}-category`} className="input" value={v.category} onChange={(e) => setV({ ...v, category: e.target.value })}>
-            {CATEGORIES.map((c) => <option key={c} value={c}>{c}</option>)}
+            {WASH_CATEGORIES.map((c) => <option key={c} value={c}>{c}</option>)}
           </select>
         </div>
         {f('terminalMin', 'Finishes from (SG)', true)}

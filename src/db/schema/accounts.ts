@@ -1,15 +1,14 @@
 import { mysqlTable, varchar, mysqlEnum, int, double, json, uniqueIndex, index, boolean } from 'drizzle-orm/mysql-core';
 import { fk, utc, timestamps, id } from './_shared';
+import { ROLES, UNIT_SYSTEMS } from '../../lib/vocabulary';
 
-export const ROLES = ['manager', 'planner', 'distiller', 'staff'] as const;
-export type Role = (typeof ROLES)[number];
 
 /** One distillery. Settings that change how readings are interpreted live here. */
 export const workspaces = mysqlTable('workspaces', {
   id: id(),
   name: varchar('name', { length: 120 }).notNull(),
   timeZone: varchar('time_zone', { length: 64 }).notNull().default('Europe/London'),
-  units: mysqlEnum('units', ['metric', 'us']).notNull().default('metric'),
+  units: mysqlEnum('units', UNIT_SYSTEMS).notNull().default('metric'),
   /** Hydrometer calibration temperature, °C (20 or 15.56). */
   calibrationTempC: double('calibration_temp_c').notNull().default(20),
   stableDays: int('stable_days').notNull().default(3),

@@ -1,15 +1,10 @@
 import { mysqlTable, varchar, mysqlEnum, int, double, json, uniqueIndex, index, text, boolean, date, primaryKey } from 'drizzle-orm/mysql-core';
 import { fk, utc, timestamps, id } from './_shared';
 import { workspaces, users } from './accounts';
-
-export const WASH_CATEGORIES = ['sugar', 'grain', 'molasses', 'fruit', 'other'] as const;
-export const STILL_KINDS = ['pot', 'column', 'reflux'] as const;
-export const READING_METHODS = ['hydrometer', 'refractometer', 'digital'] as const;
-export const READING_UNITS = ['sg', 'brix', 'plato'] as const;
-export const RUN_TYPES = ['stripping', 'spirit', 'redistillation', 'cleaning', 'maintenance'] as const;
-export const RUN_STATUSES = ['planned', 'confirmed', 'running', 'done', 'cancelled'] as const;
-export const OUTCOME_FRACTIONS = ['low_wines', 'heads', 'hearts', 'tails', 'feints'] as const;
-export type RunTypeDb = (typeof RUN_TYPES)[number];
+import {
+  EMPTIED_REASONS, FORECAST_STATUSES, OUTCOME_FRACTIONS, READING_METHODS, READING_SOURCES, READING_UNITS, RUN_STATUSES, RUN_TYPES,
+  STILL_KINDS, TEMPERATURE_UNITS, WASH_CATEGORIES, type RunType,
+} from '../../lib/vocabulary';
 
 export interface OperatingHours { weekday: number; open: string; close: string }
 
@@ -24,7 +19,7 @@ export const stills = mysqlTable('stills', {
   /** Minutes of cleaning the board adds after each run; 0 = none required. */
   cleaningAfterRunMinutes: int('cleaning_after_run_minutes').notNull().default(0),
   /** Typical distilling minutes per run type, on top of heat-up. */
-  typicalMinutes: json('typical_minutes').$type<Partial<Record<RunTypeDb, number>>>().notNull(),
+  typicalMinutes: json('typical_minutes').$type<Partial<Record<RunType, number>>>().notNull(),
   position: int('position').notNull().default(0),
   active: boolean('active').notNull().default(true),
   ...timestamps,
@@ -74,7 +69,7 @@ export const ferments = mysqlTable('ferments', {
   yeast: varchar('yeast', { length: 120 }),
   notes: text('notes'),
   emptiedAt: utc('emptied_at'),
-  emptiedReason: mysqlEnum('emptied_reason', ['distilled', 'dumped']),
+  emptiedReason: mysqlEnum('emptied_reason', EMPTIED_REASONS),
   createdBy: fk('created_by').references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
 }, (t) => [
@@ -116,11 +111,11 @@ export const readings = mysqlTable('readings', {
   rawUnit: mysqlEnum('raw_unit', READING_UNITS).notNull(),
   /** Sample temperature in °C (converted from °F when entered so) and the unit it was entered in. */
   sampleTempC: double('sample_temp_c'),
-  sampleTempUnit: mysqlEnum('sample_temp_unit', ['C', 'F']),
+  sampleTempUnit: mysqlEnum('sample_temp_unit', TEMPERATURE_UNITS),
   /** SG referred to the workspace's hydrometer calibration temperature. */
   correctedSg: double('corrected_sg').notNull(),
   lowConfidence: boolean('low_confidence').notNull().default(false),
-  source: mysqlEnum('source', ['manual', 'upload']).notNull().default('manual'),
+  source: mysqlEnum('source', READING_SOURCES).notNull().default('manual'),
   uploadId: varchar('upload_id', { length: 64 }),
   fermentTempC: double('ferment_temp_c'),
   ph: double('ph'),
@@ -136,7 +131,7 @@ export const fermentForecasts = mysqlTable('ferment_forecasts', {
   workspaceId: fk('workspace_id').notNull().references(() => workspaces.id, { onDelete: 'cascade' }),
   /** Fingerprint of the inputs (readings, settings) the forecast was computed from. */
   inputKey: varchar('input_key', { length: 64 }).notNull(),
-  status: varchar('status', { length: 24 }).notNull(),
+  status: mysqlEnum('status', FORECAST_STATUSES).notNull(),
   readyAt: utc('ready_at'),
   readyP10: utc('ready_p10'),
   readyP90: utc('ready_p90'),
@@ -152,7 +147,7 @@ export const forecastHistory = mysqlTable('forecast_history', {
   workspaceId: fk('workspace_id').notNull().references(() => workspaces.id, { onDelete: 'cascade' }),
   fermentId: fk('ferment_id').notNull().references(() => ferments.id, { onDelete: 'cascade' }),
   asOf: utc('as_of').notNull(),
-  status: varchar('status', { length: 24 }).notNull(),
+  status: mysqlEnum('status', FORECAST_STATUSES).notNull(),
   readyAt: utc('ready_at'),
   readyP10: utc('ready_p10'),
   readyP90: utc('ready_p90'),

@@ -1,6 +1,6 @@
 export type { Board, BoardFerment, BoardFermentJson, BoardPayload, BoardRun, BoardRunJson, BoardStill, StillKind } from './types';
 export {
-  ZOOMS, isZoom, mondayOf, boardWindow, shiftAnchor, xOf, timeAtX, widthOf, moveTarget, resizeTarget, slotAtX, hourMarks,
+  ZOOMS, isZoom, mondayOf, boardWindow, shiftAnchor, xOf, timeAtX, moveTarget, resizeTarget, slotAtX, hourMarks,
 } from './timeline';
 export type { Zoom, ZoomSpec, BoardDay, BoardWindow, MoveInput, MoveTarget } from './timeline';
 export {

@@ -72,10 +72,6 @@ export function timeAtX(x: number, windowStart: Date, pxPerHour: number): Date {
   return new Date(windowStart.getTime() + (x / pxPerHour) * HOUR_MS);
 }
 
-export function widthOf(window: Pick<BoardWindow, 'start' | 'end'>, pxPerHour: number): number {
-  return xOf(window.end, window.start, pxPerHour);
-}
-
 export interface MoveInput {
   run: { stillId: number; startsAt: Date; endsAt: Date };
   /** Pixels moved sideways and down since the drag began. */

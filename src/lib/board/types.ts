@@ -1,7 +1,9 @@
 /** Shapes the board API sends and the board island reads. Times travel as ISO strings. */
 import type { Closure, FermentStatus, OperatingHours, Run, RunStatus, RunType } from '../schedule';
 
-export type StillKind = 'pot' | 'column' | 'reflux';
+import type { StillKind } from '../vocabulary';
+
+export type { StillKind };
 
 export interface BoardStill {
   id: number;

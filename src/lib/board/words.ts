@@ -1,22 +1,10 @@
 /** The board's words: run names, announcements for screen readers, what changed after a conflict. */
 import { wallClock } from '../schedule';
-import type { Run, RunStatus, RunType } from '../schedule';
+import type { Run, RunType } from '../schedule';
+import { RUN_STATUS_LABELS, RUN_TYPE_LABELS } from '../vocabulary';
 
-export const RUN_TYPE_LABELS: Record<RunType, string> = {
-  stripping: 'Stripping run',
-  spirit: 'Spirit run',
-  redistillation: 'Redistillation',
-  cleaning: 'Cleaning',
-  maintenance: 'Maintenance',
-};
-
-export const RUN_STATUS_LABELS: Record<RunStatus, string> = {
-  planned: 'Planned',
-  confirmed: 'Confirmed',
-  running: 'Running',
-  done: 'Done',
-  cancelled: 'Cancelled',
-};
+/** The board speaks the product's vocabulary (declared once in lib/vocabulary). */
+export { RUN_STATUS_LABELS, RUN_TYPE_LABELS };
 
 export const WEEKDAY_NAMES = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];

@@ -2,4 +2,4 @@ export { buildFeed, buildFeedAsync, DEFAULT_PRODID, EventCache, eventKey, feedEv
 export type { EventStatus, FeedEvent, FeedInput } from './feed';
 export { describeRunEvent, runEventStatus, runEventTitle, uidForRun } from './run-event';
 export type { RunEventDescriptionInput, RunEventStatusInput } from './run-event';
-export { escapeText, foldLine, formatDurationMinutes, normaliseText, octetLength, unfold } from './text';
+export { escapeText, foldLine, formatDurationMinutes, normaliseText, unfold } from './text';

@@ -1,7 +1,8 @@
 /** Calendar events for still runs: status from the forecast, description, stable UID. */
 import { formatLitres, formatReadyWindow, formatWhen } from '../schedule/format';
-import type { FermentState, FermentStatus, RunStatus, RunType, Warning } from '../schedule/types';
+import type { FermentState, RunStatus, RunType, Warning } from '../schedule/types';
 import type { EventStatus } from './feed';
+import { FORECAST_STATUS_LABELS, RUN_TYPE_LABELS } from '../vocabulary';
 
 export interface RunEventStatusInput {
   runType: RunType;
@@ -43,29 +44,11 @@ export function runEventStatus(input: RunEventStatusInput): EventStatus {
   return 'CONFIRMED';
 }
 
-const RUN_TITLES: Record<RunType, string> = {
-  stripping: 'Stripping run',
-  spirit: 'Spirit run',
-  redistillation: 'Redistillation run',
-  cleaning: 'Cleaning',
-  maintenance: 'Maintenance',
-};
-
-const FERMENT_STATES: Record<FermentStatus, string> = {
-  insufficient_data: 'too few readings for a forecast',
-  lag: 'lag phase',
-  active: 'fermenting',
-  slowing: 'slowing',
-  finished: 'finished',
-  stalled: 'stalled',
-  souring: 'souring',
-};
-
 const SEVERITY_LABELS: Record<Warning['severity'], string> = { danger: 'Danger', warning: 'Warning', info: 'Note' };
 
 /** Summary line of a run's event, e.g. "Stripping run · Still 1". */
 export function runEventTitle(runType: RunType, stillName: string): string {
-  return `${RUN_TITLES[runType]} · ${stillName}`;
+  return `${RUN_TYPE_LABELS[runType]} · ${stillName}`;
 }
 
 export interface RunEventDescriptionInput {
@@ -84,11 +67,11 @@ export interface RunEventDescriptionInput {
 
 /** Plain-text DESCRIPTION of a run's event (escaped later by the feed builder). */
 export function describeRunEvent(input: RunEventDescriptionInput): string {
-  const lines: string[] = [`${RUN_TITLES[input.runType]} on ${input.stillName}`];
+  const lines: string[] = [`${RUN_TYPE_LABELS[input.runType]} on ${input.stillName}`];
   if (input.chargeLitres !== null) lines.push(`Charge: ${formatLitres(input.chargeLitres)}`);
   for (const f of input.ferments) {
     const amount = f.litres !== null && f.litres !== undefined ? ` (${formatLitres(f.litres)})` : '';
-    let state = FERMENT_STATES[f.status];
+    let state = FORECAST_STATUS_LABELS[f.status].toLowerCase();
     if (f.emptiedAt) {
       // Its fermenter has been emptied (into this or another still): the forecast is history.
       state = `fermenter emptied ${formatWhen(f.emptiedAt, input.timeZone)}`;

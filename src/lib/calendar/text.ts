@@ -2,7 +2,10 @@
 
 const MAX_OCTETS = 75;
 
+// RFC 5545 TEXT forbids these control characters: matching them is the point.
+// eslint-disable-next-line no-control-regex
 const NEEDS_ESCAPE = /[\\;,\u0000-\u0008\u000A-\u001F\u007F]/;
+// eslint-disable-next-line no-control-regex
 const ESCAPABLE = /\r\n?|[\\;,\n]|[\u0000-\u0008\u000B-\u001F\u007F]/g;
 
 function escapeChar(match: string): string {
@@ -32,18 +35,8 @@ export function escapeText(text: string): string {
 
 /** Newlines to \n, and control characters RFC 5545 does not allow in TEXT (all but HTAB and newline) removed. */
 export function normaliseText(text: string): string {
+  // eslint-disable-next-line no-control-regex
   return text.replace(/\r\n?/g, '\n').replace(/[\u0000-\u0008\u000B-\u001F\u007F]/g, '');
-}
-
-function utf8Length(codePoint: number): number {
-  return codePoint < 0x80 ? 1 : codePoint < 0x800 ? 2 : codePoint < 0x10000 ? 3 : 4;
-}
-
-/** UTF-8 length of a string, in octets. */
-export function octetLength(text: string): number {
-  let n = 0;
-  for (const ch of text) n += utf8Length(ch.codePointAt(0) as number);
-  return n;
 }
 
 /**

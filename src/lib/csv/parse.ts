@@ -11,8 +11,11 @@ import {
   SAMPLE_TEMP_MIN_C,
 } from './format';
 
-export type LoggerUnit = 'sg' | 'brix' | 'plato';
-export type LoggerMethod = 'hydrometer' | 'refractometer' | 'digital';
+import type { ReadingMethod, ReadingUnit, TemperatureUnit } from '../vocabulary';
+
+/** A logger's columns speak the same units and methods as a typed-in reading. */
+export type LoggerUnit = ReadingUnit;
+export type LoggerMethod = ReadingMethod;
 export type CsvDelimiter = ',' | ';';
 
 export interface LoggerRow {
@@ -46,14 +49,14 @@ export interface LoggerCsvOptions {
   /** IANA zone for times written without one. */
   timeZone: string;
   /** Unit of a `temperature` / `temp` / `sample_temp` column. */
-  defaultTempUnit: 'C' | 'F';
+  defaultTempUnit: TemperatureUnit;
   maxRows?: number;
 }
 
 const RAW_MAX_CHARS = 200;
 
 type Role = 'time' | 'value' | 'unit' | 'method' | 'temperature';
-type TempUnit = 'default' | 'C' | 'F';
+type TempUnit = 'default' | TemperatureUnit;
 
 const HEADER_ROLES = new Map<string, { role: Role; tempUnit?: TempUnit }>(Object.entries({
   time: { role: 'time' },

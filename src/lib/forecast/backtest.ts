@@ -5,7 +5,6 @@
 import { median } from 'simple-statistics';
 import { CALIBRATION as C } from './calibration';
 import { forecastFerment } from './forecast';
-import { modelAt, type ModelKind } from './fit';
 import { dailyLevels, firstRuleMet, isDense, type TimedValue } from './stability';
 import { trueSg, type TrueCurve, type WashType } from './synthetic';
 import type { Forecast } from './types';

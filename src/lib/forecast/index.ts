@@ -3,6 +3,5 @@ export { stabilityCheck, firstRuleMet, dailyLevels, isDense, ruleSeriesOf, earli
 export type { StabilityOptions, StabilityResult, DailyLevel, TimedValue } from './stability';
 export { fitModel, logisticAt, firstOrderAt, modelAt } from './fit';
 export type { ModelKind, ModelFit, FitData, FitOptions, Prior } from './fit';
-export { FORECAST_STATUSES, STATUS_LABELS } from './types';
 export type { Forecast, ForecastHistoryUse, ForecastInput, ForecastStatus, Reading, TerminalRange, FittedCurve } from './types';
 export { CALIBRATION } from './calibration';

@@ -62,10 +62,6 @@ export function trueSg(curve: TrueCurve, days: number): number {
     : firstOrderAt(days, [curve.fg, Math.log(curve.kPerDay), curve.lagDays], curve.og);
 }
 
-export function finalOf(curve: TrueCurve): number {
-  return curve.model === 'logistic' ? curve.pe : curve.fg;
-}
-
 export interface GeneratorOptions {
   count: number;
   seed: number;

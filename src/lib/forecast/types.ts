@@ -1,26 +1,6 @@
-/** Statuses a ferment can be in, in the order a healthy ferment passes through them. */
-export const FORECAST_STATUSES = [
-  'insufficient_data',
-  'lag',
-  'active',
-  'slowing',
-  'finished',
-  'stalled',
-  'souring',
-] as const;
+import type { ForecastStatus } from '../vocabulary';
 
-export type ForecastStatus = (typeof FORECAST_STATUSES)[number];
-
-/** Plain-language labels for the board and the ferment page. */
-export const STATUS_LABELS: Record<ForecastStatus, string> = {
-  insufficient_data: 'Not enough readings yet',
-  lag: 'Not started falling yet',
-  active: 'Fermenting',
-  slowing: 'Slowing down',
-  finished: 'Finished and stable',
-  stalled: 'Stuck above the expected range',
-  souring: 'Below the expected range (possible souring)',
-};
+export type { ForecastStatus };
 
 export interface Reading {
   takenAt: Date;

@@ -3,8 +3,9 @@ import { hydrometerCorrection, waterDensitySource } from './hydrometer';
 import { refractometerFinalSg } from './refractometer';
 import { brixToSg, platoToSg, sgToBrix } from './scales';
 
-export type ReadingUnit = 'sg' | 'brix' | 'plato';
-export type ReadingMethod = 'hydrometer' | 'refractometer' | 'digital';
+import type { ReadingMethod, ReadingUnit } from '../vocabulary';
+
+export type { ReadingMethod, ReadingUnit };
 
 export interface RawReading {
   value: number;

@@ -6,16 +6,11 @@
 import { AlcoholInputError, alcoholmeterCorrection, laa, laaToProofGallons, OIML_T_MAX_C, OIML_T_MIN_C } from '../alcohol';
 import { abv, ABV_FORMULA_NAME, GravityInputError } from '../gravity';
 
-export type Fraction = 'low_wines' | 'heads' | 'hearts' | 'tails' | 'feints';
-export type RecordableRunType = 'stripping' | 'spirit' | 'redistillation' | 'cleaning' | 'maintenance';
+import { FRACTION_LABELS, type Fraction, type RunType } from '../vocabulary';
 
-export const FRACTION_LABELS: Record<Fraction, string> = {
-  low_wines: 'Low wines',
-  heads: 'Heads',
-  hearts: 'Hearts',
-  tails: 'Tails',
-  feints: 'Feints',
-};
+export { FRACTION_LABELS };
+export type { Fraction };
+export type RecordableRunType = RunType;
 
 /** Fractions each run type can record: a stripping run gives low wines; a spirit (or redistillation) run gives cuts. */
 export const FRACTIONS_BY_RUN_TYPE: Record<RecordableRunType, readonly Fraction[]> = {

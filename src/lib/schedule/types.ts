@@ -1,7 +1,8 @@
 /** Shapes shared by the board's pure rules (server API and board island alike). */
 
-export type RunType = 'stripping' | 'spirit' | 'redistillation' | 'cleaning' | 'maintenance';
-export type RunStatus = 'planned' | 'confirmed' | 'running' | 'done' | 'cancelled';
+import type { ForecastStatus, RunStatus, RunType } from '../vocabulary';
+
+export type { RunStatus, RunType };
 export type Weekday = 0 | 1 | 2 | 3 | 4 | 5 | 6;
 
 /** One opening interval on a weekday, wall-clock in the distillery's time zone. */
@@ -61,14 +62,8 @@ export interface Run {
   lowWinesLitres?: number | null;
 }
 
-export type FermentStatus =
-  | 'insufficient_data'
-  | 'lag'
-  | 'active'
-  | 'slowing'
-  | 'finished'
-  | 'stalled'
-  | 'souring';
+/** A ferment's state on the board is its forecast's status. */
+export type FermentStatus = ForecastStatus;
 
 export interface FermentState {
   id: number;

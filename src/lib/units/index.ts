@@ -4,8 +4,9 @@
  * metric or US customary units.
  */
 
-export type UnitSystem = 'metric' | 'us';
-export type TemperatureUnit = 'C' | 'F';
+import type { TemperatureUnit, UnitSystem } from '../vocabulary';
+
+export type { TemperatureUnit, UnitSystem };
 export type VolumeUnit = 'L' | 'gal';
 export type MassUnit = 'kg' | 'lb';
 

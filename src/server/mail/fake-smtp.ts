@@ -5,7 +5,7 @@
  */
 import { SMTPServer } from 'smtp-server';
 import { simpleParser } from 'mailparser';
-import { mkdirSync, writeFileSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { mkdirSync, writeFileSync, readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 
 export interface StoredMail {
@@ -71,9 +71,4 @@ export function readMailbox(dir: string): StoredMail[] {
     try { out.push(JSON.parse(readFileSync(path.join(dir, f), 'utf8')) as StoredMail); } catch { /* partly written; skip */ }
   }
   return out.sort((a, b) => b.receivedAt.localeCompare(a.receivedAt) || b.id.localeCompare(a.id));
-}
-
-export function clearMailbox(dir: string): void {
-  rmSync(dir, { recursive: true, force: true });
-  mkdirSync(dir, { recursive: true });
 }

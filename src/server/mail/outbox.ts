@@ -49,7 +49,6 @@ export async function enqueue(tx: OutboxTx, mail: OutgoingMail): Promise<string>
     attempts: 0,
     nextAttemptAt: new Date(),
   });
-  ensureOutboxSender();
   return messageId;
 }
 

@@ -1,6 +1,6 @@
 /** Accounts, sign-in, members, workspace settings, audit log, health. */
 import type { RouteCase } from './types';
-import { ROLES } from '../../../src/db/schema';
+import { ROLES } from '../../../src/lib/vocabulary';
 
 const ALL = ROLES;
 const MANAGER = ['manager'] as const;

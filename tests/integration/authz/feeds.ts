@@ -1,6 +1,6 @@
 /** Calendar feeds and "my notifications". */
 import type { RouteCase } from './types';
-import { ROLES } from '../../../src/db/schema';
+import { ROLES } from '../../../src/lib/vocabulary';
 
 const ALL = ROLES;
 

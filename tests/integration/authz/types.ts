@@ -4,7 +4,7 @@
  * collects them, discovers every route file under src/pages/api, and fails when a
  * route/method on disk has no case. See README.md in this folder.
  */
-import type { Role } from '../../../src/db/schema';
+import type { Role } from '../../../src/lib/vocabulary';
 
 export type { Role };
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';

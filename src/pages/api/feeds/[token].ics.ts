@@ -5,7 +5,6 @@
  */
 import { route, jsonError } from '../../../server/http';
 import { feedForToken, notModified, renderFeedCached, stampFetched } from '../../../server/feeds';
-import { ensureDigestScheduler } from '../../../server/digest';
 
 const FEED_HEADERS = {
   'cache-control': 'private, max-age=300',
@@ -16,7 +15,6 @@ const FEED_HEADERS = {
 const notFound = () => jsonError(404, 'not_found', 'Not found', undefined, { 'referrer-policy': 'no-referrer' });
 
 export const GET = route({ auth: 'public' }, async ({ req, params }) => {
-  ensureDigestScheduler();
   const feed = await feedForToken(params.token ?? '');
   if (!feed) return notFound();
   const now = new Date();

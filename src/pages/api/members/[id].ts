@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { route, json, idParam } from '../../../server/http';
 import { changeRole, removeMember } from '../../../server/members';
-import { ROLES } from '../../../db/schema';
+import { ROLES } from '../../../lib/vocabulary';
 
 /** [id] is the person's user id; the membership looked up is always this workspace's. */
 export const PATCH = route({ auth: 'members.manage', body: z.object({ role: z.enum(ROLES, 'Choose a role.') }) }, async ({ ctx, body, params }) => {

@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { route, json } from '../../../server/http';
 import { updateWorkspaceSettings, deleteWorkspace } from '../../../server/members';
 import { clearSessionCookie } from '../../../server/auth/session';
+import { UNIT_SYSTEMS } from '../../../lib/vocabulary';
 
 function validZone(tz: string): boolean {
   try { new Intl.DateTimeFormat('en', { timeZone: tz }); return true; } catch { return false; }
@@ -10,7 +11,7 @@ function validZone(tz: string): boolean {
 export const SettingsBody = z.object({
   name: z.string().trim().min(2, 'Enter the distillery name.').max(120),
   timeZone: z.string().trim().max(64).refine(validZone, 'Choose a time zone from the list.'),
-  units: z.enum(['metric', 'us'], 'Choose metric or US units.'),
+  units: z.enum(UNIT_SYSTEMS, 'Choose metric or US units.'),
   calibrationTempC: z.coerce.number().refine((v) => v === 20 || v === 15.56, 'Hydrometers are calibrated at 20 °C or 15.56 °C (60 °F).'),
   stableDays: z.coerce.number().int('Whole days only.').min(1, 'At least 1 day.').max(14, 'At most 14 days.'),
   stableTolerance: z.coerce.number().min(0.0005, 'At least 0.0005 SG.').max(0.01, 'At most 0.010 SG.'),

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { route, json } from '../../../../server/http';
 import { invite } from '../../../../server/members';
-import { ROLES } from '../../../../db/schema';
+import { ROLES } from '../../../../lib/vocabulary';
 
 const Body = z.object({ email: z.string().trim().max(254).email('Enter a valid e-mail.'), role: z.enum(ROLES, 'Choose a role.') });
 
