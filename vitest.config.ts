@@ -5,7 +5,7 @@ export default defineConfig({
     projects: [
       { test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' } },
       {
-              test: {
+        test: {
           name: 'integration',
           include: ['tests/integration/**/*.test.ts'],
           environment: 'node',
@@ -16,7 +16,7 @@ export default defineConfig({
         },
       },
       {
-              test: {
+        test: {
           name: 'e2e',
           include: ['tests/e2e/**/*.test.ts'],
           environment: 'node',
@@ -28,7 +28,7 @@ export default defineConfig({
       },
       {
         // Only under `npm run test:cluster` (scripts/test-cluster.sh starts the cluster and the apps).
-              test: {
+        test: {
           name: 'cluster',
           include: ['tests/cluster/**/*.test.ts'],
           environment: 'node',

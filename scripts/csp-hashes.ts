@@ -39,7 +39,7 @@ function serverBundleText(): string {
 
 const manifestFiles = readdirSync(serverDir).filter((f) => /^manifest_.*\.mjs$/.test(f));
 if (manifestFiles.length !== 1) fail(`expected one manifest_*.mjs in ${serverDir}, found ${manifestFiles.length}: run astro build first`);
-const { manifest } = await import(pathToFileURL(path.join(serverDir, manifestFiles[0]!)).href) as {
+const { manifest } = (await import(pathToFileURL(path.join(serverDir, manifestFiles[0]!)).href)) as {
   manifest: { clientDirectives: Map<string, string>; inlinedScripts: Map<string, string> };
 };
 if (!(manifest?.clientDirectives instanceof Map) || !(manifest.inlinedScripts instanceof Map)) {

@@ -23,12 +23,19 @@ export function connectionArgs(url: string): { args: string[]; database: string;
 export async function backup(url: string, outDir: string): Promise<string> {
   const { args, database, password } = connectionArgs(url);
   mkdirSync(outDir, { recursive: true });
-  const stamp = new Date().toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
+  const stamp = new Date()
+    .toISOString()
+    .replace(/[-:]/g, '')
+    .replace(/\.\d+Z$/, 'Z');
   const file = path.join(outDir, `${database}-${stamp}.sql.gz`);
-  const dump = spawn('mariadb-dump', [...args, '--single-transaction', '--quick', '--routines', '--triggers', '--hex-blob', '--no-tablespaces', '--skip-comments', '--databases', database], {
-    env: { ...process.env, MYSQL_PWD: password },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
+  const dump = spawn(
+    'mariadb-dump',
+    [...args, '--single-transaction', '--quick', '--routines', '--triggers', '--hex-blob', '--no-tablespaces', '--skip-comments', '--databases', database],
+    {
+      env: { ...process.env, MYSQL_PWD: password },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    },
+  );
   let stderr = '';
   dump.stderr.on('data', (d) => (stderr += d));
   const done = new Promise<number>((resolve) => dump.on('close', resolve));
@@ -43,5 +50,8 @@ if (process.argv[1]?.endsWith('db-backup.ts')) {
   const out = i > 0 ? process.argv[i + 1]! : 'backups';
   backup(databaseUrl(), out)
     .then((f) => console.log(`[plateau] Backup written: ${f}`))
-    .catch((e) => { console.error(`[plateau] ${e.message}`); process.exit(1); });
+    .catch((e) => {
+      console.error(`[plateau] ${e.message}`);
+      process.exit(1);
+    });
 }

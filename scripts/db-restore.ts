@@ -14,7 +14,8 @@ import { connectionArgs } from './db-backup';
 export async function restore(url: string, file: string): Promise<void> {
   const { args, database, password } = connectionArgs(url);
   if (!/^[A-Za-z0-9_]+$/.test(database)) throw new Error(`Unsafe database name: ${database}`);
-  const admin = new URL(url); admin.pathname = '/';
+  const admin = new URL(url);
+  admin.pathname = '/';
   const conn = await mysql.createConnection({ uri: admin.toString() });
   await conn.query(`DROP DATABASE IF EXISTS \`${database}\``);
   await conn.query(`CREATE DATABASE \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
@@ -29,7 +30,9 @@ export async function restore(url: string, file: string): Promise<void> {
       const ready = cut >= 0 ? text.slice(0, cut + 1) : '';
       cb(null, ready.replace(/^(CREATE DATABASE \/\*!32312 IF NOT EXISTS\*\/ |USE )`[^`]+`/gm, `$1\`${database}\``));
     },
-    flush(cb) { cb(null, carry); },
+    flush(cb) {
+      cb(null, carry);
+    },
   });
   const client = spawn('mariadb', [...args, database], { env: { ...process.env, MYSQL_PWD: password }, stdio: ['pipe', 'ignore', 'pipe'] });
   let stderr = '';
@@ -42,11 +45,17 @@ export async function restore(url: string, file: string): Promise<void> {
 
 if (process.argv[1]?.endsWith('db-restore.ts')) {
   const file = process.argv[2];
-  if (!file) { console.error('usage: npm run db:restore FILE [-- --into DBNAME]'); process.exit(2); }
+  if (!file) {
+    console.error('usage: npm run db:restore FILE [-- --into DBNAME]');
+    process.exit(2);
+  }
   const i = process.argv.indexOf('--into');
   const url = new URL(databaseUrl());
   if (i > 0) url.pathname = `/${process.argv[i + 1]}`;
   restore(url.toString(), file)
     .then(() => console.log(`[plateau] Restored ${file} into ${url.pathname.slice(1)}`))
-    .catch((e) => { console.error(`[plateau] ${e.message}`); process.exit(1); });
+    .catch((e) => {
+      console.error(`[plateau] ${e.message}`);
+      process.exit(1);
+    });
 }

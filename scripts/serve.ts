@@ -54,14 +54,36 @@ export function settleClientAddress(req: IncomingMessage, trusted: TrustedProxie
 }
 
 const CONTENT_TYPES: Record<string, string> = {
-  '.js': 'text/javascript; charset=utf-8', '.mjs': 'text/javascript; charset=utf-8', '.css': 'text/css; charset=utf-8',
-  '.html': 'text/html; charset=utf-8', '.json': 'application/json', '.map': 'application/json', '.txt': 'text/plain; charset=utf-8',
-  '.svg': 'image/svg+xml', '.png': 'image/png', '.jpg': 'image/jpeg', '.jpeg': 'image/jpeg', '.webp': 'image/webp', '.avif': 'image/avif',
-  '.gif': 'image/gif', '.ico': 'image/x-icon', '.woff2': 'font/woff2', '.woff': 'font/woff', '.ttf': 'font/ttf',
-  '.webmanifest': 'application/manifest+json', '.xml': 'application/xml',
+  '.js': 'text/javascript; charset=utf-8',
+  '.mjs': 'text/javascript; charset=utf-8',
+  '.css': 'text/css; charset=utf-8',
+  '.html': 'text/html; charset=utf-8',
+  '.json': 'application/json',
+  '.map': 'application/json',
+  '.txt': 'text/plain; charset=utf-8',
+  '.svg': 'image/svg+xml',
+  '.png': 'image/png',
+  '.jpg': 'image/jpeg',
+  '.jpeg': 'image/jpeg',
+  '.webp': 'image/webp',
+  '.avif': 'image/avif',
+  '.gif': 'image/gif',
+  '.ico': 'image/x-icon',
+  '.woff2': 'font/woff2',
+  '.woff': 'font/woff',
+  '.ttf': 'font/ttf',
+  '.webmanifest': 'application/manifest+json',
+  '.xml': 'application/xml',
 };
 
-interface StaticFile { file: string; size: number; mtime: Date; etag: string; type: string; cacheControl: string }
+interface StaticFile {
+  file: string;
+  size: number;
+  mtime: Date;
+  etag: string;
+  type: string;
+  cacheControl: string;
+}
 
 /**
  * Every file of the build's client directory, read once at start (the build does not change
@@ -79,7 +101,9 @@ export function indexStaticFiles(root: string): Map<string, StaticFile> {
       else if (entry.isFile()) {
         const st = statSync(full);
         files.set(urlPath, {
-          file: full, size: st.size, mtime: st.mtime,
+          file: full,
+          size: st.size,
+          mtime: st.mtime,
           etag: `W/"${st.size.toString(16)}-${Math.floor(st.mtimeMs).toString(16)}"`,
           type: CONTENT_TYPES[path.extname(entry.name).toLowerCase()] ?? 'application/octet-stream',
           cacheControl: urlPath.startsWith('/_astro/') ? IMMUTABLE : 'public, max-age=0',
@@ -102,9 +126,10 @@ function serveStatic(req: IncomingMessage, res: ServerResponse, files: Map<strin
   res.setHeader('x-content-type-options', 'nosniff');
   const ifNoneMatch = req.headers['if-none-match'];
   const ifModifiedSince = req.headers['if-modified-since'];
-  const notModified = ifNoneMatch !== undefined
-    ? ifNoneMatch.split(',').some((t) => t.trim() === hit.etag || t.trim() === '*')
-    : ifModifiedSince !== undefined && Date.parse(ifModifiedSince) >= Math.floor(hit.mtime.getTime() / 1000) * 1000;
+  const notModified =
+    ifNoneMatch !== undefined
+      ? ifNoneMatch.split(',').some((t) => t.trim() === hit.etag || t.trim() === '*')
+      : ifModifiedSince !== undefined && Date.parse(ifModifiedSince) >= Math.floor(hit.mtime.getTime() / 1000) * 1000;
   if (notModified) {
     res.statusCode = 304;
     res.end();
@@ -165,12 +190,16 @@ async function main(): Promise<void> {
   try {
     trusted = parseTrustProxy(env().TRUST_PROXY);
     // Secure cookies and the origin check are derived from PUBLIC_URL: it must be a plain http(s) origin.
-    if (!/^https?:$/.test(URL.canParse(env().PUBLIC_URL) ? new URL(env().PUBLIC_URL).protocol : '')) throw new Error(`PUBLIC_URL: "${env().PUBLIC_URL}" must be an http or https address.`);
+    if (!/^https?:$/.test(URL.canParse(env().PUBLIC_URL) ? new URL(env().PUBLIC_URL).protocol : ''))
+      throw new Error(`PUBLIC_URL: "${env().PUBLIC_URL}" must be an http or https address.`);
   } catch (err) {
     // Each zod issue names its variable (and TRUST_PROXY's its entry).
     const issues = (err as { issues?: { path: PropertyKey[]; message: string }[] }).issues;
     const lines = issues
-      ? issues.map((i) => { const name = i.path.map(String).join('.'); return i.message.startsWith(name) ? i.message : `${name}: ${i.message}`; })
+      ? issues.map((i) => {
+          const name = i.path.map(String).join('.');
+          return i.message.startsWith(name) ? i.message : `${name}: ${i.message}`;
+        })
       : [(err as Error).message];
     console.error(`[plateau] The environment is not valid; not starting.\n  ${lines.join('\n  ')}`);
     process.exit(1);
@@ -202,13 +231,23 @@ async function main(): Promise<void> {
   // with the security headers, and the socket is ended gently (the rest of what the client is
   // still sending is read and dropped), so the client reads the answer instead of a reset.
   server.on('clientError', (err: NodeJS.ErrnoException, socket) => {
-    if (!socket.writable || (socket as { _httpMessage?: unknown })._httpMessage) { socket.destroy(); return; }
+    if (!socket.writable || (socket as { _httpMessage?: unknown })._httpMessage) {
+      socket.destroy();
+      return;
+    }
     const tooLarge = err.code === 'HPE_HEADER_OVERFLOW';
     const status = tooLarge ? '431 Request Header Fields Too Large' : '400 Bad Request';
-    const body = JSON.stringify({ error: { code: tooLarge ? 'headers_too_large' : 'bad_request', message: tooLarge ? 'The request line or headers are too large.' : 'The request could not be read.' } });
+    const body = JSON.stringify({
+      error: {
+        code: tooLarge ? 'headers_too_large' : 'bad_request',
+        message: tooLarge ? 'The request line or headers are too large.' : 'The request could not be read.',
+      },
+    });
     socket.on('error', () => {});
     socket.resume();
-    socket.end(`HTTP/1.1 ${status}\r\nContent-Type: application/json; charset=utf-8\r\nContent-Length: ${Buffer.byteLength(body)}\r\nX-Content-Type-Options: nosniff\r\nX-Frame-Options: DENY\r\nContent-Security-Policy: default-src 'none'; frame-ancestors 'none'\r\nConnection: close\r\n\r\n${body}`);
+    socket.end(
+      `HTTP/1.1 ${status}\r\nContent-Type: application/json; charset=utf-8\r\nContent-Length: ${Buffer.byteLength(body)}\r\nX-Content-Type-Options: nosniff\r\nX-Frame-Options: DENY\r\nContent-Security-Policy: default-src 'none'; frame-ancestors 'none'\r\nConnection: close\r\n\r\n${body}`,
+    );
     setTimeout(() => socket.destroy(), 2000).unref();
   });
   server.on('error', (err) => {

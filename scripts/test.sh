@@ -32,6 +32,12 @@ cleanup() {
 trap cleanup EXIT
 for _ in $(seq 1 150); do curl -fs "$PLATEAU_TEST_URL/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
 
+if [ $# -eq 0 ]; then
+  # The whole suite starts with the linter and the formatter's check (npm run lint).
+  say "Lint (ESLint, Prettier check)..."
+  npm run --silent lint || { say "LINT FAILED: run npm run lint (and npm run format for formatting)"; exit 1; }
+fi
+
 set +e
 if [ $# -eq 0 ]; then set -- --project unit --project integration --project e2e; fi
 npx vitest run "$@"

@@ -21,9 +21,16 @@ const schema = z.object({
   PLATEAU_MODE: z.enum(['development', 'demo', 'production', 'test']).default('production'),
   PLATEAU_INSTANCE: z.string().default('app-1'),
   /** Proxies allowed to name the client in X-Forwarded-For: empty (none), `1` (loopback) or addresses/CIDRs, comma-separated. */
-  TRUST_PROXY: z.string().default('').superRefine((value, ctx) => {
-    try { parseTrustProxy(value); } catch (err) { ctx.addIssue({ code: 'custom', message: (err as Error).message }); }
-  }),
+  TRUST_PROXY: z
+    .string()
+    .default('')
+    .superRefine((value, ctx) => {
+      try {
+        parseTrustProxy(value);
+      } catch (err) {
+        ctx.addIssue({ code: 'custom', message: (err as Error).message });
+      }
+    }),
   OUTBOX_DISABLED: z.string().optional(),
   /** Outbox sender poll interval, ms. */
   OUTBOX_POLL_MS: z.coerce.number().int().min(200).default(2000),

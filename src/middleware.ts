@@ -14,7 +14,16 @@ runStartupChecks();
 if (import.meta.env.DEV) startBackgroundJobs();
 
 /** Reachable without a session. Everything else needs one. */
-const PUBLIC_PAGES = [/^\/sign-in\/?$/, /^\/sign-up\/?$/, /^\/confirm\//, /^\/invite\//, /^\/forgot-password\/?$/, /^\/reset-password\//, /^\/404\/?$/, /^\/500\/?$/];
+const PUBLIC_PAGES = [
+  /^\/sign-in\/?$/,
+  /^\/sign-up\/?$/,
+  /^\/confirm\//,
+  /^\/invite\//,
+  /^\/forgot-password\/?$/,
+  /^\/reset-password\//,
+  /^\/404\/?$/,
+  /^\/500\/?$/,
+];
 const PUBLIC_API = [/^\/api\/health\/?$/, /^\/api\/auth\//, /^\/api\/feeds\/[^/]+\.ics$/];
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
@@ -28,7 +37,11 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
   const { request, url, locals, cookies } = ctx;
   const path = url.pathname;
   const isApi = path.startsWith('/api/');
-  locals.user = null; locals.sessionId = null; locals.workspace = null; locals.role = null; locals.memberships = [];
+  locals.user = null;
+  locals.sessionId = null;
+  locals.workspace = null;
+  locals.role = null;
+  locals.memberships = [];
 
   // CSRF: a state-changing request must come from our own origin.
   if (STATE_CHANGING.has(request.method) && !sameOrigin(request)) {
@@ -78,7 +91,8 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
   try {
     response = await next();
   } catch (err) {
-    if (isApi) return withHeaders(jsonError(isDbUnavailable(err) ? 503 : 500, isDbUnavailable(err) ? 'unavailable' : 'internal', 'Something went wrong on our side.'));
+    if (isApi)
+      return withHeaders(jsonError(isDbUnavailable(err) ? 503 : 500, isDbUnavailable(err) ? 'unavailable' : 'internal', 'Something went wrong on our side.'));
     throw err;
   } finally {
     // Whatever a write touched, this process's remembered fingerprints may now be out of date.

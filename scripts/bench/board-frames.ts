@@ -16,14 +16,30 @@ import { build, PASSWORD } from './board';
 const args = process.argv.slice(2);
 const i = args.indexOf('--url');
 const BASE = (i >= 0 ? args[i + 1]! : 'http://127.0.0.1:4321').replace(/\/$/, '');
-if (!['127.0.0.1', 'localhost'].includes(new URL(BASE).hostname)) { console.error('Loopback only.'); process.exit(2); }
+if (!['127.0.0.1', 'localhost'].includes(new URL(BASE).hostname)) {
+  console.error('Loopback only.');
+  process.exit(2);
+}
 
-const pct = (v: number[], p: number) => { const s = [...v].sort((a, b) => a - b); return s[Math.min(s.length - 1, Math.floor((p / 100) * s.length))]!; };
+const pct = (v: number[], p: number) => {
+  const s = [...v].sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.floor((p / 100) * s.length))]!;
+};
 
 const data = await build();
 const browser = await chromium.launch({
-  executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium', headless: true,
-  args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+  headless: true,
+  args: [
+    '--headless',
+    '--no-sandbox',
+    '--disable-gpu',
+    '--disable-quic',
+    '--no-first-run',
+    '--disable-background-networking',
+    '--disable-component-update',
+    '--disable-sync',
+  ],
 });
 try {
   const page = await (await browser.newContext({ viewport: { width: 1600, height: 1000 }, baseURL: BASE })).newPage();
@@ -59,7 +75,9 @@ try {
   const gaps = frames.slice(1).map((f, k) => f - frames[k]!);
   console.log(`Board: ${data.runCount} runs in the workspace, ${blocks} run blocks on the six-week board.`);
   console.log(`Drag of one run across the board, 90 pointer moves in ${dragMs} ms; ${gaps.length} frames:`);
-  console.log(`  frame interval median ${pct(gaps, 50).toFixed(1)} ms, p95 ${pct(gaps, 95).toFixed(1)} ms, max ${Math.max(...gaps).toFixed(1)} ms; over 33 ms: ${(100 * gaps.filter((g) => g > 33).length / gaps.length).toFixed(1)} %`);
+  console.log(
+    `  frame interval median ${pct(gaps, 50).toFixed(1)} ms, p95 ${pct(gaps, 95).toFixed(1)} ms, max ${Math.max(...gaps).toFixed(1)} ms; over 33 ms: ${((100 * gaps.filter((g) => g > 33).length) / gaps.length).toFixed(1)} %`,
+  );
 } finally {
   await browser.close();
   await closeDb();

@@ -26,7 +26,15 @@ function makeEvent(i: number, sequence: number): FeedEvent {
       runType: 'stripping',
       stillName: `Still ${(i % 4) + 1}`,
       ferments: [
-        { code: `F-${i % 12}`, status: 'slowing', litres: 1200, readyAt: start, readyP10: new Date(start.getTime() - 86_400_000), readyP90: new Date(start.getTime() + 86_400_000), confirmedAt: null },
+        {
+          code: `F-${i % 12}`,
+          status: 'slowing',
+          litres: 1200,
+          readyAt: start,
+          readyP10: new Date(start.getTime() - 86_400_000),
+          readyP90: new Date(start.getTime() + 86_400_000),
+          confirmedAt: null,
+        },
       ],
       chargeLitres: 1200,
       operatorName: 'Zoë Brennan',
@@ -91,7 +99,9 @@ for (let i = 0; i < runs; i++) {
   unchanged.push(performance.now() - t1);
 }
 
-console.log(`feed of ${EVENTS} events (${(bytes / 1024).toFixed(0)} KiB), every VEVENT by ics 3.12.0; load average ${(await import('node:os')).loadavg()[0]!.toFixed(1)} on ${(await import('node:os')).cpus().length} cores`);
+console.log(
+  `feed of ${EVENTS} events (${(bytes / 1024).toFixed(0)} KiB), every VEVENT by ics 3.12.0; load average ${(await import('node:os')).loadavg()[0]!.toFixed(1)} on ${(await import('node:os')).cpus().length} cores`,
+);
 console.log(`cold (empty cache), ${coldRuns} builds: ${stats(cold)}; CPU ${stats(coldCpu)}`);
 console.log(`warm (${CHANGED_PER_REFRESH} events changed since the last fetch), ${runs} builds: ${stats(warm)}; CPU ${stats(warmCpu)}`);
 console.log(`warm (nothing changed), ${runs} builds: ${stats(unchanged)}`);
@@ -104,7 +114,10 @@ if (process.argv.includes('--db') || process.env.DB_NAME) {
   const { buildFeedWithStore } = await import('../../src/server/feed-blocks');
   const { eq } = await import('drizzle-orm');
   try {
-    const [w] = await getDb().insert(t.workspaces).values({ name: `Feed bench ${Date.now().toString(36)}` }).$returningId();
+    const [w] = await getDb()
+      .insert(t.workspaces)
+      .values({ name: `Feed bench ${Date.now().toString(36)}` })
+      .$returningId();
     const input = { name: 'Plateau · all runs', events, now };
     await buildFeedWithStore(w!.id, input, new EventCache(20_000)); // stores every block
     const restart: number[] = [];

@@ -17,8 +17,12 @@ import { DEFAULT_RANGES, generateFerments, type SyntheticTruth, type TrueCurve, 
 
 export function readFermentFolder(folder: string): { ferments: BacktestFerment[]; truth: Map<string, TrueCurve> } {
   const byId = new Map<string, BacktestFerment>();
-  for (const file of readdirSync(folder).filter((f) => f.endsWith('.csv')).sort()) {
-    const lines = readFileSync(join(folder, file), 'utf8').split(/\r?\n/).filter((l) => l.trim());
+  for (const file of readdirSync(folder)
+    .filter((f) => f.endsWith('.csv'))
+    .sort()) {
+    const lines = readFileSync(join(folder, file), 'utf8')
+      .split(/\r?\n/)
+      .filter((l) => l.trim());
     const head = lines[0].split(',').map((h) => h.trim());
     const col = (n: string) => head.indexOf(n);
     const [ci, cw, ct, cs, cl] = ['ferment', 'wash_type', 'taken_at', 'sg', 'low_confidence'].map(col);
@@ -108,13 +112,21 @@ function main() {
   console.log('ready-time MAE (days)   ours  oracle  wash-median  last-two   (n)');
   for (const c of ['25', '50', '75'] as const) {
     const r = report.readyMaeDays[c];
-    console.log(`  at ${c} % of the drop  ${d(r.ours.maeDays)}  ${d(r.oracle.maeDays)}  ${d(r.baselineWashMedian.maeDays)}      ${d(r.baselineLastTwo.maeDays)}   (${r.ours.n})`);
+    console.log(
+      `  at ${c} % of the drop  ${d(r.ours.maeDays)}  ${d(r.oracle.maeDays)}  ${d(r.baselineWashMedian.maeDays)}      ${d(r.baselineLastTwo.maeDays)}   (${r.ours.n})`,
+    );
   }
-  console.log(`P10-P90 coverage: ${pct(report.coverage.p10p90)} of ${report.coverage.n} forecasts before ready; at checkpoints ${pct(report.coverage.atCheckpoints)} of ${report.coverage.nCheckpoints}`);
+  console.log(
+    `P10-P90 coverage: ${pct(report.coverage.p10p90)} of ${report.coverage.n} forecasts before ready; at checkpoints ${pct(report.coverage.atCheckpoints)} of ${report.coverage.nCheckpoints}`,
+  );
   const s = report.stall;
-  console.log(`stalls: precision ${pct(s.precision)}, recall ${pct(s.recall)} (${s.truePositives}/${s.actual}), median delay ${d(s.medianDelayDays)} d, max ${d(s.maxDelayDays)} d, finished reported stalled: ${s.finishedReportedStalled}`);
+  console.log(
+    `stalls: precision ${pct(s.precision)}, recall ${pct(s.recall)} (${s.truePositives}/${s.actual}), median delay ${d(s.medianDelayDays)} d, max ${d(s.maxDelayDays)} d, finished reported stalled: ${s.finishedReportedStalled}`,
+  );
   console.log(`souring: recall ${pct(report.souring.recall)} of ${report.souring.actual}, false flags ${report.souring.falsePositives}`);
-  console.log(`time: replay ${wallMs.toFixed(0)} ms total, ${report.timing.meanMsPerForecast.toFixed(3)} ms per forecast; one forecast on 40 readings: median ${oneForecastMedianMs.toFixed(3)} ms`);
+  console.log(
+    `time: replay ${wallMs.toFixed(0)} ms total, ${report.timing.meanMsPerForecast.toFixed(3)} ms per forecast; one forecast on 40 readings: median ${oneForecastMedianMs.toFixed(3)} ms`,
+  );
 }
 
 if (process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/').split('/').pop() as string)) main();

@@ -17,9 +17,7 @@ export function getPool(): mysql.Pool {
     const e = env();
     const socketPath = !e.DATABASE_URL && e.DB_SOCKET && existsSync(e.DB_SOCKET) ? e.DB_SOCKET : undefined;
     pool = mysql.createPool({
-      ...(socketPath
-        ? { socketPath, user: e.DB_APP_USER, password: e.DB_APP_PASSWORD, database: e.DB_NAME }
-        : { uri: databaseUrl() }),
+      ...(socketPath ? { socketPath, user: e.DB_APP_USER, password: e.DB_APP_PASSWORD, database: e.DB_NAME } : { uri: databaseUrl() }),
       connectionLimit: 20,
       timezone: 'Z',
       dateStrings: false,

@@ -38,7 +38,10 @@ export async function signIn(input: { email: string; password: string; ip: strin
     throw new HttpError(400, 'bad_credentials', 'That e-mail and password do not match an account.', { email: 'Check the e-mail and password.' });
   }
   if (needsRehash(user.passwordHash)) {
-    await db.update(users).set({ passwordHash: await hashPassword(input.password) }).where(eq(users.id, user.id));
+    await db
+      .update(users)
+      .set({ passwordHash: await hashPassword(input.password) })
+      .where(eq(users.id, user.id));
   }
   await forgive('sign_in', `email:${email}`);
   await refund('sign_in', [`ip:${input.ip}`]);
@@ -55,7 +58,6 @@ export async function signIn(input: { email: string; password: string; ip: strin
 export const SIGNUP_TOKEN_HOURS = 24;
 export const RESET_TOKEN_MINUTES = 30;
 export const MIN_PASSWORD = 10;
-
 
 /**
  * Ask to open a new distillery. The answer is the same whether or not the address has an
@@ -76,7 +78,10 @@ export async function requestSignUp(input: { email: string; name: string; worksp
     }
     const token = newToken();
     await tx.insert(emailTokens).values({
-      purpose: 'signup_confirm', tokenHash: hashToken(token), email, userId: null,
+      purpose: 'signup_confirm',
+      tokenHash: hashToken(token),
+      email,
+      userId: null,
       payload: { name: input.name, workspaceName: input.workspaceName },
       expiresAt: new Date(Date.now() + SIGNUP_TOKEN_HOURS * 3600_000),
     });
@@ -90,8 +95,12 @@ type TokenRow = typeof emailTokens.$inferSelect;
 /** A usable (unused, unexpired) e-mailed token of this purpose, or null. */
 export async function findEmailToken(token: string, purpose: TokenRow['purpose']): Promise<TokenRow | null> {
   if (!token || token.length > 200) return null;
-  const [row] = await getDb().select().from(emailTokens)
-    .where(and(eq(emailTokens.tokenHash, hashToken(token)), eq(emailTokens.purpose, purpose), isNull(emailTokens.usedAt), gt(emailTokens.expiresAt, new Date())))
+  const [row] = await getDb()
+    .select()
+    .from(emailTokens)
+    .where(
+      and(eq(emailTokens.tokenHash, hashToken(token)), eq(emailTokens.purpose, purpose), isNull(emailTokens.usedAt), gt(emailTokens.expiresAt, new Date())),
+    )
     .limit(1);
   return row ?? null;
 }
@@ -100,7 +109,9 @@ const expiredLink = () => new HttpError(410, 'link_expired', 'This link has expi
 
 /** Spend a token exactly once inside a transaction (a concurrent second use updates nothing). */
 async function spendToken(tx: Pick<ReturnType<typeof getDb>, 'update'>, id: number): Promise<void> {
-  const [res] = await tx.update(emailTokens).set({ usedAt: new Date() })
+  const [res] = await tx
+    .update(emailTokens)
+    .set({ usedAt: new Date() })
     .where(and(eq(emailTokens.id, id), isNull(emailTokens.usedAt), gt(emailTokens.expiresAt, new Date())));
   if ((res as { affectedRows?: number }).affectedRows !== 1) throw expiredLink();
 }
@@ -110,7 +121,11 @@ async function spendToken(tx: Pick<ReturnType<typeof getDb>, 'update'>, id: numb
  * password (and may correct the names) here. Creates the person, the workspace and the
  * manager membership, and signs in.
  */
-export async function confirmSignUp(token: string, input: { name?: string; workspaceName?: string; password: string }, meta: { ip: string; userAgent: string | null }) {
+export async function confirmSignUp(
+  token: string,
+  input: { name?: string; workspaceName?: string; password: string },
+  meta: { ip: string; userAgent: string | null },
+) {
   const row = await findEmailToken(token, 'signup_confirm');
   if (!row || !row.payload) throw expiredLink();
   const name = input.name ?? row.payload.name ?? 'Manager';
@@ -126,7 +141,18 @@ export async function confirmSignUp(token: string, input: { name?: string; works
     await tx.insert(memberships).values({ workspaceId: w!.id, userId: u!.id, role: 'manager' });
     // A new distillery starts with the trade's usual wash types, editable later.
     await insertDefaultWashTypes(w!.id, tx);
-    await audit({ workspaceId: w!.id, userId: u!.id, action: 'workspace.created', entityType: 'workspace', entityId: w!.id, details: { name: workspaceName }, ip: meta.ip }, tx);
+    await audit(
+      {
+        workspaceId: w!.id,
+        userId: u!.id,
+        action: 'workspace.created',
+        entityType: 'workspace',
+        entityId: w!.id,
+        details: { name: workspaceName },
+        ip: meta.ip,
+      },
+      tx,
+    );
     return { userId: u!.id, workspaceId: w!.id };
   });
   const session = await createSession(userId, workspaceId, meta.userAgent);
@@ -142,7 +168,13 @@ export async function requestPasswordReset(input: { email: string; ip: string })
   if (!user || user.disabledAt) return;
   await db.transaction(async (tx) => {
     const token = newToken();
-    await tx.insert(emailTokens).values({ purpose: 'password_reset', tokenHash: hashToken(token), email, userId: user.id, expiresAt: new Date(Date.now() + RESET_TOKEN_MINUTES * 60_000) });
+    await tx.insert(emailTokens).values({
+      purpose: 'password_reset',
+      tokenHash: hashToken(token),
+      email,
+      userId: user.id,
+      expiresAt: new Date(Date.now() + RESET_TOKEN_MINUTES * 60_000),
+    });
     const mail = passwordResetMail({ name: user.name, link: publicUrl(`/reset-password/${token}`), minutes: RESET_TOKEN_MINUTES });
     await enqueue(tx, { workspaceId: null, kind: 'password_reset', to: email, ...mail });
   });
@@ -158,10 +190,16 @@ export async function resetPassword(token: string, password: string, meta: { ip:
   const ms = await membershipsOf(userId);
   await db.transaction(async (tx) => {
     await spendToken(tx, row.id);
-    await tx.update(users).set({ passwordHash, emailVerifiedAt: sql`COALESCE(${users.emailVerifiedAt}, CURRENT_TIMESTAMP(3))` }).where(eq(users.id, userId));
+    await tx
+      .update(users)
+      .set({ passwordHash, emailVerifiedAt: sql`COALESCE(${users.emailVerifiedAt}, CURRENT_TIMESTAMP(3))` })
+      .where(eq(users.id, userId));
     await tx.delete(sessions).where(eq(sessions.userId, userId));
     // Other outstanding reset links for this person stop working too.
-    await tx.update(emailTokens).set({ usedAt: new Date() }).where(and(eq(emailTokens.userId, userId), eq(emailTokens.purpose, 'password_reset'), isNull(emailTokens.usedAt)));
+    await tx
+      .update(emailTokens)
+      .set({ usedAt: new Date() })
+      .where(and(eq(emailTokens.userId, userId), eq(emailTokens.purpose, 'password_reset'), isNull(emailTokens.usedAt)));
     for (const m of ms.length ? ms : [{ workspaceId: null as number | null }]) {
       await audit({ workspaceId: m.workspaceId, userId, action: 'auth.password_reset', ip: meta.ip }, tx);
     }
@@ -191,18 +229,38 @@ export async function changePassword(me: UserCtx, current: string, next: string)
 
 /** End every session of this person except the one they are using. */
 export async function signOutOtherSessions(me: UserCtx): Promise<number> {
-  const [res] = await getDb().delete(sessions).where(and(eq(sessions.userId, me.userId), ne(sessions.id, me.sessionId)));
+  const [res] = await getDb()
+    .delete(sessions)
+    .where(and(eq(sessions.userId, me.userId), ne(sessions.id, me.sessionId)));
   return (res as { affectedRows?: number }).affectedRows ?? 0;
 }
 
 /** Sessions are listed by a public handle (a hash of the secret id), never the id itself. */
 export const sessionHandle = (sessionId: string) => hashToken(sessionId).slice(0, 24);
 
-export interface SessionInfo { handle: string; current: boolean; createdAt: Date; expiresAt: Date; userAgent: string | null; device: string }
+export interface SessionInfo {
+  handle: string;
+  current: boolean;
+  createdAt: Date;
+  expiresAt: Date;
+  userAgent: string | null;
+  device: string;
+}
 
 export async function listSessions(me: UserCtx): Promise<SessionInfo[]> {
-  const rows = await getDb().select().from(sessions).where(and(eq(sessions.userId, me.userId), gt(sessions.expiresAt, new Date()))).orderBy(desc(sessions.createdAt));
-  return rows.map((r) => ({ handle: sessionHandle(r.id), current: r.id === me.sessionId, createdAt: r.createdAt, expiresAt: r.expiresAt, userAgent: r.userAgent, device: describeDevice(r.userAgent) }));
+  const rows = await getDb()
+    .select()
+    .from(sessions)
+    .where(and(eq(sessions.userId, me.userId), gt(sessions.expiresAt, new Date())))
+    .orderBy(desc(sessions.createdAt));
+  return rows.map((r) => ({
+    handle: sessionHandle(r.id),
+    current: r.id === me.sessionId,
+    createdAt: r.createdAt,
+    expiresAt: r.expiresAt,
+    userAgent: r.userAgent,
+    device: describeDevice(r.userAgent),
+  }));
 }
 
 export async function endSessionByHandle(me: UserCtx, handle: string): Promise<void> {
@@ -215,8 +273,28 @@ export async function endSessionByHandle(me: UserCtx, handle: string): Promise<v
 /** A plain description of a browser from its user-agent string. */
 export function describeDevice(ua: string | null): string {
   if (!ua) return 'Unknown device';
-  const browser = /Edg\//.test(ua) ? 'Edge' : /Firefox\//.test(ua) ? 'Firefox' : /Chrome\/|Chromium\//.test(ua) ? 'Chrome' : /Safari\//.test(ua) ? 'Safari' : /node|undici|curl/i.test(ua) ? 'Script' : 'Browser';
-  const os = /iPhone|iPad/.test(ua) ? 'iPhone/iPad' : /Android/.test(ua) ? 'Android' : /Windows/.test(ua) ? 'Windows' : /Mac OS X/.test(ua) ? 'Mac' : /Linux/.test(ua) ? 'Linux' : '';
+  const browser = /Edg\//.test(ua)
+    ? 'Edge'
+    : /Firefox\//.test(ua)
+      ? 'Firefox'
+      : /Chrome\/|Chromium\//.test(ua)
+        ? 'Chrome'
+        : /Safari\//.test(ua)
+          ? 'Safari'
+          : /node|undici|curl/i.test(ua)
+            ? 'Script'
+            : 'Browser';
+  const os = /iPhone|iPad/.test(ua)
+    ? 'iPhone/iPad'
+    : /Android/.test(ua)
+      ? 'Android'
+      : /Windows/.test(ua)
+        ? 'Windows'
+        : /Mac OS X/.test(ua)
+          ? 'Mac'
+          : /Linux/.test(ua)
+            ? 'Linux'
+            : '';
   return os ? `${browser} on ${os}` : browser;
 }
 
@@ -224,5 +302,8 @@ export function describeDevice(ua: string | null): string {
 export async function switchWorkspace(me: UserCtx, workspaceId: number): Promise<void> {
   const role = await roleIn(me.userId, workspaceId);
   if (!role) throw notFound('You are not a member of that distillery.');
-  await getDb().update(sessions).set({ workspaceId }).where(and(eq(sessions.id, me.sessionId), eq(sessions.userId, me.userId)));
+  await getDb()
+    .update(sessions)
+    .set({ workspaceId })
+    .where(and(eq(sessions.id, me.sessionId), eq(sessions.userId, me.userId)));
 }

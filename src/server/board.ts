@@ -8,8 +8,15 @@ import { and, asc, eq, gte, inArray, isNull, lt, ne, or, sql } from 'drizzle-orm
 import { getDb } from '../db/client';
 import { fermentForecasts, fermenters, ferments, memberships, runFerments, runs, users, washTypes } from '../db/schema';
 import {
-  dehydrateRun, notBeforeForRisk, toFermentState, toScheduleRun, toScheduleStill,
-  type BoardFerment, type BoardPayload, type BoardRun, type BoardStill,
+  dehydrateRun,
+  notBeforeForRisk,
+  toFermentState,
+  toScheduleRun,
+  toScheduleStill,
+  type BoardFerment,
+  type BoardPayload,
+  type BoardRun,
+  type BoardStill,
 } from '../lib/board';
 import { computeRunWarnings, findEarliestSlots, runChargeLitres, type FermentStatus, type Slot, type Warning } from '../lib/schedule';
 import { getForecasts } from './forecasts';
@@ -40,14 +47,34 @@ async function withForecasts(ctx: Ctx, base: FermentBase[], now: Date): Promise<
   const workspaceId = ctx.ws.id;
   const ids = base.map((f) => f.id);
   const hourStart = new Date(Math.floor(now.getTime() / HOUR_MS) * HOUR_MS);
-  const cached = await db.select({
-    fermentId: fermentForecasts.fermentId, status: fermentForecasts.status, readyAt: fermentForecasts.readyAt,
-    readyP10: fermentForecasts.readyP10, readyP90: fermentForecasts.readyP90, ruleMetAt: fermentForecasts.ruleMetAt,
-    predictedFg: fermentForecasts.predictedFg, computedAt: fermentForecasts.computedAt,
-    reason: sql<string | null>`JSON_UNQUOTE(JSON_EXTRACT(${fermentForecasts.payload}, '$.reason'))`,
-    lastSg: sql<string | null>`JSON_EXTRACT(${fermentForecasts.payload}, '$.lastSg')`,
-  }).from(fermentForecasts).where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, ids)));
-  const fresh = new Map<number, { status: string; reason: string; readyAt: Date | null; readyP10: Date | null; readyP90: Date | null; ruleMetAt: Date | null; predictedFg: number | null; lastSg: number | null }>();
+  const cached = await db
+    .select({
+      fermentId: fermentForecasts.fermentId,
+      status: fermentForecasts.status,
+      readyAt: fermentForecasts.readyAt,
+      readyP10: fermentForecasts.readyP10,
+      readyP90: fermentForecasts.readyP90,
+      ruleMetAt: fermentForecasts.ruleMetAt,
+      predictedFg: fermentForecasts.predictedFg,
+      computedAt: fermentForecasts.computedAt,
+      reason: sql<string | null>`JSON_UNQUOTE(JSON_EXTRACT(${fermentForecasts.payload}, '$.reason'))`,
+      lastSg: sql<string | null>`JSON_EXTRACT(${fermentForecasts.payload}, '$.lastSg')`,
+    })
+    .from(fermentForecasts)
+    .where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, ids)));
+  const fresh = new Map<
+    number,
+    {
+      status: string;
+      reason: string;
+      readyAt: Date | null;
+      readyP10: Date | null;
+      readyP90: Date | null;
+      ruleMetAt: Date | null;
+      predictedFg: number | null;
+      lastSg: number | null;
+    }
+  >();
   const baseById = new Map(base.map((b) => [b.id, b]));
   for (const c of cached) {
     const f = baseById.get(c.fermentId);
@@ -66,16 +93,24 @@ async function withForecasts(ctx: Ctx, base: FermentBase[], now: Date): Promise<
       ...f,
       status: (fc?.status ?? 'insufficient_data') as FermentStatus,
       reason: fc?.reason ?? 'No forecast yet.',
-      readyAt: fc?.readyAt ?? null, readyP10: fc?.readyP10 ?? null, readyP90: fc?.readyP90 ?? null,
-      confirmedAt: fc?.status === 'finished' ? fc.ruleMetAt ?? null : null,
-      lastSg: fc?.lastSg ?? null, predictedFg: fc?.predictedFg ?? null,
+      readyAt: fc?.readyAt ?? null,
+      readyP10: fc?.readyP10 ?? null,
+      readyP90: fc?.readyP90 ?? null,
+      confirmedAt: fc?.status === 'finished' ? (fc.ruleMetAt ?? null) : null,
+      lastSg: fc?.lastSg ?? null,
+      predictedFg: fc?.predictedFg ?? null,
     };
   });
 }
 
 const fermentColumns = {
-  id: ferments.id, code: ferments.code, volumeLitres: ferments.volumeLitres, fermenterId: ferments.fermenterId,
-  washCategory: washTypes.category, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt,
+  id: ferments.id,
+  code: ferments.code,
+  volumeLitres: ferments.volumeLitres,
+  fermenterId: ferments.fermenterId,
+  washCategory: washTypes.category,
+  pitchedAt: ferments.pitchedAt,
+  emptiedAt: ferments.emptiedAt,
 };
 
 export interface BoardData {
@@ -99,11 +134,21 @@ export async function loadBoardData(ctx: Ctx, from: Date, to: Date, now: Date): 
   const [stillRows, inRange, fermenterRows, people, openFerments] = await Promise.all([
     listStills(ctx),
     selectRuns(db, ws, { window: { from: ctxFrom, to: ctxTo } }),
-    db.select({ id: fermenters.id, name: fermenters.name, capacityLitres: fermenters.capacityLitres }).from(fermenters)
-      .where(and(eq(fermenters.workspaceId, ws), eq(fermenters.active, true))).orderBy(asc(fermenters.position), asc(fermenters.id)),
-    db.select({ id: users.id, name: users.name, role: memberships.role }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
-      .where(eq(memberships.workspaceId, ws)).orderBy(asc(users.name)),
-    db.select(fermentColumns).from(ferments).innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
+    db
+      .select({ id: fermenters.id, name: fermenters.name, capacityLitres: fermenters.capacityLitres })
+      .from(fermenters)
+      .where(and(eq(fermenters.workspaceId, ws), eq(fermenters.active, true)))
+      .orderBy(asc(fermenters.position), asc(fermenters.id)),
+    db
+      .select({ id: users.id, name: users.name, role: memberships.role })
+      .from(memberships)
+      .innerJoin(users, eq(users.id, memberships.userId))
+      .where(eq(memberships.workspaceId, ws))
+      .orderBy(asc(users.name)),
+    db
+      .select(fermentColumns)
+      .from(ferments)
+      .innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
       .where(and(eq(ferments.workspaceId, ws), lt(ferments.pitchedAt, ctxTo), or(isNull(ferments.emptiedAt), gte(ferments.emptiedAt, ctxFrom)))),
   ]);
 
@@ -117,7 +162,9 @@ export async function loadBoardData(ctx: Ctx, from: Date, to: Date, now: Date): 
   }
   const linkedFermentIds = inRange.flatMap((r) => r.ferments.map((c) => c.fermentId));
   if (linkedFermentIds.length) {
-    const sharing = await db.select({ runId: runFerments.runId }).from(runFerments)
+    const sharing = await db
+      .select({ runId: runFerments.runId })
+      .from(runFerments)
       .where(and(eq(runFerments.workspaceId, ws), inArray(runFerments.fermentId, [...new Set(linkedFermentIds)])));
     for (const s of sharing) if (!have.has(s.runId)) extraRunIds.add(s.runId);
   }
@@ -130,8 +177,11 @@ export async function loadBoardData(ctx: Ctx, from: Date, to: Date, now: Date): 
   const openIds = new Set(openFerments.map((f) => f.id));
   const missingFerments = [...fermentIds].filter((id) => !openIds.has(id));
   const linkedFerments = missingFerments.length
-    ? await db.select(fermentColumns).from(ferments).innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
-      .where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, missingFerments)))
+    ? await db
+        .select(fermentColumns)
+        .from(ferments)
+        .innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
+        .where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, missingFerments)))
     : [];
   const fermentList = await withForecasts(ctx, [...openFerments, ...linkedFerments], now);
   return { stills: stillRows, runs: allRuns, ferments: fermentList, fermenters: fermenterRows, people };
@@ -144,7 +194,11 @@ export async function loadBoardData(ctx: Ctx, from: Date, to: Date, now: Date): 
 const boardCache = new SnapshotCache<BoardBody>(5 * 60_000);
 
 /** The board as bytes ready to send: plain and gzip-compressed JSON and a validator. */
-export interface BoardBody { json: Uint8Array<ArrayBuffer>; gzip: Uint8Array<ArrayBuffer>; etag: string }
+export interface BoardBody {
+  json: Uint8Array<ArrayBuffer>;
+  gzip: Uint8Array<ArrayBuffer>;
+  etag: string;
+}
 
 function boardBody(payload: BoardPayload): BoardBody {
   const json = new Uint8Array(Buffer.from(JSON.stringify(payload)));
@@ -169,7 +223,16 @@ export async function getBoard(ctx: Ctx, from: Date, to: Date, now = new Date())
     now: now.toISOString(),
     stableDays: ctx.ws.stableDays,
     stills: data.stills.map(({ id, name, kind, capacityLitres, heatingKw, operatingHours, closures, cleaningAfterRunMinutes, typicalMinutes, position }) => ({
-      id, name, kind, capacityLitres, heatingKw, operatingHours, closures, cleaningAfterRunMinutes, typicalMinutes, position,
+      id,
+      name,
+      kind,
+      capacityLitres,
+      heatingKw,
+      operatingHours,
+      closures,
+      cleaningAfterRunMinutes,
+      typicalMinutes,
+      position,
     })),
     runs: data.runs.map(dehydrateRun),
     ferments: data.ferments.map(fermentJson),
@@ -189,8 +252,11 @@ export async function warningsForRun(ctx: Ctx, run: BoardRun, now = new Date()):
   if (!still) return [];
   const others = data.runs.filter((r) => r.id !== run.id).map(toScheduleRun);
   return computeRunWarnings(toScheduleRun(run), {
-    still: toScheduleStill(still), runs: [...others, toScheduleRun(run)],
-    ferments: new Map(data.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: ctx.ws.timeZone, now,
+    still: toScheduleStill(still),
+    runs: [...others, toScheduleRun(run)],
+    ferments: new Map(data.ferments.map((f) => [f.id, toFermentState(f)])),
+    timeZone: ctx.ws.timeZone,
+    now,
   });
 }
 
@@ -212,9 +278,8 @@ export async function suggestSlots(ctx: Ctx, runId: number, now = new Date(), li
   const horizonDays = 28;
   const probe = await loadBoardData(ctx, now, new Date(now.getTime() + (horizonDays + 2) * DAY_MS), now);
   const notBefore = notBeforeForRisk(run, probe.ferments.length ? probe.ferments : [], now, ctx.ws.stableDays);
-  const data = notBefore.getTime() > now.getTime() + DAY_MS
-    ? await loadBoardData(ctx, notBefore, new Date(notBefore.getTime() + (horizonDays + 2) * DAY_MS), now)
-    : probe;
+  const data =
+    notBefore.getTime() > now.getTime() + DAY_MS ? await loadBoardData(ctx, notBefore, new Date(notBefore.getTime() + (horizonDays + 2) * DAY_MS), now) : probe;
   const own = data.stills.find((s) => s.id === run.stillId);
   const ordered = [...(own ? [own] : []), ...data.stills.filter((s) => s.id !== run.stillId)].map(toScheduleStill);
   const charge = runChargeLitres(run) ?? 0;

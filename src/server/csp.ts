@@ -55,7 +55,9 @@ function findBuildHashesFile(): string | null {
       candidates.push(path.join(dir, CSP_HASHES_FILE));
       dir = path.dirname(dir);
     }
-  } catch { /* not a file: URL */ }
+  } catch {
+    /* not a file: URL */
+  }
   candidates.push(path.join(process.cwd(), 'dist', CSP_HASHES_FILE));
   return candidates.find((c) => existsSync(c)) ?? null;
 }
@@ -80,7 +82,9 @@ function loadBuildHashes(): string[] {
   if (!file) {
     if (!warned && import.meta.env?.PROD) {
       warned = true;
-      console.warn(`[csp] ${CSP_HASHES_FILE} not found next to the build: inline component scripts will be blocked. Run scripts/csp-hashes.ts after astro build.`);
+      console.warn(
+        `[csp] ${CSP_HASHES_FILE} not found next to the build: inline component scripts will be blocked. Run scripts/csp-hashes.ts after astro build.`,
+      );
     }
     return [];
   }

@@ -21,7 +21,12 @@ const CHECK_EVERY_MS = 5 * 60_000;
 
 export type DigestOutcome = 'sent' | 'claimed_elsewhere' | 'not_due';
 
-export interface DigestResult { outcome: DigestOutcome; recipients: number; runs: number; date: string }
+export interface DigestResult {
+  outcome: DigestOutcome;
+  recipients: number;
+  runs: number;
+  date: string;
+}
 
 /** Send one workspace's digest for its local date at `now`, if due and not yet claimed. */
 export async function runDigestFor(workspaceId: number, now: Date = new Date(), opts: { ignoreHour?: boolean } = {}): Promise<DigestResult> {
@@ -46,8 +51,12 @@ export async function runDigestFor(workspaceId: number, now: Date = new Date(), 
       where: and(ne(runs.status, 'cancelled'), lt(runs.startsAt, to), gte(runs.endsAt, from)),
     });
     const fermentIds = [...new Set(rows.flatMap((r) => r.ferments.map((c) => c.fermentId)))];
-    const codes = fermentIds.length ? await tx.select({ id: ferments.id, code: ferments.code }).from(ferments)
-      .where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, fermentIds))) : [];
+    const codes = fermentIds.length
+      ? await tx
+          .select({ id: ferments.id, code: ferments.code })
+          .from(ferments)
+          .where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, fermentIds)))
+      : [];
     const codeOf = new Map(codes.map((f) => [f.id, f.code]));
     const operatorIds = [...new Set(rows.map((r) => r.operatorId).filter((v): v is number => v !== null))];
     const people = operatorIds.length ? await tx.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, operatorIds)) : [];
@@ -62,17 +71,22 @@ export async function runDigestFor(workspaceId: number, now: Date = new Date(), 
       const list = rows.filter((r) => wallClock(r.startsAt, ws.timeZone).ymd === ymd || (ymd === today && r.startsAt < from));
       const heading = `${ymd === today ? 'Today' : 'Tomorrow'}, ${shortDate(ymd, weekdayOfYmd(ymd))}`;
       if (!list.length) return `${heading}: no runs booked.`;
-      return `${heading}:\n${list.map((r) => {
-        const w = washes.get(r.id);
-        const op = r.operatorId === null ? 'no operator yet' : r.operatorId === forId ? 'you' : name.get(r.operatorId) ?? 'someone';
-        return `- ${wallClock(r.startsAt, ws.timeZone).hm}–${wallClock(r.endsAt, ws.timeZone).hm} ${RUN_TYPE_LABELS[r.type]} on ${r.stillName}${w ? ` (wash ${w.join(', ')})` : ''}, ${op}, ${RUN_STATUS_LABELS[r.status].toLowerCase()}`;
-      }).join('\n')}`;
+      return `${heading}:\n${list
+        .map((r) => {
+          const w = washes.get(r.id);
+          const op = r.operatorId === null ? 'no operator yet' : r.operatorId === forId ? 'you' : (name.get(r.operatorId) ?? 'someone');
+          return `- ${wallClock(r.startsAt, ws.timeZone).hm}–${wallClock(r.endsAt, ws.timeZone).hm} ${RUN_TYPE_LABELS[r.type]} on ${r.stillName}${w ? ` (wash ${w.join(', ')})` : ''}, ${op}, ${RUN_STATUS_LABELS[r.status].toLowerCase()}`;
+        })
+        .join('\n')}`;
     };
     for (const m of members) {
       const subject = `Still runs today and tomorrow at ${ws.name}`;
-      const mail = noticeMail(subject, [dayLines(today, m.id), dayLines(tomorrow, m.id), 'Times are distillery time. Never leave a running still unattended.'],
+      const mail = noticeMail(
+        subject,
+        [dayLines(today, m.id), dayLines(tomorrow, m.id), 'Times are distillery time. Never leave a running still unattended.'],
         { label: 'Open the board', href: publicUrl('/') },
-        `You asked for this daily digest in ${ws.name}. Turn it off at ${publicUrl('/settings/notifications')}`);
+        `You asked for this daily digest in ${ws.name}. Turn it off at ${publicUrl('/settings/notifications')}`,
+      );
       await enqueue(tx, { workspaceId, kind: 'digest', to: m.email, ...mail });
     }
     return { outcome: 'sent' as const, recipients: members.length, runs: rows.length, date: today };
@@ -104,7 +118,11 @@ export function ensureDigestScheduler(): void {
   const tick = async () => {
     if (running) return;
     running = true;
-    try { await runDueDigests(); } finally { running = false; }
+    try {
+      await runDueDigests();
+    } finally {
+      running = false;
+    }
   };
   const timer = setInterval(() => void tick(), CHECK_EVERY_MS);
   timer.unref?.();

@@ -46,41 +46,112 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 const round = (n: number | null, dp: number) => (n === null ? null : Math.round(n * 10 ** dp) / 10 ** dp);
 
 export const FERMENT_CSV_COLUMNS = [
-  'ferment_code', 'wash_type', 'fermenter', 'volume_litres', 'pitched_at_utc', 'og', 'yeast', 'ferment_notes', 'emptied_at_utc', 'emptied_reason',
-  'reading_taken_at_utc', 'method', 'raw_value', 'raw_unit', 'sample_temp_c', 'corrected_sg', 'low_confidence', 'ferment_temp_c', 'ph', 'reading_note', 'taken_by',
+  'ferment_code',
+  'wash_type',
+  'fermenter',
+  'volume_litres',
+  'pitched_at_utc',
+  'og',
+  'yeast',
+  'ferment_notes',
+  'emptied_at_utc',
+  'emptied_reason',
+  'reading_taken_at_utc',
+  'method',
+  'raw_value',
+  'raw_unit',
+  'sample_temp_c',
+  'corrected_sg',
+  'low_confidence',
+  'ferment_temp_c',
+  'ph',
+  'reading_note',
+  'taken_by',
 ];
 
 /** Ferments pitched in the range, one row per (non-deleted) reading; a ferment without readings gets one row. */
 export async function fermentsCsv(ctx: Ctx, filters: ReportFilters): Promise<string> {
   const db = getDb();
   const scope = ctx.ws;
-  const fs = await db.select({
-    id: t.ferments.id, code: t.ferments.code, washType: t.washTypes.name, fermenter: t.fermenters.name, volume: t.ferments.volumeLitres,
-    pitchedAt: t.ferments.pitchedAt, og: t.ferments.og, yeast: t.ferments.yeast, notes: t.ferments.notes, emptiedAt: t.ferments.emptiedAt, emptiedReason: t.ferments.emptiedReason,
-  }).from(t.ferments).innerJoin(t.washTypes, eq(t.washTypes.id, t.ferments.washTypeId)).leftJoin(t.fermenters, eq(t.fermenters.id, t.ferments.fermenterId))
+  const fs = await db
+    .select({
+      id: t.ferments.id,
+      code: t.ferments.code,
+      washType: t.washTypes.name,
+      fermenter: t.fermenters.name,
+      volume: t.ferments.volumeLitres,
+      pitchedAt: t.ferments.pitchedAt,
+      og: t.ferments.og,
+      yeast: t.ferments.yeast,
+      notes: t.ferments.notes,
+      emptiedAt: t.ferments.emptiedAt,
+      emptiedReason: t.ferments.emptiedReason,
+    })
+    .from(t.ferments)
+    .innerJoin(t.washTypes, eq(t.washTypes.id, t.ferments.washTypeId))
+    .leftJoin(t.fermenters, eq(t.fermenters.id, t.ferments.fermenterId))
     .where(and(eq(t.ferments.workspaceId, scope.id), gte(t.ferments.pitchedAt, filters.range.start), lt(t.ferments.pitchedAt, filters.range.end)))
     .orderBy(asc(t.ferments.pitchedAt), asc(t.ferments.id));
   const rs = fs.length
-    ? await db.select({
-      fermentId: t.readings.fermentId, takenAt: t.readings.takenAt, method: t.readings.method, rawValue: t.readings.rawValue, rawUnit: t.readings.rawUnit,
-      sampleTempC: t.readings.sampleTempC, correctedSg: t.readings.correctedSg, lowConfidence: t.readings.lowConfidence, fermentTempC: t.readings.fermentTempC,
-      ph: t.readings.ph, note: t.readings.note, takenBy: t.users.name,
-    }).from(t.readings).leftJoin(t.users, eq(t.users.id, t.readings.takenBy))
-      .where(and(eq(t.readings.workspaceId, scope.id), inArray(t.readings.fermentId, fs.map((f) => f.id)), isNull(t.readings.deletedAt)))
-      .orderBy(asc(t.readings.takenAt), asc(t.readings.id))
+    ? await db
+        .select({
+          fermentId: t.readings.fermentId,
+          takenAt: t.readings.takenAt,
+          method: t.readings.method,
+          rawValue: t.readings.rawValue,
+          rawUnit: t.readings.rawUnit,
+          sampleTempC: t.readings.sampleTempC,
+          correctedSg: t.readings.correctedSg,
+          lowConfidence: t.readings.lowConfidence,
+          fermentTempC: t.readings.fermentTempC,
+          ph: t.readings.ph,
+          note: t.readings.note,
+          takenBy: t.users.name,
+        })
+        .from(t.readings)
+        .leftJoin(t.users, eq(t.users.id, t.readings.takenBy))
+        .where(
+          and(
+            eq(t.readings.workspaceId, scope.id),
+            inArray(
+              t.readings.fermentId,
+              fs.map((f) => f.id),
+            ),
+            isNull(t.readings.deletedAt),
+          ),
+        )
+        .orderBy(asc(t.readings.takenAt), asc(t.readings.id))
     : [];
   const rows: Array<Record<string, unknown>> = [];
   for (const f of fs) {
     const base = {
-      ferment_code: f.code, wash_type: f.washType, fermenter: f.fermenter, volume_litres: f.volume, pitched_at_utc: iso(f.pitchedAt), og: f.og,
-      yeast: f.yeast, ferment_notes: f.notes, emptied_at_utc: iso(f.emptiedAt), emptied_reason: f.emptiedReason,
+      ferment_code: f.code,
+      wash_type: f.washType,
+      fermenter: f.fermenter,
+      volume_litres: f.volume,
+      pitched_at_utc: iso(f.pitchedAt),
+      og: f.og,
+      yeast: f.yeast,
+      ferment_notes: f.notes,
+      emptied_at_utc: iso(f.emptiedAt),
+      emptied_reason: f.emptiedReason,
     };
     const mine = rs.filter((r) => r.fermentId === f.id);
     if (mine.length === 0) rows.push(base);
     for (const r of mine) {
       rows.push({
-        ...base, reading_taken_at_utc: iso(r.takenAt), method: r.method, raw_value: r.rawValue, raw_unit: r.rawUnit, sample_temp_c: r.sampleTempC,
-        corrected_sg: r.correctedSg, low_confidence: r.lowConfidence, ferment_temp_c: r.fermentTempC, ph: r.ph, reading_note: r.note, taken_by: r.takenBy,
+        ...base,
+        reading_taken_at_utc: iso(r.takenAt),
+        method: r.method,
+        raw_value: r.rawValue,
+        raw_unit: r.rawUnit,
+        sample_temp_c: r.sampleTempC,
+        corrected_sg: r.correctedSg,
+        low_confidence: r.lowConfidence,
+        ferment_temp_c: r.fermentTempC,
+        ph: r.ph,
+        reading_note: r.note,
+        taken_by: r.takenBy,
       });
     }
   }
@@ -88,8 +159,30 @@ export async function fermentsCsv(ctx: Ctx, filters: ReportFilters): Promise<str
 }
 
 export const RUN_CSV_COLUMNS = [
-  'run_id', 'still', 'type', 'status', 'starts_at_utc', 'ends_at_utc', 'started_at_utc', 'finished_at_utc', 'operator', 'charge_litres', 'charge_abv_20c', 'charged_laa',
-  'ferments', 'fed_by_runs', 'run_notes', 'fraction', 'volume_litres', 'alcoholmeter_reading', 'reading_temp_c', 'abv_20c', 'laa', 'cut_note', 'run_collected_laa', 'run_recovery',
+  'run_id',
+  'still',
+  'type',
+  'status',
+  'starts_at_utc',
+  'ends_at_utc',
+  'started_at_utc',
+  'finished_at_utc',
+  'operator',
+  'charge_litres',
+  'charge_abv_20c',
+  'charged_laa',
+  'ferments',
+  'fed_by_runs',
+  'run_notes',
+  'fraction',
+  'volume_litres',
+  'alcoholmeter_reading',
+  'reading_temp_c',
+  'abv_20c',
+  'laa',
+  'cut_note',
+  'run_collected_laa',
+  'run_recovery',
 ];
 
 /** Runs starting in the range (optionally one still), one row per recorded fraction; a run without a record gets one row. */
@@ -98,16 +191,29 @@ export async function runsCsv(ctx: Ctx, filters: ReportFilters): Promise<string>
   const scope = ctx.ws;
   const rs = await selectRuns(db, scope.id, {
     extra: { still: stillName, operator: operatorName, startedAt: t.runs.startedAt, finishedAt: t.runs.finishedAt },
-    where: and(gte(t.runs.startsAt, filters.range.start), lt(t.runs.startsAt, filters.range.end), filters.stillId ? eq(t.runs.stillId, filters.stillId) : undefined),
+    where: and(
+      gte(t.runs.startsAt, filters.range.start),
+      lt(t.runs.startsAt, filters.range.end),
+      filters.stillId ? eq(t.runs.stillId, filters.stillId) : undefined,
+    ),
   });
   const ids = rs.map((r) => r.id);
   const fermentIds = [...new Set(rs.flatMap((r) => r.ferments.map((c) => c.fermentId)))];
-  const [outcomes, codes] = ids.length ? await Promise.all([
-    db.select().from(t.runOutcomes).where(and(eq(t.runOutcomes.workspaceId, scope.id), inArray(t.runOutcomes.runId, ids))).orderBy(asc(t.runOutcomes.id)),
-    fermentIds.length
-      ? db.select({ id: t.ferments.id, code: t.ferments.code }).from(t.ferments).where(and(eq(t.ferments.workspaceId, scope.id), inArray(t.ferments.id, fermentIds)))
-      : [],
-  ]) : [[], []];
+  const [outcomes, codes] = ids.length
+    ? await Promise.all([
+        db
+          .select()
+          .from(t.runOutcomes)
+          .where(and(eq(t.runOutcomes.workspaceId, scope.id), inArray(t.runOutcomes.runId, ids)))
+          .orderBy(asc(t.runOutcomes.id)),
+        fermentIds.length
+          ? db
+              .select({ id: t.ferments.id, code: t.ferments.code })
+              .from(t.ferments)
+              .where(and(eq(t.ferments.workspaceId, scope.id), inArray(t.ferments.id, fermentIds)))
+          : [],
+      ])
+    : [[], []];
   const codeOf = new Map(codes.map((f) => [f.id, f.code]));
   const order = { low_wines: 0, heads: 1, hearts: 2, tails: 3, feints: 4 } as const;
   const rows: Array<Record<string, unknown>> = [];
@@ -117,9 +223,23 @@ export async function runsCsv(ctx: Ctx, filters: ReportFilters): Promise<string>
     const charged = chargedLaa({ litres: chargeLitres, abv: r.chargeAbv });
     const collected = sumLaa(fr);
     const base = {
-      run_id: r.id, still: r.still, type: r.type, status: r.status, starts_at_utc: iso(r.startsAt), ends_at_utc: iso(r.endsAt), started_at_utc: iso(r.startedAt),
-      finished_at_utc: iso(r.finishedAt), operator: r.operator, charge_litres: chargeLitres, charge_abv_20c: r.chargeAbv, charged_laa: round(charged, 3),
-      ferments: r.ferments.filter((c) => codeOf.has(c.fermentId)).map((c) => `${codeOf.get(c.fermentId)} ${c.litres} L`).join('; ') || null,
+      run_id: r.id,
+      still: r.still,
+      type: r.type,
+      status: r.status,
+      starts_at_utc: iso(r.startsAt),
+      ends_at_utc: iso(r.endsAt),
+      started_at_utc: iso(r.startedAt),
+      finished_at_utc: iso(r.finishedAt),
+      operator: r.operator,
+      charge_litres: chargeLitres,
+      charge_abv_20c: r.chargeAbv,
+      charged_laa: round(charged, 3),
+      ferments:
+        r.ferments
+          .filter((c) => codeOf.has(c.fermentId))
+          .map((c) => `${codeOf.get(c.fermentId)} ${c.litres} L`)
+          .join('; ') || null,
       fed_by_runs: r.feeds.map((f) => `#${f.runId} ${f.litres} L`).join('; ') || null,
       run_notes: r.notes,
       run_collected_laa: fr.length ? round(collected, 3) : null,
@@ -128,8 +248,14 @@ export async function runsCsv(ctx: Ctx, filters: ReportFilters): Promise<string>
     if (fr.length === 0) rows.push(base);
     for (const o of fr) {
       rows.push({
-        ...base, fraction: FRACTION_LABELS[o.fraction], volume_litres: o.volumeLitres, alcoholmeter_reading: o.alcoholmeterReading, reading_temp_c: o.readingTempC,
-        abv_20c: round(o.abv20, 3), laa: round(o.laa, 3), cut_note: o.cutNote,
+        ...base,
+        fraction: FRACTION_LABELS[o.fraction],
+        volume_litres: o.volumeLitres,
+        alcoholmeter_reading: o.alcoholmeterReading,
+        reading_temp_c: o.readingTempC,
+        abv_20c: round(o.abv20, 3),
+        laa: round(o.laa, 3),
+        cut_note: o.cutNote,
       });
     }
   }
@@ -139,10 +265,18 @@ export async function runsCsv(ctx: Ctx, filters: ReportFilters): Promise<string>
 export const UTILISATION_CSV_COLUMNS = ['still', 'iso_week', 'available_hours', 'booked_hours', 'done_hours', 'idle_waiting_hours', 'utilisation'];
 
 export function utilisationCsv(rows: readonly UtilisationRow[]): string {
-  return toCsv(rows.map((r) => ({
-    still: r.stillName, iso_week: r.week, available_hours: round(r.availableHours, 2), booked_hours: round(r.bookedHours, 2),
-    done_hours: round(r.doneHours, 2), idle_waiting_hours: round(r.idleWaitingHours, 2), utilisation: round(r.utilisation, 4),
-  })), UTILISATION_CSV_COLUMNS);
+  return toCsv(
+    rows.map((r) => ({
+      still: r.stillName,
+      iso_week: r.week,
+      available_hours: round(r.availableHours, 2),
+      booked_hours: round(r.bookedHours, 2),
+      done_hours: round(r.doneHours, 2),
+      idle_waiting_hours: round(r.idleWaitingHours, 2),
+      utilisation: round(r.utilisation, 4),
+    })),
+    UTILISATION_CSV_COLUMNS,
+  );
 }
 
 /** Columns never exported, per table. */
@@ -161,11 +295,23 @@ export async function fullExport(ctx: Ctx, now = new Date()): Promise<Record<str
   const db = getDb();
   const w = ctx.ws.id;
   const [ws] = await db.select().from(t.workspaces).where(eq(t.workspaces.id, w)).limit(1);
-  const members = await db.select({ userId: t.users.id, email: t.users.email, name: t.users.name, role: t.memberships.role, joinedAt: t.memberships.createdAt, disabledAt: t.users.disabledAt })
-    .from(t.memberships).innerJoin(t.users, eq(t.users.id, t.memberships.userId)).where(eq(t.memberships.workspaceId, w)).orderBy(asc(t.users.id));
+  const members = await db
+    .select({
+      userId: t.users.id,
+      email: t.users.email,
+      name: t.users.name,
+      role: t.memberships.role,
+      joinedAt: t.memberships.createdAt,
+      disabledAt: t.users.disabledAt,
+    })
+    .from(t.memberships)
+    .innerJoin(t.users, eq(t.users.id, t.memberships.userId))
+    .where(eq(t.memberships.workspaceId, w))
+    .orderBy(asc(t.users.id));
   // Every table below has a workspace_id column; the rows are read whole, then secrets stripped.
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
-  const byWs = (table: any, col: any): Promise<Array<Record<string, unknown>>> => db.select().from(table).where(eq(col, w)) as Promise<Array<Record<string, unknown>>>;
+  const byWs = (table: any, col: any): Promise<Array<Record<string, unknown>>> =>
+    db.select().from(table).where(eq(col, w)) as Promise<Array<Record<string, unknown>>>;
   const tables: Record<string, unknown[]> = {
     members,
     stills: await byWs(t.stills, t.stills.workspaceId),
@@ -191,11 +337,20 @@ export async function fullExport(ctx: Ctx, now = new Date()): Promise<Record<str
     format: 'plateau-workspace-export',
     version: 1,
     exportedAt: now.toISOString(),
-    note: 'Every row of this distillery\'s data. Password hashes, sessions, token hashes, sign-in throttles and mail bodies are not included. Times are UTC.',
-    workspace: ws ? {
-      id: ws.id, name: ws.name, timeZone: ws.timeZone, units: ws.units, calibrationTempC: ws.calibrationTempC, stableDays: ws.stableDays,
-      stableTolerance: ws.stableTolerance, wortCorrectionFactor: ws.wortCorrectionFactor, createdAt: ws.createdAt,
-    } : null,
+    note: "Every row of this distillery's data. Password hashes, sessions, token hashes, sign-in throttles and mail bodies are not included. Times are UTC.",
+    workspace: ws
+      ? {
+          id: ws.id,
+          name: ws.name,
+          timeZone: ws.timeZone,
+          units: ws.units,
+          calibrationTempC: ws.calibrationTempC,
+          stableDays: ws.stableDays,
+          stableTolerance: ws.stableTolerance,
+          wortCorrectionFactor: ws.wortCorrectionFactor,
+          createdAt: ws.createdAt,
+        }
+      : null,
     tables,
   };
 }

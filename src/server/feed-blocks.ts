@@ -20,7 +20,11 @@ const hashOf = (workspaceId: number, key: string) => createHash('sha256').update
 
 type FeedInput = Parameters<typeof buildFeedAsync>[0];
 
-export interface StoredBuild { body: string; fromStore: number; written: number }
+export interface StoredBuild {
+  body: string;
+  fromStore: number;
+  written: number;
+}
 
 /**
  * Build a feed's text: events missing from the memory cache are looked up in the database
@@ -49,8 +53,12 @@ export async function buildFeedWithStore(workspaceId: number, input: FeedInput, 
     take(await db.select(columns).from(calendarEventBlocks).where(eq(calendarEventBlocks.workspaceId, workspaceId)));
   } else {
     for (let i = 0; i < hashes.length; i += CHUNK) {
-      take(await db.select(columns).from(calendarEventBlocks)
-        .where(and(eq(calendarEventBlocks.workspaceId, workspaceId), inArray(calendarEventBlocks.keyHash, hashes.slice(i, i + CHUNK)))));
+      take(
+        await db
+          .select(columns)
+          .from(calendarEventBlocks)
+          .where(and(eq(calendarEventBlocks.workspaceId, workspaceId), inArray(calendarEventBlocks.keyHash, hashes.slice(i, i + CHUNK)))),
+      );
     }
   }
   // Everything found: one plain pass; else the batched build that yields between ics batches.
@@ -62,7 +70,10 @@ export async function buildFeedWithStore(workspaceId: number, input: FeedInput, 
   });
   for (let i = 0; i < fresh.length; i += CHUNK) {
     // Another instance may have stored the same block meanwhile: the same content, keep either.
-    await db.insert(calendarEventBlocks).values(fresh.slice(i, i + CHUNK)).onDuplicateKeyUpdate({ set: { keyHash: sql`${calendarEventBlocks.keyHash}` } });
+    await db
+      .insert(calendarEventBlocks)
+      .values(fresh.slice(i, i + CHUNK))
+      .onDuplicateKeyUpdate({ set: { keyHash: sql`${calendarEventBlocks.keyHash}` } });
   }
   if (fresh.length) await pruneBlocks(workspaceId);
   return { body, fromStore, written: fresh.length };
@@ -71,7 +82,9 @@ export async function buildFeedWithStore(workspaceId: number, input: FeedInput, 
 /** Drop blocks older than BLOCK_MAX_AGE_DAYS (a bounded batch per call). */
 export async function pruneBlocks(workspaceId: number, now = new Date()): Promise<number> {
   const cutoff = new Date(now.getTime() - BLOCK_MAX_AGE_DAYS * 86_400_000);
-  const [res] = await getDb().delete(calendarEventBlocks)
-    .where(and(eq(calendarEventBlocks.workspaceId, workspaceId), lt(calendarEventBlocks.createdAt, cutoff))).limit(5000) as unknown as [{ affectedRows: number }];
+  const [res] = (await getDb()
+    .delete(calendarEventBlocks)
+    .where(and(eq(calendarEventBlocks.workspaceId, workspaceId), lt(calendarEventBlocks.createdAt, cutoff)))
+    .limit(5000)) as unknown as [{ affectedRows: number }];
   return res?.affectedRows ?? 0;
 }

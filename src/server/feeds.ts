@@ -11,10 +11,7 @@ import { z } from 'zod';
 import { getDb } from '../db/client';
 import { calendarFeeds, ferments, memberships, readings, runs, stills, users, workspaces } from '../db/schema';
 import { toScheduleStill } from '../lib/board';
-import {
-  describeRunEvent, runEventStatus, runEventTitle, uidForRun,
-  type EventStatus, type FeedEvent,
-} from '../lib/calendar';
+import { describeRunEvent, runEventStatus, runEventTitle, uidForRun, type EventStatus, type FeedEvent } from '../lib/calendar';
 import { computeRunWarnings, runChargeLitres, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
 import { env, publicUrl } from '../config';
 import { audit } from './audit';
@@ -99,18 +96,22 @@ const FEED_MANAGER_ROLES = ACTIONS['feeds.manage'] as readonly Role[];
  * and their current role may hold feeds (feeds.own); a feed of someone else's runs also needs
  * feeds.manage, and that person must still be a member here. Reads the four joins below.
  */
-const feedIsLive = (): SQL => and(
-  isNull(calendarFeeds.revokedAt),
-  isNotNull(holderMember.userId), isNull(holderUser.disabledAt), inArray(holderMember.role, [...FEED_HOLDER_ROLES]),
-  or(ne(calendarFeeds.scope, 'still'), isNotNull(calendarFeeds.stillId)),
-  or(
-    ne(calendarFeeds.scope, 'person'),
-    and(
-      isNotNull(subjectMember.userId), isNull(subjectUser.disabledAt),
-      or(eq(calendarFeeds.personId, calendarFeeds.createdBy), inArray(holderMember.role, [...FEED_MANAGER_ROLES])),
+const feedIsLive = (): SQL =>
+  and(
+    isNull(calendarFeeds.revokedAt),
+    isNotNull(holderMember.userId),
+    isNull(holderUser.disabledAt),
+    inArray(holderMember.role, [...FEED_HOLDER_ROLES]),
+    or(ne(calendarFeeds.scope, 'still'), isNotNull(calendarFeeds.stillId)),
+    or(
+      ne(calendarFeeds.scope, 'person'),
+      and(
+        isNotNull(subjectMember.userId),
+        isNull(subjectUser.disabledAt),
+        or(eq(calendarFeeds.personId, calendarFeeds.createdBy), inArray(holderMember.role, [...FEED_MANAGER_ROLES])),
+      ),
     ),
-  ),
-)!;
+  )!;
 
 // The joins feedIsLive() reads, each on a unique key: the holder's and the subject's membership and account.
 const HOLDER_MEMBER_ON = and(eq(holderMember.workspaceId, calendarFeeds.workspaceId), eq(holderMember.userId, calendarFeeds.createdBy));
@@ -119,14 +120,21 @@ const SUBJECT_MEMBER_ON = and(eq(subjectMember.workspaceId, calendarFeeds.worksp
 const SUBJECT_USER_ON = eq(subjectUser.id, calendarFeeds.personId);
 
 interface StopFacts {
-  scope: FeedScope; personId: number | null; createdById: number | null; createdByName: string | null; createdByRole: Role | null;
-  holderDisabled: boolean; personName: string | null; personMember: boolean; personDisabled: boolean;
+  scope: FeedScope;
+  personId: number | null;
+  createdById: number | null;
+  createdByName: string | null;
+  createdByRole: Role | null;
+  holderDisabled: boolean;
+  personName: string | null;
+  personMember: boolean;
+  personDisabled: boolean;
 }
 
 /** Explains (never decides) why feedIsLive() is false for a row. */
 function stopReason(f: StopFacts): string {
   const holder = f.createdByName ?? 'Its creator';
-  if (f.createdById === null) return 'Its creator\'s account was deleted.';
+  if (f.createdById === null) return "Its creator's account was deleted.";
   if (f.createdByRole === null) return `${holder} is no longer a member of this distillery.`;
   if (f.holderDisabled) return `${holder}'s account is disabled.`;
   if (!FEED_HOLDER_ROLES.includes(f.createdByRole)) return `${holder}'s role (${f.createdByRole}) may not hold calendar feeds.`;
@@ -148,33 +156,64 @@ function stopReason(f: StopFacts): string {
 export async function listFeeds(ctx: Ctx, only?: { id: number }): Promise<FeedListRow[]> {
   const { ws, actor } = ctx;
   const db = getDb();
-  const rows = await db.select({
-    id: calendarFeeds.id, name: calendarFeeds.name, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId, stillName: stills.name,
-    personId: calendarFeeds.personId, personName: subjectUser.name, personMember: subjectMember.userId, personDisabledAt: subjectUser.disabledAt,
-    createdAt: calendarFeeds.createdAt, createdById: calendarFeeds.createdBy, createdByName: holderUser.name, createdByRole: holderMember.role,
-    holderDisabledAt: holderUser.disabledAt, lastFetchedAt: calendarFeeds.lastFetchedAt,
-    live: sql<number | string>`(${feedIsLive()})`,
-  }).from(calendarFeeds)
-    .leftJoin(holderMember, HOLDER_MEMBER_ON).leftJoin(holderUser, HOLDER_USER_ON)
-    .leftJoin(subjectMember, SUBJECT_MEMBER_ON).leftJoin(subjectUser, SUBJECT_USER_ON)
+  const rows = await db
+    .select({
+      id: calendarFeeds.id,
+      name: calendarFeeds.name,
+      scope: calendarFeeds.scope,
+      stillId: calendarFeeds.stillId,
+      stillName: stills.name,
+      personId: calendarFeeds.personId,
+      personName: subjectUser.name,
+      personMember: subjectMember.userId,
+      personDisabledAt: subjectUser.disabledAt,
+      createdAt: calendarFeeds.createdAt,
+      createdById: calendarFeeds.createdBy,
+      createdByName: holderUser.name,
+      createdByRole: holderMember.role,
+      holderDisabledAt: holderUser.disabledAt,
+      lastFetchedAt: calendarFeeds.lastFetchedAt,
+      live: sql<number | string>`(${feedIsLive()})`,
+    })
+    .from(calendarFeeds)
+    .leftJoin(holderMember, HOLDER_MEMBER_ON)
+    .leftJoin(holderUser, HOLDER_USER_ON)
+    .leftJoin(subjectMember, SUBJECT_MEMBER_ON)
+    .leftJoin(subjectUser, SUBJECT_USER_ON)
     .leftJoin(stills, and(eq(stills.id, calendarFeeds.stillId), eq(stills.workspaceId, calendarFeeds.workspaceId)))
-    .where(and(
-      eq(calendarFeeds.workspaceId, ws.id), isNull(calendarFeeds.revokedAt),
-      can(actor.role, 'feeds.manage') ? undefined : eq(calendarFeeds.createdBy, actor.userId),
-      only ? eq(calendarFeeds.id, only.id) : undefined,
-    ))
+    .where(
+      and(
+        eq(calendarFeeds.workspaceId, ws.id),
+        isNull(calendarFeeds.revokedAt),
+        can(actor.role, 'feeds.manage') ? undefined : eq(calendarFeeds.createdBy, actor.userId),
+        only ? eq(calendarFeeds.id, only.id) : undefined,
+      ),
+    )
     .orderBy(desc(calendarFeeds.createdAt), desc(calendarFeeds.id));
   return rows.map((r) => {
     const live = Number(r.live) === 1;
     const row: FeedListRow = {
-      id: r.id, name: r.name, scope: r.scope, stillId: r.stillId, stillName: r.stillName ?? null,
-      personId: r.personId, personName: r.personName ?? null, createdAt: r.createdAt,
-      createdById: r.createdById, createdByName: r.createdByName ?? null, createdByRole: r.createdByRole ?? null,
-      lastFetchedAt: r.lastFetchedAt, live, stoppedBecause: null,
+      id: r.id,
+      name: r.name,
+      scope: r.scope,
+      stillId: r.stillId,
+      stillName: r.stillName ?? null,
+      personId: r.personId,
+      personName: r.personName ?? null,
+      createdAt: r.createdAt,
+      createdById: r.createdById,
+      createdByName: r.createdByName ?? null,
+      createdByRole: r.createdByRole ?? null,
+      lastFetchedAt: r.lastFetchedAt,
+      live,
+      stoppedBecause: null,
     };
     if (!live) {
       row.stoppedBecause = stopReason({
-        ...row, holderDisabled: r.holderDisabledAt != null, personMember: r.personMember != null, personDisabled: r.personDisabledAt != null,
+        ...row,
+        holderDisabled: r.holderDisabledAt != null,
+        personMember: r.personMember != null,
+        personDisabled: r.personDisabledAt != null,
       });
     }
     return row;
@@ -199,9 +238,20 @@ export function groupFeedsByHolder(feeds: FeedListRow[]): FeedGroup[] {
 
 export function feedJson(f: FeedListRow) {
   return {
-    id: f.id, name: f.name, scope: f.scope, stillId: f.stillId, stillName: f.stillName, personId: f.personId, personName: f.personName,
-    createdAt: f.createdAt.toISOString(), createdById: f.createdById, createdByName: f.createdByName, createdByRole: f.createdByRole,
-    lastFetchedAt: f.lastFetchedAt ? f.lastFetchedAt.toISOString() : null, live: f.live, stoppedBecause: f.stoppedBecause,
+    id: f.id,
+    name: f.name,
+    scope: f.scope,
+    stillId: f.stillId,
+    stillName: f.stillName,
+    personId: f.personId,
+    personName: f.personName,
+    createdAt: f.createdAt.toISOString(),
+    createdById: f.createdById,
+    createdByName: f.createdByName,
+    createdByRole: f.createdByRole,
+    lastFetchedAt: f.lastFetchedAt ? f.lastFetchedAt.toISOString() : null,
+    live: f.live,
+    stoppedBecause: f.stoppedBecause,
   };
 }
 
@@ -218,22 +268,31 @@ export async function createFeed(ctx: Ctx, input: CreateFeedInput): Promise<{ fe
   let defaultName = 'Whole distillery';
   if (input.scope === 'still') {
     if (!input.stillId) throw invalid('stillId', 'Choose a still.');
-    const [s] = await db.select({ id: stills.id, name: stills.name }).from(stills)
-      .where(and(eq(stills.id, input.stillId), eq(stills.workspaceId, ws.id))).limit(1);
+    const [s] = await db
+      .select({ id: stills.id, name: stills.name })
+      .from(stills)
+      .where(and(eq(stills.id, input.stillId), eq(stills.workspaceId, ws.id)))
+      .limit(1);
     if (!s) throw invalid('stillId', 'That still is not in this distillery.');
     stillId = s.id;
     defaultName = s.name;
   } else if (input.scope === 'person') {
     personId = input.personId ?? actor.userId;
     if (personId !== actor.userId && !can(actor.role, 'feeds.manage')) {
-      throw new HttpError(403, 'forbidden', 'You can subscribe to your own runs; a manager can make a feed of someone else\'s.');
+      throw new HttpError(403, 'forbidden', "You can subscribe to your own runs; a manager can make a feed of someone else's.");
     }
-    const [m] = await db.select({ name: users.name }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
-      .where(and(eq(memberships.workspaceId, ws.id), eq(memberships.userId, personId))).limit(1);
+    const [m] = await db
+      .select({ name: users.name })
+      .from(memberships)
+      .innerJoin(users, eq(users.id, memberships.userId))
+      .where(and(eq(memberships.workspaceId, ws.id), eq(memberships.userId, personId)))
+      .limit(1);
     if (!m) throw invalid('personId', 'That person is not a member of this distillery.');
     defaultName = personId === actor.userId ? 'My runs' : `${m.name}'s runs`;
   }
-  const [{ count }] = await db.select({ count: sql<number>`COUNT(*)` }).from(calendarFeeds)
+  const [{ count }] = await db
+    .select({ count: sql<number>`COUNT(*)` })
+    .from(calendarFeeds)
     .where(and(eq(calendarFeeds.workspaceId, ws.id), eq(calendarFeeds.createdBy, actor.userId), isNull(calendarFeeds.revokedAt)));
   if (Number(count) >= MAX_FEEDS_PER_PERSON) {
     throw new HttpError(409, 'too_many', `You already have ${MAX_FEEDS_PER_PERSON} feeds here; revoke one you no longer use first.`);
@@ -241,10 +300,29 @@ export async function createFeed(ctx: Ctx, input: CreateFeedInput): Promise<{ fe
   const token = newToken();
   const name = input.name ?? defaultName;
   const id = await db.transaction(async (tx) => {
-    const [row] = await tx.insert(calendarFeeds).values({
-      workspaceId: ws.id, scope: input.scope, stillId, personId, name, tokenHash: hashToken(token), createdBy: actor.userId,
-    }).$returningId();
-    await audit({ workspaceId: ws.id, userId: actor.userId, action: 'feed.create', entityType: 'calendar_feed', entityId: row!.id, details: { scope: input.scope, stillId, personId, name } }, tx);
+    const [row] = await tx
+      .insert(calendarFeeds)
+      .values({
+        workspaceId: ws.id,
+        scope: input.scope,
+        stillId,
+        personId,
+        name,
+        tokenHash: hashToken(token),
+        createdBy: actor.userId,
+      })
+      .$returningId();
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId: actor.userId,
+        action: 'feed.create',
+        entityType: 'calendar_feed',
+        entityId: row!.id,
+        details: { scope: input.scope, stillId, personId, name },
+      },
+      tx,
+    );
     return row!.id;
   });
   const [feed] = await listFeeds({ ws, actor: { ...actor, role: 'manager' } }, { id });
@@ -256,11 +334,17 @@ export async function createFeed(ctx: Ctx, input: CreateFeedInput): Promise<{ fe
 export async function revokeFeed(ctx: Ctx, id: number): Promise<void> {
   const { ws, actor } = ctx;
   const db = getDb();
-  const [row] = await db.select({ id: calendarFeeds.id, createdBy: calendarFeeds.createdBy }).from(calendarFeeds)
-    .where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, ws.id), isNull(calendarFeeds.revokedAt))).limit(1);
+  const [row] = await db
+    .select({ id: calendarFeeds.id, createdBy: calendarFeeds.createdBy })
+    .from(calendarFeeds)
+    .where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, ws.id), isNull(calendarFeeds.revokedAt)))
+    .limit(1);
   if (!row || (row.createdBy !== actor.userId && !can(actor.role, 'feeds.manage'))) throw notFound('No such feed.');
   await db.transaction(async (tx) => {
-    await tx.update(calendarFeeds).set({ revokedAt: new Date() }).where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, ws.id)));
+    await tx
+      .update(calendarFeeds)
+      .set({ revokedAt: new Date() })
+      .where(and(eq(calendarFeeds.id, id), eq(calendarFeeds.workspaceId, ws.id)));
     await audit({ workspaceId: ws.id, userId: actor.userId, action: 'feed.revoke', entityType: 'calendar_feed', entityId: id }, tx);
   });
 }
@@ -282,12 +366,21 @@ export interface FeedRecord {
  */
 export async function feedForToken(token: string): Promise<FeedRecord | null> {
   if (!TOKEN_SHAPE.test(token)) return null;
-  const [row] = await getDb().select({
-    id: calendarFeeds.id, workspaceId: calendarFeeds.workspaceId, scope: calendarFeeds.scope, stillId: calendarFeeds.stillId,
-    personId: calendarFeeds.personId, name: calendarFeeds.name, lastFetchedAt: calendarFeeds.lastFetchedAt,
-  }).from(calendarFeeds)
-    .leftJoin(holderMember, HOLDER_MEMBER_ON).leftJoin(holderUser, HOLDER_USER_ON)
-    .leftJoin(subjectMember, SUBJECT_MEMBER_ON).leftJoin(subjectUser, SUBJECT_USER_ON)
+  const [row] = await getDb()
+    .select({
+      id: calendarFeeds.id,
+      workspaceId: calendarFeeds.workspaceId,
+      scope: calendarFeeds.scope,
+      stillId: calendarFeeds.stillId,
+      personId: calendarFeeds.personId,
+      name: calendarFeeds.name,
+      lastFetchedAt: calendarFeeds.lastFetchedAt,
+    })
+    .from(calendarFeeds)
+    .leftJoin(holderMember, HOLDER_MEMBER_ON)
+    .leftJoin(holderUser, HOLDER_USER_ON)
+    .leftJoin(subjectMember, SUBJECT_MEMBER_ON)
+    .leftJoin(subjectUser, SUBJECT_USER_ON)
     .where(and(eq(calendarFeeds.tokenHash, hashToken(token)), feedIsLive()))
     .limit(1);
   return row ?? null;
@@ -296,8 +389,15 @@ export async function feedForToken(token: string): Promise<FeedRecord | null> {
 /** Record the fetch, at most every few minutes per feed (a calendar app polls often). */
 export async function stampFetched(feed: FeedRecord, now = new Date()): Promise<void> {
   if (feed.lastFetchedAt && now.getTime() - feed.lastFetchedAt.getTime() < FETCH_STAMP_EVERY_MS) return;
-  await getDb().update(calendarFeeds).set({ lastFetchedAt: now })
-    .where(and(eq(calendarFeeds.id, feed.id), or(isNull(calendarFeeds.lastFetchedAt), lt(calendarFeeds.lastFetchedAt, new Date(now.getTime() - FETCH_STAMP_EVERY_MS)))));
+  await getDb()
+    .update(calendarFeeds)
+    .set({ lastFetchedAt: now })
+    .where(
+      and(
+        eq(calendarFeeds.id, feed.id),
+        or(isNull(calendarFeeds.lastFetchedAt), lt(calendarFeeds.lastFetchedAt, new Date(now.getTime() - FETCH_STAMP_EVERY_MS))),
+      ),
+    );
 }
 
 function uidHost(): string {
@@ -358,11 +458,27 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
 
   const fermentIds = [...new Set([...byId.values(), ...extra.values()].flatMap((r) => r.ferments.map((c) => c.fermentId)))];
   const [fermentRows, forecasts, readingStamps, stillRows] = await Promise.all([
-    fermentIds.length ? db.select({ id: ferments.id, code: ferments.code, volumeLitres: ferments.volumeLitres, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt, updatedAt: ferments.updatedAt })
-      .from(ferments).where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, fermentIds))) : [],
+    fermentIds.length
+      ? db
+          .select({
+            id: ferments.id,
+            code: ferments.code,
+            volumeLitres: ferments.volumeLitres,
+            pitchedAt: ferments.pitchedAt,
+            emptiedAt: ferments.emptiedAt,
+            updatedAt: ferments.updatedAt,
+          })
+          .from(ferments)
+          .where(and(eq(ferments.workspaceId, ws), inArray(ferments.id, fermentIds)))
+      : [],
     getForecasts(ctx, fermentIds, now),
-    fermentIds.length ? db.select({ fermentId: readings.fermentId, at: sql<Date | string>`MAX(${readings.updatedAt})` }).from(readings)
-      .where(and(eq(readings.workspaceId, ws), inArray(readings.fermentId, fermentIds))).groupBy(readings.fermentId) : [],
+    fermentIds.length
+      ? db
+          .select({ fermentId: readings.fermentId, at: sql<Date | string>`MAX(${readings.updatedAt})` })
+          .from(readings)
+          .where(and(eq(readings.workspaceId, ws), inArray(readings.fermentId, fermentIds)))
+          .groupBy(readings.fermentId)
+      : [],
     listStills(ctx, { includeInactive: true }),
   ]);
   const fermentChanged = new Map<number, Date>();
@@ -376,9 +492,16 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
     const fc = forecasts.get(f.id);
     const status = fc?.status ?? 'insufficient_data';
     states.set(f.id, {
-      id: f.id, code: f.code, volumeLitres: f.volumeLitres, pitchedAt: f.pitchedAt, emptiedAt: f.emptiedAt, status,
-      readyAt: fc?.readyAt ?? null, readyP10: fc?.readyP10 ?? null, readyP90: fc?.readyP90 ?? null,
-      confirmedAt: status === 'finished' ? fc?.ruleMetAt ?? null : null,
+      id: f.id,
+      code: f.code,
+      volumeLitres: f.volumeLitres,
+      pitchedAt: f.pitchedAt,
+      emptiedAt: f.emptiedAt,
+      status,
+      readyAt: fc?.readyAt ?? null,
+      readyP10: fc?.readyP10 ?? null,
+      readyP90: fc?.readyP90 ?? null,
+      confirmedAt: status === 'finished' ? (fc?.ruleMetAt ?? null) : null,
     });
   }
   const stillById = new Map(stillRows.map((s) => [s.id, s]));
@@ -393,10 +516,13 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
   const eventStatus = (run: LoadedRun, depth = 0): EventStatus => {
     const known = statusMemo.get(run.id);
     if (known) return known;
-    const feeds = depth > 3 ? [] : run.feeds.map((f) => {
-      const feedRun = all(f.runId);
-      return feedRun ? { runStatus: feedRun.status as RunStatus, eventStatus: eventStatus(feedRun, depth + 1) } : { runStatus: 'cancelled' as RunStatus };
-    });
+    const feeds =
+      depth > 3
+        ? []
+        : run.feeds.map((f) => {
+            const feedRun = all(f.runId);
+            return feedRun ? { runStatus: feedRun.status as RunStatus, eventStatus: eventStatus(feedRun, depth + 1) } : { runStatus: 'cancelled' as RunStatus };
+          });
     const status = runEventStatus({
       runType: run.type as RunType,
       runStatus: run.status as RunStatus,
@@ -408,17 +534,18 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
   };
   const changedAt = (run: LoadedRun, depth = 0): Date => {
     let at = maxDate(run.updatedAt, ...run.ferments.map((c) => fermentChanged.get(c.fermentId)))!;
-    if (depth < 3) for (const f of run.feeds) {
-      const feedRun = all(f.runId);
-      if (feedRun) at = maxDate(at, changedAt(feedRun, depth + 1))!;
-    }
+    if (depth < 3)
+      for (const f of run.feeds) {
+        const feedRun = all(f.runId);
+        if (feedRun) at = maxDate(at, changedAt(feedRun, depth + 1))!;
+      }
     return at;
   };
 
   const scheduleRuns = [...byId.values()];
-  const inScope = scheduleRuns.filter((r) => feed.scope === 'workspace'
-    || (feed.scope === 'still' && r.stillId === feed.stillId)
-    || (feed.scope === 'person' && r.operatorId === feed.personId));
+  const inScope = scheduleRuns.filter(
+    (r) => feed.scope === 'workspace' || (feed.scope === 'still' && r.stillId === feed.stillId) || (feed.scope === 'person' && r.operatorId === feed.personId),
+  );
   inScope.sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime() || a.id - b.id);
 
   const host = uidHost();
@@ -428,9 +555,10 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
     const still = stillById.get(run.stillId);
     const stillName = still?.name ?? 'a retired still';
     // Warnings matter while a run is still to come; a run under way or done keeps its record only.
-    const warnings = still && (run.status === 'planned' || run.status === 'confirmed')
-      ? computeRunWarnings(run, { still: toScheduleStill(still), runs: scheduleRuns, ferments: states, timeZone: wsRow.timeZone, now })
-      : [];
+    const warnings =
+      still && (run.status === 'planned' || run.status === 'confirmed')
+        ? computeRunWarnings(run, { still: toScheduleStill(still), runs: scheduleRuns, ferments: states, timeZone: wsRow.timeZone, now })
+        : [];
     const url = publicUrl(`/runs/${run.id}`);
     const modified = changedAt(run);
     lastModified = maxDate(lastModified, modified)!;
@@ -442,9 +570,20 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
       description: describeRunEvent({
         runType: run.type as RunType,
         stillName,
-        ferments: run.ferments.map((c) => ({ ...(states.get(c.fermentId) ?? { code: `#${c.fermentId}`, status: 'insufficient_data' as const, readyAt: null, readyP10: null, readyP90: null, confirmedAt: null, emptiedAt: null }), litres: c.litres })),
+        ferments: run.ferments.map((c) => ({
+          ...(states.get(c.fermentId) ?? {
+            code: `#${c.fermentId}`,
+            status: 'insufficient_data' as const,
+            readyAt: null,
+            readyP10: null,
+            readyP90: null,
+            confirmedAt: null,
+            emptiedAt: null,
+          }),
+          litres: c.litres,
+        })),
         chargeLitres: runChargeLitres(run),
-        operatorName: run.operatorId !== null ? personName.get(run.operatorId) ?? null : null,
+        operatorName: run.operatorId !== null ? (personName.get(run.operatorId) ?? null) : null,
         warnings,
         url,
         timeZone: wsRow.timeZone,
@@ -469,7 +608,10 @@ export function notModified(headers: Headers, etag: string, lastModified: Date):
   const inm = headers.get('if-none-match');
   if (inm !== null) {
     if (inm.trim() === '*') return true;
-    return inm.split(',').map((t) => t.trim().replace(/^W\//, '')).includes(etag);
+    return inm
+      .split(',')
+      .map((t) => t.trim().replace(/^W\//, ''))
+      .includes(etag);
   }
   const ims = headers.get('if-modified-since');
   if (ims !== null) {

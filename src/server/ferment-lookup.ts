@@ -33,11 +33,25 @@ export interface FermentRecord {
 }
 
 const fermentColumns = {
-  id: ferments.id, code: ferments.code, washTypeId: ferments.washTypeId, washTypeName: washTypes.name, category: washTypes.category,
-  terminalMin: washTypes.terminalMin, terminalMax: washTypes.terminalMax, fermenterId: ferments.fermenterId, fermenterName: fermenters.name,
-  fermenterCapacityLitres: fermenters.capacityLitres, volumeLitres: ferments.volumeLitres, pitchedAt: ferments.pitchedAt, og: ferments.og,
-  yeast: ferments.yeast, notes: ferments.notes, emptiedAt: ferments.emptiedAt, emptiedReason: ferments.emptiedReason,
-  createdAt: ferments.createdAt, updatedAt: ferments.updatedAt,
+  id: ferments.id,
+  code: ferments.code,
+  washTypeId: ferments.washTypeId,
+  washTypeName: washTypes.name,
+  category: washTypes.category,
+  terminalMin: washTypes.terminalMin,
+  terminalMax: washTypes.terminalMax,
+  fermenterId: ferments.fermenterId,
+  fermenterName: fermenters.name,
+  fermenterCapacityLitres: fermenters.capacityLitres,
+  volumeLitres: ferments.volumeLitres,
+  pitchedAt: ferments.pitchedAt,
+  og: ferments.og,
+  yeast: ferments.yeast,
+  notes: ferments.notes,
+  emptiedAt: ferments.emptiedAt,
+  emptiedReason: ferments.emptiedReason,
+  createdAt: ferments.createdAt,
+  updatedAt: ferments.updatedAt,
 };
 
 /** A ferment as the API and the board send it: each instant (a Date field) as its ISO string, as JSON writes it. */
@@ -61,12 +75,18 @@ export async function fermentForPage(ctx: Ctx, param: string | undefined): Promi
 export async function getFerment(ctx: Ctx, id: number): Promise<FermentRecord> {
   const workspaceId = ctx.ws.id;
   const db = getDb();
-  const [row] = await db.select(fermentColumns).from(ferments)
+  const [row] = await db
+    .select(fermentColumns)
+    .from(ferments)
     .innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
     .leftJoin(fermenters, eq(fermenters.id, ferments.fermenterId))
-    .where(and(eq(ferments.id, id), eq(ferments.workspaceId, workspaceId))).limit(1);
+    .where(and(eq(ferments.id, id), eq(ferments.workspaceId, workspaceId)))
+    .limit(1);
   if (!row) throw notFound('No such ferment.');
-  const ingredients = await db.select({ id: fermentIngredients.id, name: fermentIngredients.name, quantityKg: fermentIngredients.quantityKg })
-    .from(fermentIngredients).where(and(eq(fermentIngredients.fermentId, id), eq(fermentIngredients.workspaceId, workspaceId))).orderBy(asc(fermentIngredients.id));
+  const ingredients = await db
+    .select({ id: fermentIngredients.id, name: fermentIngredients.name, quantityKg: fermentIngredients.quantityKg })
+    .from(fermentIngredients)
+    .where(and(eq(fermentIngredients.fermentId, id), eq(fermentIngredients.workspaceId, workspaceId)))
+    .orderBy(asc(fermentIngredients.id));
   return { ...row, ingredients };
 }

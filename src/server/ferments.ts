@@ -17,7 +17,11 @@ import { getForecasts, recomputeForecast, type ForecastSummary } from './forecas
 export { CLOCK_SKEW_MS, parseWorkspaceTime } from './workspace-time';
 export { fermentForPage, fermentJson, getFerment, type FermentRecord } from './ferment-lookup';
 
-const sgField = (what: string) => z.number({ error: `Enter the ${what} as an SG, e.g. 1.060.` }).min(1, `The ${what} must be at least 1.000.`).max(1.2, `The ${what} must be at most 1.200.`);
+const sgField = (what: string) =>
+  z
+    .number({ error: `Enter the ${what} as an SG, e.g. 1.060.` })
+    .min(1, `The ${what} must be at least 1.000.`)
+    .max(1.2, `The ${what} must be at most 1.200.`);
 
 /** A ferment as a person sends it (POST /api/ferments; PATCH takes it partial). */
 export const fermentInputSchema = z.object({
@@ -31,10 +35,15 @@ export const fermentInputSchema = z.object({
   yeast: z.string().trim().max(120).nullable().optional(),
   notes: z.string().max(5000).nullable().optional(),
   /** Quantities in the workspace's mass unit (kg or lb). */
-  ingredients: z.array(z.object({
-    name: z.string().trim().max(120),
-    quantity: z.number({ error: 'Enter the quantity as a number.' }).min(0).max(1_000_000),
-  })).max(30).optional(),
+  ingredients: z
+    .array(
+      z.object({
+        name: z.string().trim().max(120),
+        quantity: z.number({ error: 'Enter the quantity as a number.' }).min(0).max(1_000_000),
+      }),
+    )
+    .max(30)
+    .optional(),
 });
 
 /** Marking a fermenter emptied: the wash went to the still (distilled) or was dumped. */
@@ -68,7 +77,11 @@ export interface FermentListRow {
   forecast: ForecastSummary | null;
 }
 
-export interface FermentFilters { state?: 'active' | 'emptied' | 'all'; washTypeId?: number; fermenterId?: number }
+export interface FermentFilters {
+  state?: 'active' | 'emptied' | 'all';
+  washTypeId?: number;
+  fermenterId?: number;
+}
 
 export async function listFerments(ctx: Ctx, filters: FermentFilters = {}, now = new Date()): Promise<FermentListRow[]> {
   const db = getDb();
@@ -79,25 +92,44 @@ export async function listFerments(ctx: Ctx, filters: FermentFilters = {}, now =
   if (state === 'emptied') conds.push(isNotNull(ferments.emptiedAt));
   if (filters.washTypeId) conds.push(eq(ferments.washTypeId, filters.washTypeId));
   if (filters.fermenterId) conds.push(eq(ferments.fermenterId, filters.fermenterId));
-  const rows = await db.select({
-    id: ferments.id, code: ferments.code, washTypeId: ferments.washTypeId, washTypeName: washTypes.name, fermenterId: ferments.fermenterId,
-    fermenterName: fermenters.name, volumeLitres: ferments.volumeLitres, pitchedAt: ferments.pitchedAt, og: ferments.og,
-    emptiedAt: ferments.emptiedAt, emptiedReason: ferments.emptiedReason,
-  }).from(ferments)
+  const rows = await db
+    .select({
+      id: ferments.id,
+      code: ferments.code,
+      washTypeId: ferments.washTypeId,
+      washTypeName: washTypes.name,
+      fermenterId: ferments.fermenterId,
+      fermenterName: fermenters.name,
+      volumeLitres: ferments.volumeLitres,
+      pitchedAt: ferments.pitchedAt,
+      og: ferments.og,
+      emptiedAt: ferments.emptiedAt,
+      emptiedReason: ferments.emptiedReason,
+    })
+    .from(ferments)
     .innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
     .leftJoin(fermenters, eq(fermenters.id, ferments.fermenterId))
-    .where(and(...conds)).orderBy(desc(ferments.pitchedAt)).limit(500);
+    .where(and(...conds))
+    .orderBy(desc(ferments.pitchedAt))
+    .limit(500);
   if (rows.length === 0) return [];
-  const [latest] = await db.execute(sql`
+  const [latest] = (await db.execute(sql`
     SELECT r.ferment_id AS fermentId, r.taken_at AS takenAt, r.corrected_sg AS sg, x.n AS n
     FROM ${readings} r
     JOIN (SELECT ferment_id, MAX(taken_at) AS m, COUNT(*) AS n FROM ${readings}
           WHERE workspace_id = ${workspaceId} AND deleted_at IS NULL GROUP BY ferment_id) x
       ON x.ferment_id = r.ferment_id AND x.m = r.taken_at
-    WHERE r.workspace_id = ${workspaceId} AND r.deleted_at IS NULL`) as unknown as [Array<{ fermentId: number; takenAt: Date | string; sg: number; n: number }>];
+    WHERE r.workspace_id = ${workspaceId} AND r.deleted_at IS NULL`)) as unknown as [
+    Array<{ fermentId: number; takenAt: Date | string; sg: number; n: number }>,
+  ];
   const last = new Map<number, { takenAt: Date; sg: number; n: number }>();
-  for (const r of latest) last.set(Number(r.fermentId), { takenAt: new Date(r.takenAt instanceof Date ? r.takenAt : `${r.takenAt}Z`), sg: Number(r.sg), n: Number(r.n) });
-  const forecasts = await getForecasts(ctx, rows.map((r) => r.id), now);
+  for (const r of latest)
+    last.set(Number(r.fermentId), { takenAt: new Date(r.takenAt instanceof Date ? r.takenAt : `${r.takenAt}Z`), sg: Number(r.sg), n: Number(r.n) });
+  const forecasts = await getForecasts(
+    ctx,
+    rows.map((r) => r.id),
+    now,
+  );
   return rows.map((r) => {
     const l = last.get(r.id);
     return { ...r, lastReadingAt: l?.takenAt ?? null, lastSg: l?.sg ?? null, readingCount: l?.n ?? 0, forecast: forecasts.get(r.id) ?? null };
@@ -110,11 +142,19 @@ export type FermentInput = z.infer<typeof fermentInputSchema>;
 async function checkRefs(ws: Ctx['ws'], input: Partial<FermentInput>, volumeLitres: number | undefined): Promise<void> {
   const db = getDb();
   if (input.washTypeId !== undefined) {
-    const [w] = await db.select({ id: washTypes.id }).from(washTypes).where(and(eq(washTypes.id, input.washTypeId), eq(washTypes.workspaceId, ws.id))).limit(1);
+    const [w] = await db
+      .select({ id: washTypes.id })
+      .from(washTypes)
+      .where(and(eq(washTypes.id, input.washTypeId), eq(washTypes.workspaceId, ws.id)))
+      .limit(1);
     if (!w) throw invalid('washTypeId', 'Choose a wash type of this distillery.');
   }
   if (input.fermenterId) {
-    const [f] = await db.select().from(fermenters).where(and(eq(fermenters.id, input.fermenterId), eq(fermenters.workspaceId, ws.id))).limit(1);
+    const [f] = await db
+      .select()
+      .from(fermenters)
+      .where(and(eq(fermenters.id, input.fermenterId), eq(fermenters.workspaceId, ws.id)))
+      .limit(1);
     if (!f) throw invalid('fermenterId', 'Choose a fermenter of this distillery.');
     if (volumeLitres !== undefined && volumeLitres > f.capacityLitres * 1.0001) {
       throw invalid('volume', `${f.name} holds at most ${Math.floor(volumeForDisplay(f.capacityLitres, ws.units))} ${volumeUnitFor(ws.units)}.`);
@@ -123,7 +163,10 @@ async function checkRefs(ws: Ctx['ws'], input: Partial<FermentInput>, volumeLitr
 }
 
 async function checkCode(workspaceId: number, code: string, exceptId?: number): Promise<void> {
-  const same = await getDb().select({ id: ferments.id }).from(ferments).where(and(eq(ferments.workspaceId, workspaceId), eq(ferments.code, code)));
+  const same = await getDb()
+    .select({ id: ferments.id })
+    .from(ferments)
+    .where(and(eq(ferments.workspaceId, workspaceId), eq(ferments.code, code)));
   if (same.some((r) => r.id !== exceptId)) {
     throw new HttpError(409, 'conflict', `Code ${code} is already used by another ferment.`, { code: `Code ${code} is already used by another ferment.` });
   }
@@ -131,8 +174,14 @@ async function checkCode(workspaceId: number, code: string, exceptId?: number): 
 
 /** A fermenter holds one ferment at a time: lock its row, then look for an active ferment in it. */
 async function claimFermenter(tx: Tx, workspaceId: number, fermenterId: number, exceptFermentId?: number): Promise<void> {
-  await tx.select({ id: fermenters.id }).from(fermenters).where(and(eq(fermenters.id, fermenterId), eq(fermenters.workspaceId, workspaceId))).for('update');
-  const busy = await tx.select({ id: ferments.id, code: ferments.code, name: fermenters.name }).from(ferments)
+  await tx
+    .select({ id: fermenters.id })
+    .from(fermenters)
+    .where(and(eq(fermenters.id, fermenterId), eq(fermenters.workspaceId, workspaceId)))
+    .for('update');
+  const busy = await tx
+    .select({ id: ferments.id, code: ferments.code, name: fermenters.name })
+    .from(ferments)
     .innerJoin(fermenters, eq(fermenters.id, ferments.fermenterId))
     .where(and(eq(ferments.workspaceId, workspaceId), eq(ferments.fermenterId, fermenterId), isNull(ferments.emptiedAt)));
   const other = busy.find((b) => b.id !== exceptFermentId);
@@ -147,7 +196,10 @@ function checkPitch(pitchedAt: Date, now: Date): void {
 }
 
 export async function createFerment(ctx: Ctx, input: FermentInput, now = new Date()): Promise<FermentRecord> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const volumeLitres = parseVolumeToLitres(input.volume, volumeUnitFor(ws.units));
   const pitchedAt = parseWorkspaceTime(input.pitchedAt, ws.timeZone, 'pitchedAt');
   checkPitch(pitchedAt, now);
@@ -156,18 +208,44 @@ export async function createFerment(ctx: Ctx, input: FermentInput, now = new Dat
   const db = getDb();
   const id = await db.transaction(async (tx) => {
     if (input.fermenterId) await claimFermenter(tx, ws.id, input.fermenterId);
-    const [row] = await tx.insert(ferments).values({
-      workspaceId: ws.id, code: input.code, washTypeId: input.washTypeId, fermenterId: input.fermenterId, volumeLitres, pitchedAt,
-      og: input.og, yeast: input.yeast || null, notes: input.notes || null, createdBy: userId,
-    }).$returningId();
+    const [row] = await tx
+      .insert(ferments)
+      .values({
+        workspaceId: ws.id,
+        code: input.code,
+        washTypeId: input.washTypeId,
+        fermenterId: input.fermenterId,
+        volumeLitres,
+        pitchedAt,
+        og: input.og,
+        yeast: input.yeast || null,
+        notes: input.notes || null,
+        createdBy: userId,
+      })
+      .$returningId();
     const fid = row!.id;
     const ingredients = (input.ingredients ?? []).filter((i) => i.name.trim() !== '');
     if (ingredients.length) {
-      await tx.insert(fermentIngredients).values(ingredients.map((i) => ({
-        workspaceId: ws.id, fermentId: fid, name: i.name.trim(), quantityKg: parseMassToKg(i.quantity, massUnitFor(ws.units)),
-      })));
+      await tx.insert(fermentIngredients).values(
+        ingredients.map((i) => ({
+          workspaceId: ws.id,
+          fermentId: fid,
+          name: i.name.trim(),
+          quantityKg: parseMassToKg(i.quantity, massUnitFor(ws.units)),
+        })),
+      );
     }
-    await audit({ workspaceId: ws.id, userId, action: 'ferment.create', entityType: 'ferment', entityId: fid, details: { code: input.code, volumeLitres, og: input.og, pitchedAt: pitchedAt.toISOString() } }, tx);
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId,
+        action: 'ferment.create',
+        entityType: 'ferment',
+        entityId: fid,
+        details: { code: input.code, volumeLitres, og: input.og, pitchedAt: pitchedAt.toISOString() },
+      },
+      tx,
+    );
     return fid;
   });
   await recomputeForecast(ctx, id, now);
@@ -175,54 +253,92 @@ export async function createFerment(ctx: Ctx, input: FermentInput, now = new Dat
 }
 
 export async function updateFerment(ctx: Ctx, id: number, input: Partial<FermentInput>, now = new Date()): Promise<FermentRecord> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const before = await getFerment(ctx, id);
   const patch: Partial<typeof ferments.$inferInsert> = {};
-  if (input.code !== undefined && input.code !== before.code) { await checkCode(ws.id, input.code, id); patch.code = input.code; }
+  if (input.code !== undefined && input.code !== before.code) {
+    await checkCode(ws.id, input.code, id);
+    patch.code = input.code;
+  }
   if (input.washTypeId !== undefined) patch.washTypeId = input.washTypeId;
   if (input.fermenterId !== undefined) patch.fermenterId = input.fermenterId;
   if (input.volume !== undefined) patch.volumeLitres = parseVolumeToLitres(input.volume, volumeUnitFor(ws.units));
   if (input.pitchedAt !== undefined) {
     patch.pitchedAt = parseWorkspaceTime(input.pitchedAt, ws.timeZone, 'pitchedAt');
     checkPitch(patch.pitchedAt, now);
-    const [first] = await getDb().select({ takenAt: readings.takenAt }).from(readings)
-      .where(and(eq(readings.fermentId, id), eq(readings.workspaceId, ws.id), isNull(readings.deletedAt))).orderBy(asc(readings.takenAt)).limit(1);
+    const [first] = await getDb()
+      .select({ takenAt: readings.takenAt })
+      .from(readings)
+      .where(and(eq(readings.fermentId, id), eq(readings.workspaceId, ws.id), isNull(readings.deletedAt)))
+      .orderBy(asc(readings.takenAt))
+      .limit(1);
     if (first && first.takenAt.getTime() < patch.pitchedAt.getTime()) throw invalid('pitchedAt', 'The pitch time cannot be after the first reading.');
   }
   if (input.og !== undefined) patch.og = input.og;
   if (input.yeast !== undefined) patch.yeast = input.yeast || null;
   if (input.notes !== undefined) patch.notes = input.notes || null;
-  await checkRefs(ws, { ...input, fermenterId: input.fermenterId === undefined ? before.fermenterId : input.fermenterId }, patch.volumeLitres ?? before.volumeLitres);
+  await checkRefs(
+    ws,
+    { ...input, fermenterId: input.fermenterId === undefined ? before.fermenterId : input.fermenterId },
+    patch.volumeLitres ?? before.volumeLitres,
+  );
   const db = getDb();
   await db.transaction(async (tx) => {
     const fermenterId = input.fermenterId === undefined ? before.fermenterId : input.fermenterId;
     if (fermenterId && !before.emptiedAt && fermenterId !== before.fermenterId) await claimFermenter(tx, ws.id, fermenterId, id);
-    if (Object.keys(patch).length) await tx.update(ferments).set(patch).where(and(eq(ferments.id, id), eq(ferments.workspaceId, ws.id)));
+    if (Object.keys(patch).length)
+      await tx
+        .update(ferments)
+        .set(patch)
+        .where(and(eq(ferments.id, id), eq(ferments.workspaceId, ws.id)));
     if (input.ingredients !== undefined) {
       await tx.delete(fermentIngredients).where(and(eq(fermentIngredients.fermentId, id), eq(fermentIngredients.workspaceId, ws.id)));
       const ingredients = input.ingredients.filter((i) => i.name.trim() !== '');
       if (ingredients.length) {
-        await tx.insert(fermentIngredients).values(ingredients.map((i) => ({
-          workspaceId: ws.id, fermentId: id, name: i.name.trim(), quantityKg: parseMassToKg(i.quantity, massUnitFor(ws.units)),
-        })));
+        await tx.insert(fermentIngredients).values(
+          ingredients.map((i) => ({
+            workspaceId: ws.id,
+            fermentId: id,
+            name: i.name.trim(),
+            quantityKg: parseMassToKg(i.quantity, massUnitFor(ws.units)),
+          })),
+        );
       }
     }
     // OG and pitch time feed the refractometer correction: re-derive the corrected values.
     if (patch.og !== undefined || patch.pitchedAt !== undefined) {
       await recorrectFermentReadings(ctx, tx, { id, og: patch.og ?? before.og, pitchedAt: patch.pitchedAt ?? before.pitchedAt });
     }
-    const pick = (o: Record<string, unknown>) => Object.fromEntries(Object.keys(patch).map((k) => [k, o[k] instanceof Date ? (o[k] as Date).toISOString() : o[k]]));
-    await audit({
-      workspaceId: ws.id, userId, action: 'ferment.update', entityType: 'ferment', entityId: id,
-      details: { before: pick(before as unknown as Record<string, unknown>), after: pick(patch as Record<string, unknown>), ingredientsChanged: input.ingredients !== undefined },
-    }, tx);
+    const pick = (o: Record<string, unknown>) =>
+      Object.fromEntries(Object.keys(patch).map((k) => [k, o[k] instanceof Date ? (o[k] as Date).toISOString() : o[k]]));
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId,
+        action: 'ferment.update',
+        entityType: 'ferment',
+        entityId: id,
+        details: {
+          before: pick(before as unknown as Record<string, unknown>),
+          after: pick(patch as Record<string, unknown>),
+          ingredientsChanged: input.ingredients !== undefined,
+        },
+      },
+      tx,
+    );
   });
   await recomputeForecast(ctx, id, now);
   return getFerment(ctx, id);
 }
 
 export async function emptyFerment(ctx: Ctx, id: number, input: z.infer<typeof emptyInputSchema>, now = new Date()): Promise<FermentRecord> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const before = await getFerment(ctx, id);
   if (before.emptiedAt) throw conflict(`${before.code} was already marked emptied.`);
   const at = input.at ? parseWorkspaceTime(input.at, ws.timeZone, 'at') : now;
@@ -230,12 +346,23 @@ export async function emptyFerment(ctx: Ctx, id: number, input: z.infer<typeof e
   if (at.getTime() < before.pitchedAt.getTime()) throw invalid('at', 'That time is before the ferment was pitched.');
   const db = getDb();
   await db.transaction(async (tx) => {
-    const res = await tx.update(ferments).set({ emptiedAt: at, emptiedReason: input.reason })
+    const res = await tx
+      .update(ferments)
+      .set({ emptiedAt: at, emptiedReason: input.reason })
       .where(and(eq(ferments.id, id), eq(ferments.workspaceId, ws.id), isNull(ferments.emptiedAt)));
     if ((res as unknown as [{ affectedRows: number }])[0].affectedRows !== 1) throw conflict(`${before.code} was already marked emptied.`);
-    await audit({ workspaceId: ws.id, userId, action: 'ferment.empty', entityType: 'ferment', entityId: id, details: { reason: input.reason, at: at.toISOString(), fermenterId: before.fermenterId } }, tx);
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId,
+        action: 'ferment.empty',
+        entityType: 'ferment',
+        entityId: id,
+        details: { reason: input.reason, at: at.toISOString(), fermenterId: before.fermenterId },
+      },
+      tx,
+    );
   });
   await recomputeForecast(ctx, id, now);
   return getFerment(ctx, id);
 }
-

@@ -27,7 +27,13 @@ const DAY_MS = 24 * HOUR_MS;
 export const HISTORY_LIMIT = 20;
 
 /** A finished ferment of the workspace: when it was pitched, confirmed stable and emptied. */
-interface FinishedFerment { id: number; washTypeId: number; pitchedAt: Date; ruleMetAt: Date; emptiedAt: Date }
+interface FinishedFerment {
+  id: number;
+  washTypeId: number;
+  pitchedAt: Date;
+  ruleMetAt: Date;
+  emptiedAt: Date;
+}
 
 /**
  * The wash type's past pitch-to-stable durations (days) that were known at `asOf`: ferments of
@@ -55,9 +61,19 @@ interface FermentInputs {
   terminalMax: number;
 }
 
-interface ReadingInput { id: number; takenAt: Date; correctedSg: number; lowConfidence: boolean; ph: number | null; updatedAt: Date }
+interface ReadingInput {
+  id: number;
+  takenAt: Date;
+  correctedSg: number;
+  lowConfidence: boolean;
+  ph: number | null;
+  updatedAt: Date;
+}
 
-interface Settings { stableDays: number; stableTolerance: number }
+interface Settings {
+  stableDays: number;
+  stableTolerance: number;
+}
 
 /**
  * Cache key of a forecast: the readings (ids, times, values, edits), the ferment's OG and
@@ -70,7 +86,19 @@ export function forecastInputKey(f: FermentInputs, rs: ReadingInput[], s: Settin
   const asOf = effectiveNow(f, now);
   const bucket = f.emptiedAt ? 'emptied' : String(Math.floor(asOf.getTime() / HOUR_MS));
   const h = createHash('sha256');
-  h.update(JSON.stringify([f.og, f.pitchedAt.getTime(), f.emptiedAt?.getTime() ?? null, f.terminalMin, f.terminalMax, s.stableDays, s.stableTolerance, bucket, history.map((d) => Math.round(d * 1e4))]));
+  h.update(
+    JSON.stringify([
+      f.og,
+      f.pitchedAt.getTime(),
+      f.emptiedAt?.getTime() ?? null,
+      f.terminalMin,
+      f.terminalMax,
+      s.stableDays,
+      s.stableTolerance,
+      bucket,
+      history.map((d) => Math.round(d * 1e4)),
+    ]),
+  );
   for (const r of [...rs].sort((a, b) => a.id - b.id)) {
     h.update(`|${r.id},${r.takenAt.getTime()},${r.correctedSg},${r.lowConfidence ? 1 : 0},${r.ph ?? ''},${r.updatedAt.getTime()}`);
   }
@@ -115,8 +143,15 @@ function revive(payload: ForecastPayload): Forecast {
 
 function summaryOf(fermentId: number, f: Forecast): ForecastSummary {
   return {
-    fermentId, status: f.status, reason: f.reason, readyAt: f.readyAt, readyP10: f.readyP10, readyP90: f.readyP90,
-    ruleMetAt: f.ruleMetAt, predictedFg: f.predictedFg?.value ?? null, lastSg: f.lastSg,
+    fermentId,
+    status: f.status,
+    reason: f.reason,
+    readyAt: f.readyAt,
+    readyP10: f.readyP10,
+    readyP90: f.readyP90,
+    ruleMetAt: f.ruleMetAt,
+    predictedFg: f.predictedFg?.value ?? null,
+    lastSg: f.lastSg,
   };
 }
 
@@ -125,46 +160,103 @@ async function loadAll(ctx: Ctx, fermentIds: number[]) {
   const workspaceId = ctx.ws.id;
   const settings: Settings = { stableDays: ctx.ws.stableDays, stableTolerance: ctx.ws.stableTolerance };
   if (fermentIds.length === 0) return { settings, fs: [], byFerment: new Map<number, ReadingInput[]>(), cached: new Map(), finished: [] as FinishedFerment[] };
-  const fs: FermentInputs[] = await db.select({
-    id: ferments.id, washTypeId: ferments.washTypeId, og: ferments.og, pitchedAt: ferments.pitchedAt, emptiedAt: ferments.emptiedAt, updatedAt: ferments.updatedAt,
-    terminalMin: washTypes.terminalMin, terminalMax: washTypes.terminalMax,
-  }).from(ferments).innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
+  const fs: FermentInputs[] = await db
+    .select({
+      id: ferments.id,
+      washTypeId: ferments.washTypeId,
+      og: ferments.og,
+      pitchedAt: ferments.pitchedAt,
+      emptiedAt: ferments.emptiedAt,
+      updatedAt: ferments.updatedAt,
+      terminalMin: washTypes.terminalMin,
+      terminalMax: washTypes.terminalMax,
+    })
+    .from(ferments)
+    .innerJoin(washTypes, eq(washTypes.id, ferments.washTypeId))
     .where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, fermentIds)));
-  const rs = await db.select({
-    fermentId: readings.fermentId, id: readings.id, takenAt: readings.takenAt, correctedSg: readings.correctedSg,
-    lowConfidence: readings.lowConfidence, ph: readings.ph, updatedAt: readings.updatedAt,
-  }).from(readings).where(and(eq(readings.workspaceId, workspaceId), inArray(readings.fermentId, fermentIds), isNull(readings.deletedAt)));
+  const rs = await db
+    .select({
+      fermentId: readings.fermentId,
+      id: readings.id,
+      takenAt: readings.takenAt,
+      correctedSg: readings.correctedSg,
+      lowConfidence: readings.lowConfidence,
+      ph: readings.ph,
+      updatedAt: readings.updatedAt,
+    })
+    .from(readings)
+    .where(and(eq(readings.workspaceId, workspaceId), inArray(readings.fermentId, fermentIds), isNull(readings.deletedAt)));
   const byFerment = new Map<number, ReadingInput[]>();
   for (const r of rs) {
     const list = byFerment.get(r.fermentId) ?? [];
     list.push(r);
     byFerment.set(r.fermentId, list);
   }
-  const cachedRows = await db.select().from(fermentForecasts)
+  const cachedRows = await db
+    .select()
+    .from(fermentForecasts)
     .where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, fermentIds)));
   const cached = new Map(cachedRows.map((c) => [c.fermentId, c]));
   const types = [...new Set(fs.map((f) => f.washTypeId))];
-  const finished = types.length === 0 ? [] : (await db.select({
-    id: ferments.id, washTypeId: ferments.washTypeId, pitchedAt: ferments.pitchedAt, ruleMetAt: fermentForecasts.ruleMetAt, emptiedAt: ferments.emptiedAt,
-  }).from(ferments).innerJoin(fermentForecasts, eq(fermentForecasts.fermentId, ferments.id))
-    .where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.washTypeId, types), isNotNull(ferments.emptiedAt), isNotNull(fermentForecasts.ruleMetAt)))
-    .orderBy(desc(ferments.emptiedAt)).limit(HISTORY_LIMIT * 10 * types.length)) as FinishedFerment[];
+  const finished =
+    types.length === 0
+      ? []
+      : ((await db
+          .select({
+            id: ferments.id,
+            washTypeId: ferments.washTypeId,
+            pitchedAt: ferments.pitchedAt,
+            ruleMetAt: fermentForecasts.ruleMetAt,
+            emptiedAt: ferments.emptiedAt,
+          })
+          .from(ferments)
+          .innerJoin(fermentForecasts, eq(fermentForecasts.fermentId, ferments.id))
+          .where(
+            and(
+              eq(ferments.workspaceId, workspaceId),
+              inArray(ferments.washTypeId, types),
+              isNotNull(ferments.emptiedAt),
+              isNotNull(fermentForecasts.ruleMetAt),
+            ),
+          )
+          .orderBy(desc(ferments.emptiedAt))
+          .limit(HISTORY_LIMIT * 10 * types.length)) as FinishedFerment[]);
   return { settings, fs, byFerment, cached, finished };
 }
 
 async function store(workspaceId: number, fermentId: number, key: string, f: Forecast, now: Date): Promise<void> {
   const db = getDb();
   const row = {
-    workspaceId, inputKey: key, status: f.status, readyAt: f.readyAt, readyP10: f.readyP10, readyP90: f.readyP90,
-    ruleMetAt: f.ruleMetAt, predictedFg: f.predictedFg?.value ?? null, payload: f as unknown, computedAt: now,
+    workspaceId,
+    inputKey: key,
+    status: f.status,
+    readyAt: f.readyAt,
+    readyP10: f.readyP10,
+    readyP90: f.readyP90,
+    ruleMetAt: f.ruleMetAt,
+    predictedFg: f.predictedFg?.value ?? null,
+    payload: f as unknown,
+    computedAt: now,
   };
-  await db.insert(fermentForecasts).values({ fermentId, ...row }).onDuplicateKeyUpdate({ set: row });
-  const [last] = await db.select({ asOf: forecastHistory.asOf }).from(forecastHistory)
+  await db
+    .insert(fermentForecasts)
+    .values({ fermentId, ...row })
+    .onDuplicateKeyUpdate({ set: row });
+  const [last] = await db
+    .select({ asOf: forecastHistory.asOf })
+    .from(forecastHistory)
     .where(and(eq(forecastHistory.workspaceId, workspaceId), eq(forecastHistory.fermentId, fermentId)))
-    .orderBy(desc(forecastHistory.asOf)).limit(1);
+    .orderBy(desc(forecastHistory.asOf))
+    .limit(1);
   if (!last || now.getTime() - last.asOf.getTime() >= HISTORY_EVERY_MS) {
     await db.insert(forecastHistory).values({
-      workspaceId, fermentId, asOf: now, status: f.status, readyAt: f.readyAt, readyP10: f.readyP10, readyP90: f.readyP90,
+      workspaceId,
+      fermentId,
+      asOf: now,
+      status: f.status,
+      readyAt: f.readyAt,
+      readyP10: f.readyP10,
+      readyP90: f.readyP90,
     });
   }
 }
@@ -186,7 +278,8 @@ async function forecastsFor(ctx: Ctx, fermentIds: number[], now: Date, force = f
     }
     const forecast = compute(f, rs, settings, now, history);
     await store(workspaceId, f.id, key, forecast, now);
-    if (hit?.status !== forecast.status) await notifyFermentStatusChange(getDb(), { workspaceId, fermentId: f.id, before: hit?.status ?? null, after: forecast.status });
+    if (hit?.status !== forecast.status)
+      await notifyFermentStatusChange(getDb(), { workspaceId, fermentId: f.id, before: hit?.status ?? null, after: forecast.status });
     out.set(f.id, forecast);
   }
   return out;
@@ -227,9 +320,15 @@ export async function replayForecastHistory(ctx: Ctx, fermentIds: number[], now:
   const ids = [...new Set(fermentIds)];
   if (!ids.length) return 0;
   const db = getDb();
-  const firstRecorded = new Map((await db.select({ id: forecastHistory.fermentId, first: sql<string | Date>`MIN(${forecastHistory.asOf})` }).from(forecastHistory)
-    .where(and(eq(forecastHistory.workspaceId, workspaceId), inArray(forecastHistory.fermentId, ids))).groupBy(forecastHistory.fermentId))
-    .map((r) => [r.id, r.first instanceof Date ? r.first.getTime() : Date.parse(`${String(r.first).replace(' ', 'T')}Z`)]));
+  const firstRecorded = new Map(
+    (
+      await db
+        .select({ id: forecastHistory.fermentId, first: sql<string | Date>`MIN(${forecastHistory.asOf})` })
+        .from(forecastHistory)
+        .where(and(eq(forecastHistory.workspaceId, workspaceId), inArray(forecastHistory.fermentId, ids)))
+        .groupBy(forecastHistory.fermentId)
+    ).map((r) => [r.id, r.first instanceof Date ? r.first.getTime() : Date.parse(`${String(r.first).replace(' ', 'T')}Z`)]),
+  );
   const { settings, fs, byFerment, finished } = await loadAll(ctx, ids);
   const rows: Array<typeof forecastHistory.$inferInsert> = [];
   for (const f of fs) {

@@ -22,7 +22,13 @@ export function json(data: unknown, status = 200, headers: Record<string, string
 
 /** Thrown from server/ code to answer with a specific status. */
 export class HttpError extends Error {
-  constructor(public status: number, public code: string, message: string, public fields?: Record<string, string>, public extra?: Record<string, unknown>) {
+  constructor(
+    public status: number,
+    public code: string,
+    message: string,
+    public fields?: Record<string, string>,
+    public extra?: Record<string, unknown>,
+  ) {
     super(message);
   }
 }
@@ -53,9 +59,11 @@ export const MAX_JSON_BYTES = 256 * 1024;
 type Params = Record<string, string | undefined>;
 
 /** What a route's handler receives, by the route's `auth`. */
-export type RouteArgs<A, B, Q> = { req: APIContext; body: B; query: Q; params: Params } & (
-  A extends 'public' ? { ctx?: undefined } : A extends 'user' ? { me: UserCtx } : { ctx: Ctx }
-);
+export type RouteArgs<A, B, Q> = { req: APIContext; body: B; query: Q; params: Params } & (A extends 'public'
+  ? { ctx?: undefined }
+  : A extends 'user'
+    ? { me: UserCtx }
+    : { ctx: Ctx });
 
 export interface RouteOptions<A extends Action | 'user' | 'public', B, Q> {
   /** An action from authz.ts (a role in this workspace may take it), 'user' (any signed-in person), or 'public'. */
@@ -217,7 +225,11 @@ export async function readBody(request: Request, limit = MAX_JSON_BYTES): Promis
   }
   const text = await readLimitedText(request, limit);
   if (text === null) throw tooLarge(limit);
-  try { return { raw: text.length ? JSON.parse(text) : {}, isForm }; } catch { throw new HttpError(400, 'invalid_json', 'The request body is not valid JSON.'); }
+  try {
+    return { raw: text.length ? JSON.parse(text) : {}, isForm };
+  } catch {
+    throw new HttpError(400, 'invalid_json', 'The request body is not valid JSON.');
+  }
 }
 
 /** Route params are ids: positive integers, else 404 (an id that cannot exist is not found). */

@@ -26,7 +26,16 @@ export const MAILBOX_PAGE_SIZE = 100;
 
 export async function listWorkspaceMail(workspaceId: number, limit = MAILBOX_PAGE_SIZE): Promise<MailboxEntry[]> {
   const rows = await getDb()
-    .select({ id: mailOutbox.id, kind: mailOutbox.kind, to: mailOutbox.toAddress, subject: mailOutbox.subject, text: mailOutbox.textBody, status: mailOutbox.status, queuedAt: mailOutbox.createdAt, sentAt: mailOutbox.sentAt })
+    .select({
+      id: mailOutbox.id,
+      kind: mailOutbox.kind,
+      to: mailOutbox.toAddress,
+      subject: mailOutbox.subject,
+      text: mailOutbox.textBody,
+      status: mailOutbox.status,
+      queuedAt: mailOutbox.createdAt,
+      sentAt: mailOutbox.sentAt,
+    })
     .from(mailOutbox)
     .where(eq(mailOutbox.workspaceId, workspaceId))
     .orderBy(desc(mailOutbox.id))

@@ -40,24 +40,32 @@ export interface NotifyKindInfo {
 
 export const NOTIFY_KIND_INFO: readonly NotifyKindInfo[] = [
   {
-    kind: 'ferment_trouble', label: 'A ferment stalls or sours',
+    kind: 'ferment_trouble',
+    label: 'A ferment stalls or sours',
     hint: 'When the readings show a wash stuck above its finishing range, or signs of souring, with the runs it puts at risk.',
-    roles: ['manager', 'planner', 'distiller'], onByDefault: ['manager', 'planner'],
+    roles: ['manager', 'planner', 'distiller'],
+    onByDefault: ['manager', 'planner'],
   },
   {
-    kind: 'run_early', label: 'A run is booked before its wash is ready',
+    kind: 'run_early',
+    label: 'A run is booked before its wash is ready',
     hint: 'When someone books or moves a run to start before the predicted ready time of a wash it takes.',
-    roles: ['manager', 'planner'], onByDefault: ['planner'],
+    roles: ['manager', 'planner'],
+    onByDefault: ['planner'],
   },
   {
-    kind: 'run_changes', label: 'My runs change',
+    kind: 'run_changes',
+    label: 'My runs change',
     hint: 'When a run you operate is moved, cancelled or handed to someone else; planners hear about every run.',
-    roles: ['manager', 'planner', 'distiller', 'staff'], onByDefault: ['manager', 'planner', 'distiller', 'staff'],
+    roles: ['manager', 'planner', 'distiller', 'staff'],
+    onByDefault: ['manager', 'planner', 'distiller', 'staff'],
   },
   {
-    kind: 'digest', label: 'Daily digest',
+    kind: 'digest',
+    label: 'Daily digest',
     hint: "Today's and tomorrow's runs, at 06:00 distillery time.",
-    roles: ['manager', 'planner', 'distiller', 'staff'], onByDefault: [],
+    roles: ['manager', 'planner', 'distiller', 'staff'],
+    onByDefault: [],
   },
 ];
 
@@ -75,8 +83,11 @@ export function effectivePrefs(role: Role, stored: Record<string, boolean> | nul
 }
 
 export async function getNotifyPrefs(ctx: Ctx): Promise<{ role: Role; prefs: NotifyPrefs; kinds: NotifyKindInfo[] } | null> {
-  const [m] = await getDb().select({ role: memberships.role, prefs: memberships.notifyPrefs }).from(memberships)
-    .where(and(eq(memberships.workspaceId, ctx.ws.id), eq(memberships.userId, ctx.actor.userId))).limit(1);
+  const [m] = await getDb()
+    .select({ role: memberships.role, prefs: memberships.notifyPrefs })
+    .from(memberships)
+    .where(and(eq(memberships.workspaceId, ctx.ws.id), eq(memberships.userId, ctx.actor.userId)))
+    .limit(1);
   if (!m) return null;
   return { role: m.role, prefs: effectivePrefs(m.role, m.prefs), kinds: NOTIFY_KIND_INFO.filter((i) => i.roles.includes(m.role)) };
 }
@@ -87,25 +98,40 @@ export async function setNotifyPrefs(ctx: Ctx, changes: Partial<Record<NotifyKin
   const userId = ctx.actor.userId;
   const db = getDb();
   return db.transaction(async (tx) => {
-    const [m] = await tx.select({ role: memberships.role, prefs: memberships.notifyPrefs }).from(memberships)
-      .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId))).for('update').limit(1);
+    const [m] = await tx
+      .select({ role: memberships.role, prefs: memberships.notifyPrefs })
+      .from(memberships)
+      .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
+      .for('update')
+      .limit(1);
     if (!m) throw new Error('not a member');
     const next: Record<string, boolean> = { ...(m.prefs ?? {}) };
     for (const [kind, on] of Object.entries(changes) as Array<[NotifyKind, boolean | undefined]>) {
       const info = INFO.get(kind);
       if (info && info.roles.includes(m.role) && typeof on === 'boolean') next[kind] = on;
     }
-    await tx.update(memberships).set({ notifyPrefs: next }).where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)));
+    await tx
+      .update(memberships)
+      .set({ notifyPrefs: next })
+      .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)));
     return effectivePrefs(m.role, next);
   });
 }
 
-export interface Member { id: number; email: string; name: string; role: Role; prefs: NotifyPrefs }
+export interface Member {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  prefs: NotifyPrefs;
+}
 
 /** Active members of a workspace with their effective preferences. */
 export async function membersOf(db: Pick<Db, 'select'>, workspaceId: number): Promise<Member[]> {
-  const rows = await db.select({ id: users.id, email: users.email, name: users.name, role: memberships.role, prefs: memberships.notifyPrefs })
-    .from(memberships).innerJoin(users, eq(users.id, memberships.userId))
+  const rows = await db
+    .select({ id: users.id, email: users.email, name: users.name, role: memberships.role, prefs: memberships.notifyPrefs })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
     .where(and(eq(memberships.workspaceId, workspaceId), isNull(users.disabledAt)));
   return rows.map((r) => ({ id: r.id, email: r.email, name: r.name, role: r.role, prefs: effectivePrefs(r.role, r.prefs) }));
 }
@@ -127,14 +153,23 @@ const e = escapeHtml;
 /** Plateau's small HTML shell for notices (plain paragraphs, one link to the board). */
 export function noticeMail(subject: string, paragraphs: string[], link: { label: string; href: string } | null, footer: string): MailParts {
   const text = [...paragraphs, ...(link ? [`${link.label}: ${link.href}`] : []), '', footer].join('\n\n').replace(/\n\n\n+/g, '\n\n');
-  const html = shell(subject, paragraphs.map((p) => `<span style="white-space:pre-line">${e(p)}</span>`), link ?? undefined, footer);
+  const html = shell(
+    subject,
+    paragraphs.map((p) => `<span style="white-space:pre-line">${e(p)}</span>`),
+    link ?? undefined,
+    footer,
+  );
   return { subject, text, html };
 }
 
 const prefsFooter = (workspaceName: string) =>
   `You get this because of your notification choices in ${workspaceName}. Change them at ${publicUrl('/settings/notifications')}`;
 
-export interface RunWords { type: BoardRun['type']; stillName: string; startsAt: Date }
+export interface RunWords {
+  type: BoardRun['type'];
+  stillName: string;
+  startsAt: Date;
+}
 
 /** 'Stripping run on Wash Still 2 moved to Tue 3 Dec 06:00 (was Mon 2 Dec 07:00)'; the still is named again when it changed. */
 export function movedSentence(before: RunWords, after: RunWords, timeZone: string): string {
@@ -148,7 +183,10 @@ export function movedSentence(before: RunWords, after: RunWords, timeZone: strin
 // ---------------------------------------------------------------------------------------
 // Run changes
 
-interface WorkspaceInfo { name: string; timeZone: string }
+interface WorkspaceInfo {
+  name: string;
+  timeZone: string;
+}
 
 async function workspaceInfo(db: Pick<Db, 'select'>, workspaceId: number): Promise<WorkspaceInfo> {
   const [w] = await db.select({ name: workspaces.name, timeZone: workspaces.timeZone }).from(workspaces).where(eq(workspaces.id, workspaceId)).limit(1);
@@ -157,7 +195,10 @@ async function workspaceInfo(db: Pick<Db, 'select'>, workspaceId: number): Promi
 
 async function stillNames(db: Pick<Db, 'select'>, workspaceId: number, ids: number[]): Promise<Map<number, string>> {
   if (!ids.length) return new Map();
-  const rows = await db.select({ id: stills.id, name: stills.name }).from(stills).where(and(eq(stills.workspaceId, workspaceId), inArray(stills.id, [...new Set(ids)])));
+  const rows = await db
+    .select({ id: stills.id, name: stills.name })
+    .from(stills)
+    .where(and(eq(stills.workspaceId, workspaceId), inArray(stills.id, [...new Set(ids)])));
   return new Map(rows.map((r) => [r.id, r.name]));
 }
 
@@ -214,7 +255,7 @@ export async function notifyRunChanged(tx: Tx, change: RunChange): Promise<void>
         subject = `You are no longer operating the ${label.toLowerCase()} on ${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}`;
         lines.push(`${actor} took you off the ${label.toLowerCase()} on ${at}.`);
       } else {
-        const who = newOp !== null ? byId.get(newOp)?.name ?? 'someone' : 'nobody yet';
+        const who = newOp !== null ? (byId.get(newOp)?.name ?? 'someone') : 'nobody yet';
         subject = `${label} on ${afterWords.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}: operator is now ${who}`;
         lines.push(`${actor} changed who operates the ${label.toLowerCase()} on ${at}: now ${who}.`);
       }
@@ -232,17 +273,33 @@ export async function notifyRunChanged(tx: Tx, change: RunChange): Promise<void>
 }
 
 /** Planners hear when a run now starts before a linked wash's predicted ready time (and did not before). */
-async function notifyBookedEarly(tx: Tx, change: RunChange, ws: WorkspaceInfo, members: Member[], words: RunWords, link: { label: string; href: string }): Promise<void> {
+async function notifyBookedEarly(
+  tx: Tx,
+  change: RunChange,
+  ws: WorkspaceInfo,
+  members: Member[],
+  words: RunWords,
+  link: { label: string; href: string },
+): Promise<void> {
   const { before, after, actorId, workspaceId } = change;
   const ids = after.ferments.map((c) => c.fermentId);
-  const rows = await tx.select({ fermentId: fermentForecasts.fermentId, status: fermentForecasts.status, readyAt: fermentForecasts.readyAt, code: ferments.code })
-    .from(fermentForecasts).innerJoin(ferments, eq(ferments.id, fermentForecasts.fermentId))
+  const rows = await tx
+    .select({ fermentId: fermentForecasts.fermentId, status: fermentForecasts.status, readyAt: fermentForecasts.readyAt, code: ferments.code })
+    .from(fermentForecasts)
+    .innerJoin(ferments, eq(ferments.id, fermentForecasts.fermentId))
     .where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, ids), isNull(ferments.emptiedAt)));
-  const wasEarly = (fermentId: number, readyAt: Date) => before !== null
-    && (before.status === 'planned' || before.status === 'confirmed')
-    && before.ferments.some((c) => c.fermentId === fermentId) && before.startsAt.getTime() < readyAt.getTime();
-  const early = rows.filter((r) => r.readyAt && !['finished', 'stalled', 'souring'].includes(r.status)
-    && after.startsAt.getTime() < r.readyAt.getTime() && !wasEarly(r.fermentId, r.readyAt));
+  const wasEarly = (fermentId: number, readyAt: Date) =>
+    before !== null &&
+    (before.status === 'planned' || before.status === 'confirmed') &&
+    before.ferments.some((c) => c.fermentId === fermentId) &&
+    before.startsAt.getTime() < readyAt.getTime();
+  const early = rows.filter(
+    (r) =>
+      r.readyAt &&
+      !['finished', 'stalled', 'souring'].includes(r.status) &&
+      after.startsAt.getTime() < r.readyAt.getTime() &&
+      !wasEarly(r.fermentId, r.readyAt),
+  );
   if (!early.length) return;
   const label = RUN_TYPE_LABELS[after.type];
   const actor = members.find((m) => m.id === actorId)?.name ?? 'Someone';
@@ -254,7 +311,7 @@ async function notifyBookedEarly(tx: Tx, change: RunChange, ws: WorkspaceInfo, m
   ];
   const mail = noticeMail(subject, lines, link, prefsFooter(ws.name));
   for (const m of members) {
-    if (m.id === actorId || !m.prefs.run_early || m.role !== 'planner' && m.role !== 'manager') continue;
+    if (m.id === actorId || !m.prefs.run_early || (m.role !== 'planner' && m.role !== 'manager')) continue;
     await enqueue(tx, { workspaceId, kind: 'run_early', to: m.email, ...mail });
   }
 }
@@ -285,7 +342,12 @@ export async function claimOnce(tx: Pick<Db, 'insert'>, workspaceId: number, job
   }
 }
 
-export interface FermentStatusChange { workspaceId: number; fermentId: number; before: string | null; after: string }
+export interface FermentStatusChange {
+  workspaceId: number;
+  fermentId: number;
+  before: string | null;
+  after: string;
+}
 
 /**
  * Called where a ferment's forecast is recomputed. When the status has just turned
@@ -301,13 +363,21 @@ export async function notifyFermentStatusChange(db: Pick<Db, 'transaction'>, cha
     return await db.transaction(async (tx) => {
       const ws = await workspaceInfo(tx, workspaceId);
       const day = wallClock(new Date(), ws.timeZone).ymd;
-      const [f] = await tx.select({ code: ferments.code, emptiedAt: ferments.emptiedAt }).from(ferments).where(and(eq(ferments.id, fermentId), eq(ferments.workspaceId, workspaceId))).limit(1);
+      const [f] = await tx
+        .select({ code: ferments.code, emptiedAt: ferments.emptiedAt })
+        .from(ferments)
+        .where(and(eq(ferments.id, fermentId), eq(ferments.workspaceId, workspaceId)))
+        .limit(1);
       // An emptied ferment's forecast is frozen history: nothing to act on.
       if (!f || f.emptiedAt) return false;
       // The claim commits with the mails: a second instance's insert fails and sends nothing.
       if (!(await claimOnce(tx, workspaceId, `ferment_${after}`, `${fermentId}:${day}`))) return false;
       const now = new Date();
-      const atRisk = await selectRuns(tx, workspaceId, { takingFerment: fermentId, where: inArray(runs.status, ['planned', 'confirmed']), extra: { stillName } });
+      const atRisk = await selectRuns(tx, workspaceId, {
+        takingFerment: fermentId,
+        where: inArray(runs.status, ['planned', 'confirmed']),
+        extra: { stillName },
+      });
       const upcoming = atRisk.filter((r) => r.startsAt.getTime() > now.getTime()).sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime());
       const subject = after === 'stalled' ? `Wash ${f.code} has stalled` : `Wash ${f.code} shows signs of souring`;
       const lines = [
@@ -330,4 +400,3 @@ export async function notifyFermentStatusChange(db: Pick<Db, 'transaction'>, cha
     return false;
   }
 }
-

@@ -13,8 +13,17 @@ import { getDb, type Db } from '../db/client';
 import { ferments, runFerments, runOutcomes, runs, stills } from '../db/schema';
 import { OUTCOME_FRACTIONS } from '../lib/vocabulary';
 import {
-  chargedLaa, computeFraction, expectedLaaFromFeeds, expectedLaaFromFerments, recoveryRatio, sumLaa, validateRunRecord,
-  EXPECTED_LAA_FORMULA, FRACTIONS_BY_RUN_TYPE, type Fraction, type FractionResult,
+  chargedLaa,
+  computeFraction,
+  expectedLaaFromFeeds,
+  expectedLaaFromFerments,
+  recoveryRatio,
+  sumLaa,
+  validateRunRecord,
+  EXPECTED_LAA_FORMULA,
+  FRACTIONS_BY_RUN_TYPE,
+  type Fraction,
+  type FractionResult,
 } from '../lib/reports';
 import { laaToProofGallons } from '../lib/alcohol';
 import { runChargeLitres } from '../lib/schedule';
@@ -31,26 +40,50 @@ export const outcomesBodySchema = z.object({
   version: z.number().int().positive(),
   chargeLitres: z.number().nullable().optional(),
   chargeAbv: z.number().nullable().optional(),
-  fractions: z.array(z.object({
-    fraction: z.enum(OUTCOME_FRACTIONS),
-    volumeLitres: z.number(),
-    alcoholmeterReading: z.number(),
-    readingTempC: z.number(),
-    cutNote: z.string().trim().max(200).nullable().optional(),
-  })).max(OUTCOME_FRACTIONS.length),
+  fractions: z
+    .array(
+      z.object({
+        fraction: z.enum(OUTCOME_FRACTIONS),
+        volumeLitres: z.number(),
+        alcoholmeterReading: z.number(),
+        readingTempC: z.number(),
+        cutNote: z.string().trim().max(200).nullable().optional(),
+      }),
+    )
+    .max(OUTCOME_FRACTIONS.length),
   /** Mark a running run done in the same transaction. */
   finish: z.boolean().optional(),
 });
 export type OutcomesBody = z.infer<typeof outcomesBodySchema>;
 
-export interface RecordedFraction extends FractionResult { id: number }
+export interface RecordedFraction extends FractionResult {
+  id: number;
+}
 
-export interface FermentLine { fermentId: number; code: string; litres: number; og: number; fg: number | null; fgSource: 'last reading' | 'predicted' | null }
+export interface FermentLine {
+  fermentId: number;
+  code: string;
+  litres: number;
+  og: number;
+  fg: number | null;
+  fgSource: 'last reading' | 'predicted' | null;
+}
 
 export interface RunRecord {
   run: {
-    id: number; type: string; status: string; version: number; stillId: number; stillName: string; stillCapacityLitres: number;
-    startsAt: Date; endsAt: Date; finishedAt: Date | null; operatorName: string | null; chargeLitres: number | null; chargeAbv: number | null;
+    id: number;
+    type: string;
+    status: string;
+    version: number;
+    stillId: number;
+    stillName: string;
+    stillCapacityLitres: number;
+    startsAt: Date;
+    endsAt: Date;
+    finishedAt: Date | null;
+    operatorName: string | null;
+    chargeLitres: number | null;
+    chargeAbv: number | null;
   };
   allowedFractions: readonly Fraction[];
   fractions: RecordedFraction[];
@@ -68,7 +101,10 @@ export interface RunRecord {
 }
 
 /** The FG a ferment's expected LAA uses: its last reading once it is finished, stalled, soured or emptied, else the predicted FG. */
-function fgFor(f: { emptiedAt: Date | null }, fc: { status: string; lastSg: number | null; predictedFg: number | null } | undefined): { fg: number | null; source: FermentLine['fgSource'] } {
+function fgFor(
+  f: { emptiedAt: Date | null },
+  fc: { status: string; lastSg: number | null; predictedFg: number | null } | undefined,
+): { fg: number | null; source: FermentLine['fgSource'] } {
   if (!fc) return { fg: null, source: null };
   const done = f.emptiedAt !== null || fc.status === 'finished' || fc.status === 'stalled' || fc.status === 'souring';
   if (done && fc.lastSg !== null) return { fg: fc.lastSg, source: 'last reading' };
@@ -82,9 +118,17 @@ export async function fermentLinesFor(ctx: Ctx, runIds: number[], db: Reader = g
   const workspaceId = ctx.ws.id;
   const out = new Map<number, FermentLine[]>();
   if (runIds.length === 0) return out;
-  const lines = await db.select({
-    runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres, code: ferments.code, og: ferments.og, emptiedAt: ferments.emptiedAt,
-  }).from(runFerments).innerJoin(ferments, and(eq(ferments.id, runFerments.fermentId), eq(ferments.workspaceId, workspaceId)))
+  const lines = await db
+    .select({
+      runId: runFerments.runId,
+      fermentId: runFerments.fermentId,
+      litres: runFerments.litres,
+      code: ferments.code,
+      og: ferments.og,
+      emptiedAt: ferments.emptiedAt,
+    })
+    .from(runFerments)
+    .innerJoin(ferments, and(eq(ferments.id, runFerments.fermentId), eq(ferments.workspaceId, workspaceId)))
     .where(and(eq(runFerments.workspaceId, workspaceId), inArray(runFerments.runId, runIds)));
   const forecasts = lines.length ? await getForecasts(ctx, [...new Set(lines.map((l) => l.fermentId))]) : new Map();
   for (const l of lines) {
@@ -103,7 +147,11 @@ export function expectedForStripping(lines: FermentLine[] | undefined): number |
 
 async function loadFractions(db: Reader, workspaceId: number, runIds: number[]) {
   if (runIds.length === 0) return [];
-  return db.select().from(runOutcomes).where(and(eq(runOutcomes.workspaceId, workspaceId), inArray(runOutcomes.runId, runIds))).orderBy(asc(runOutcomes.id));
+  return db
+    .select()
+    .from(runOutcomes)
+    .where(and(eq(runOutcomes.workspaceId, workspaceId), inArray(runOutcomes.runId, runIds)))
+    .orderBy(asc(runOutcomes.id));
 }
 
 const FRACTION_ORDER: Record<Fraction, number> = { low_wines: 0, heads: 1, hearts: 2, tails: 3, feints: 4 };
@@ -114,22 +162,49 @@ export async function getRunRecord(ctx: Ctx, runId: number): Promise<RunRecord> 
   const run = await selectRun(db, workspaceId, runId, { stillName, stillCapacityLitres, operatorName, finishedAt: runs.finishedAt });
   if (!run) throw notFound('No such run in this distillery.');
   const row: RunRecord['run'] = {
-    id: run.id, type: run.type, status: run.status, version: run.version, stillId: run.stillId, stillName: run.stillName, stillCapacityLitres: run.stillCapacityLitres,
-    startsAt: run.startsAt, endsAt: run.endsAt, finishedAt: run.finishedAt, operatorName: run.operatorName, chargeLitres: run.chargeLitres, chargeAbv: run.chargeAbv,
+    id: run.id,
+    type: run.type,
+    status: run.status,
+    version: run.version,
+    stillId: run.stillId,
+    stillName: run.stillName,
+    stillCapacityLitres: run.stillCapacityLitres,
+    startsAt: run.startsAt,
+    endsAt: run.endsAt,
+    finishedAt: run.finishedAt,
+    operatorName: run.operatorName,
+    chargeLitres: run.chargeLitres,
+    chargeAbv: run.chargeAbv,
   };
   const fr = (await loadFractions(db, workspaceId, [runId]))
     .map((o) => ({
-      id: o.id, fraction: o.fraction, volumeLitres: o.volumeLitres, alcoholmeterReading: o.alcoholmeterReading, readingTempC: o.readingTempC,
-      cutNote: o.cutNote, abv20: o.abv20, laa: o.laa, proofGallons: laaToProofGallons(o.laa),
+      id: o.id,
+      fraction: o.fraction,
+      volumeLitres: o.volumeLitres,
+      alcoholmeterReading: o.alcoholmeterReading,
+      readingTempC: o.readingTempC,
+      cutNote: o.cutNote,
+      abv20: o.abv20,
+      laa: o.laa,
+      proofGallons: laaToProofGallons(o.laa),
     }))
     .sort((a, b) => FRACTION_ORDER[a.fraction] - FRACTION_ORDER[b.fraction]);
   const feedRows = run.feeds;
   const lineRuns = [runId, ...feedRows.map((f) => f.runId)];
   const lines = await fermentLinesFor(ctx, lineRuns, db);
-  const feedLowWines = await loadFractions(db, workspaceId, feedRows.map((f) => f.runId));
+  const feedLowWines = await loadFractions(
+    db,
+    workspaceId,
+    feedRows.map((f) => f.runId),
+  );
   const feeds = feedRows.map((f) => {
     const lw = feedLowWines.filter((o) => o.runId === f.runId && o.fraction === 'low_wines');
-    return { runId: f.runId, litres: f.litres, lowWinesLitres: lw.length ? lw.reduce((s, o) => s + o.volumeLitres, 0) : null, expectedLaa: expectedForStripping(lines.get(f.runId)) };
+    return {
+      runId: f.runId,
+      litres: f.litres,
+      lowWinesLitres: lw.length ? lw.reduce((s, o) => s + o.volumeLitres, 0) : null,
+      expectedLaa: expectedForStripping(lines.get(f.runId)),
+    };
   });
   const collected = sumLaa(fr);
   const charged = chargedLaa({ litres: runChargeLitres(run), abv: run.chargeAbv });
@@ -154,12 +229,25 @@ export async function getRunRecord(ctx: Ctx, runId: number): Promise<RunRecord> 
 
 /** Replace the run's fractions (and charge) in one transaction; optionally finish a running run. */
 export async function saveRunRecord(ctx: Ctx, runId: number, body: OutcomesBody): Promise<RunRecord> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   await inRetriedTransaction(async (tx) => {
-    const [locked] = await tx.select({
-      id: runs.id, type: runs.type, status: runs.status, version: runs.version, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, capacity: stills.capacityLitres,
-    }).from(runs).innerJoin(stills, eq(stills.id, runs.stillId))
-      .where(and(eq(runs.id, runId), eq(runs.workspaceId, workspaceId))).for('update');
+    const [locked] = await tx
+      .select({
+        id: runs.id,
+        type: runs.type,
+        status: runs.status,
+        version: runs.version,
+        chargeLitres: runs.chargeLitres,
+        chargeAbv: runs.chargeAbv,
+        capacity: stills.capacityLitres,
+      })
+      .from(runs)
+      .innerJoin(stills, eq(stills.id, runs.stillId))
+      .where(and(eq(runs.id, runId), eq(runs.workspaceId, workspaceId)))
+      .for('update');
     if (!locked) throw notFound('No such run in this distillery.');
     const before = await getRun(ctx, runId, tx);
     if (locked.version !== body.version) {
@@ -181,33 +269,61 @@ export async function saveRunRecord(ctx: Ctx, runId: number, body: OutcomesBody)
     const computed = body.fractions.map(computeFraction);
     await tx.delete(runOutcomes).where(and(eq(runOutcomes.workspaceId, workspaceId), eq(runOutcomes.runId, runId)));
     if (computed.length) {
-      await tx.insert(runOutcomes).values(computed.map((f) => ({
-        workspaceId, runId, fraction: f.fraction, volumeLitres: f.volumeLitres, alcoholmeterReading: f.alcoholmeterReading, readingTempC: f.readingTempC,
-        abv20: f.abv20, laa: f.laa, cutNote: f.cutNote?.length ? f.cutNote : null, recordedBy: userId,
-      })));
+      await tx.insert(runOutcomes).values(
+        computed.map((f) => ({
+          workspaceId,
+          runId,
+          fraction: f.fraction,
+          volumeLitres: f.volumeLitres,
+          alcoholmeterReading: f.alcoholmeterReading,
+          readingTempC: f.readingTempC,
+          abv20: f.abv20,
+          laa: f.laa,
+          cutNote: f.cutNote?.length ? f.cutNote : null,
+          recordedBy: userId,
+        })),
+      );
     }
     const finishing = body.finish === true;
     const now = new Date();
-    await tx.update(runs).set({
-      chargeLitres: charge.litres,
-      chargeAbv: charge.abv,
-      version: sql`${runs.version} + 1` as unknown as number,
-      ...(finishing ? { status: 'done' as const, finishedAt: now, sequence: sql`${runs.sequence} + 1` as unknown as number } : {}),
-    }).where(and(eq(runs.id, runId), eq(runs.workspaceId, workspaceId)));
+    await tx
+      .update(runs)
+      .set({
+        chargeLitres: charge.litres,
+        chargeAbv: charge.abv,
+        version: sql`${runs.version} + 1` as unknown as number,
+        ...(finishing ? { status: 'done' as const, finishedAt: now, sequence: sql`${runs.sequence} + 1` as unknown as number } : {}),
+      })
+      .where(and(eq(runs.id, runId), eq(runs.workspaceId, workspaceId)));
     if (finishing) {
       // As a finish in runs.ts: the still row is bumped so a concurrent writer on another node conflicts.
-      await tx.update(stills)
+      await tx
+        .update(stills)
         .set({ updatedAt: sql`GREATEST(CURRENT_TIMESTAMP(3), ${stills.updatedAt} + INTERVAL 1000 MICROSECOND)` })
         .where(and(eq(stills.workspaceId, workspaceId), eq(stills.id, before.stillId)));
     }
     const after = await getRun(ctx, runId, tx);
-    await audit({
-      workspaceId, userId, action: 'run.record', entityType: 'run', entityId: runId,
-      details: {
-        charge, fractions: computed.map((f) => ({ fraction: f.fraction, volumeLitres: f.volumeLitres, reading: f.alcoholmeterReading, tempC: f.readingTempC, laa: Math.round(f.laa * 1000) / 1000 })),
-        ...(finishing ? { finished: true } : {}),
+    await audit(
+      {
+        workspaceId,
+        userId,
+        action: 'run.record',
+        entityType: 'run',
+        entityId: runId,
+        details: {
+          charge,
+          fractions: computed.map((f) => ({
+            fraction: f.fraction,
+            volumeLitres: f.volumeLitres,
+            reading: f.alcoholmeterReading,
+            tempC: f.readingTempC,
+            laa: Math.round(f.laa * 1000) / 1000,
+          })),
+          ...(finishing ? { finished: true } : {}),
+        },
       },
-    }, tx);
+      tx,
+    );
     if (finishing) {
       await audit({ workspaceId, userId, action: 'run.finish', entityType: 'run', entityId: runId, details: { via: 'run record' } }, tx);
       await onRunChanged(tx, { kind: 'finish', workspaceId, before, after, actorId: userId });

@@ -90,7 +90,11 @@ export function signedInGate(Astro: AstroGlobal): { ok: true; user: PageAccess['
 }
 
 /** A page's id parameter: a positive integer (at most 15 digits, so it is exact). */
-export const PageId = z.string().regex(/^\d{1,15}$/).transform(Number).pipe(z.number().int().positive().max(Number.MAX_SAFE_INTEGER));
+export const PageId = z
+  .string()
+  .regex(/^\d{1,15}$/)
+  .transform(Number)
+  .pipe(z.number().int().positive().max(Number.MAX_SAFE_INTEGER));
 
 export function pageId(param: string | undefined): number | null {
   const parsed = PageId.safeParse(param);

@@ -55,7 +55,14 @@ export interface ReadingEntry {
   takenAt: Date;
 }
 
-const GRAVITY_FIELD: Record<string, string> = { value: 'value', unit: 'unit', method: 'method', sampleTempC: 'sampleTemp', originalGravity: 'value', wcf: 'value' };
+const GRAVITY_FIELD: Record<string, string> = {
+  value: 'value',
+  unit: 'unit',
+  method: 'method',
+  sampleTempC: 'sampleTemp',
+  originalGravity: 'value',
+  wcf: 'value',
+};
 
 /**
  * Checks one reading against the trade's plausibility rules and derives its corrected SG.
@@ -86,13 +93,22 @@ export function deriveCorrected(
   if (entry.method === 'refractometer' && entry.unit !== 'sg') {
     const originalReading = sgToBrix(ferment.og) * ws.wortCorrectionFactor;
     if (entry.value > originalReading + 1e-9) {
-      throw invalid('value', `${entry.value.toFixed(1)} °Bx is above what the original gravity ${ferment.og.toFixed(3)} reads on a refractometer (${originalReading.toFixed(1)} °Bx): fermentation cannot raise it.`);
+      throw invalid(
+        'value',
+        `${entry.value.toFixed(1)} °Bx is above what the original gravity ${ferment.og.toFixed(3)} reads on a refractometer (${originalReading.toFixed(1)} °Bx): fermentation cannot raise it.`,
+      );
     }
   }
   try {
     return correctReading({
-      value: entry.value, unit: entry.unit, method: entry.method, sampleTempC: entry.sampleTempC,
-      calibrationTempC: ws.calibrationTempC, wcf: ws.wortCorrectionFactor, originalGravity: ferment.og, fermentationStarted: started,
+      value: entry.value,
+      unit: entry.unit,
+      method: entry.method,
+      sampleTempC: entry.sampleTempC,
+      calibrationTempC: ws.calibrationTempC,
+      wcf: ws.wortCorrectionFactor,
+      originalGravity: ferment.og,
+      fermentationStarted: started,
     });
   } catch (err) {
     if (err instanceof GravityInputError) throw invalid(GRAVITY_FIELD[err.field] ?? 'value', err.message);
@@ -103,7 +119,11 @@ export function deriveCorrected(
 /** Temperatures in the workspace's unit (°C or °F); takenAt as parseWorkspaceTime reads it. */
 export type ReadingBody = z.infer<typeof readingInputSchema>;
 
-function entryFrom(ws: WorkspaceSettings, body: ReadingBody, now: Date): ReadingEntry & { sampleTempUnit: TemperatureUnit | null; fermentTempC: number | null } {
+function entryFrom(
+  ws: WorkspaceSettings,
+  body: ReadingBody,
+  now: Date,
+): ReadingEntry & { sampleTempUnit: TemperatureUnit | null; fermentTempC: number | null } {
   const tUnit = temperatureUnitFor(ws.units);
   const sampleTempC = body.sampleTemp == null ? null : parseTemperatureToC(body.sampleTemp, tUnit);
   const fermentTempC = body.fermentTemp == null ? null : parseTemperatureToC(body.fermentTemp, tUnit);
@@ -117,7 +137,10 @@ function entryFrom(ws: WorkspaceSettings, body: ReadingBody, now: Date): Reading
 async function earlierReadings(workspaceId: number, fermentId: number, before: Date, exceptId?: number) {
   const conds = [eq(readings.workspaceId, workspaceId), eq(readings.fermentId, fermentId), isNull(readings.deletedAt), lt(readings.takenAt, before)];
   if (exceptId) conds.push(ne(readings.id, exceptId));
-  return getDb().select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg }).from(readings).where(and(...conds));
+  return getDb()
+    .select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg })
+    .from(readings)
+    .where(and(...conds));
 }
 
 export interface ReadingView {
@@ -141,53 +164,126 @@ export interface ReadingView {
 
 export async function listReadings(ctx: Ctx, fermentId: number): Promise<ReadingView[]> {
   const workspaceId = ctx.ws.id;
-  const rows = await getDb().select({
-    id: readings.id, takenAt: readings.takenAt, method: readings.method, rawValue: readings.rawValue, rawUnit: readings.rawUnit,
-    sampleTempC: readings.sampleTempC, sampleTempUnit: readings.sampleTempUnit, correctedSg: readings.correctedSg, lowConfidence: readings.lowConfidence,
-    source: readings.source, fermentTempC: readings.fermentTempC, ph: readings.ph, note: readings.note, takenById: readings.takenBy, takenByName: users.name,
-    createdAt: readings.createdAt, updatedAt: readings.updatedAt,
-  }).from(readings).leftJoin(users, eq(users.id, readings.takenBy))
+  const rows = await getDb()
+    .select({
+      id: readings.id,
+      takenAt: readings.takenAt,
+      method: readings.method,
+      rawValue: readings.rawValue,
+      rawUnit: readings.rawUnit,
+      sampleTempC: readings.sampleTempC,
+      sampleTempUnit: readings.sampleTempUnit,
+      correctedSg: readings.correctedSg,
+      lowConfidence: readings.lowConfidence,
+      source: readings.source,
+      fermentTempC: readings.fermentTempC,
+      ph: readings.ph,
+      note: readings.note,
+      takenById: readings.takenBy,
+      takenByName: users.name,
+      createdAt: readings.createdAt,
+      updatedAt: readings.updatedAt,
+    })
+    .from(readings)
+    .leftJoin(users, eq(users.id, readings.takenBy))
     .where(and(eq(readings.workspaceId, workspaceId), eq(readings.fermentId, fermentId), isNull(readings.deletedAt)))
     .orderBy(asc(readings.takenAt), asc(readings.id));
   return rows.map(({ createdAt, updatedAt, ...r }) => ({ ...r, takenAt: r.takenAt.toISOString(), edited: updatedAt.getTime() - createdAt.getTime() > 1000 }));
 }
 
 async function readingById(workspaceId: number, id: number) {
-  const [row] = await getDb().select().from(readings).where(and(eq(readings.id, id), eq(readings.workspaceId, workspaceId), isNull(readings.deletedAt))).limit(1);
+  const [row] = await getDb()
+    .select()
+    .from(readings)
+    .where(and(eq(readings.id, id), eq(readings.workspaceId, workspaceId), isNull(readings.deletedAt)))
+    .limit(1);
   if (!row) throw notFound('No such reading.');
   return row;
 }
 
 export async function addReading(ctx: Ctx, fermentId: number, body: ReadingBody, now = new Date()): Promise<ReadingView> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const ferment = await getFerment(ctx, fermentId);
   if (ferment.emptiedAt) throw conflict(`${ferment.code} has been emptied; readings can no longer be added.`);
   const entry = entryFrom(ws, body, now);
   const corrected = deriveCorrected(ws, ferment, entry, await earlierReadings(ws.id, fermentId, entry.takenAt), now);
   const db = getDb();
   const id = await db.transaction(async (tx) => {
-    const [row] = await tx.insert(readings).values({
-      workspaceId: ws.id, fermentId, takenAt: entry.takenAt, method: entry.method, rawValue: entry.value, rawUnit: entry.unit,
-      sampleTempC: entry.sampleTempC, sampleTempUnit: entry.sampleTempUnit, correctedSg: corrected.sg, lowConfidence: corrected.lowConfidence,
-      source: 'manual', fermentTempC: entry.fermentTempC, ph: body.ph ?? null, note: body.note?.trim() || null, takenBy: userId,
-    }).$returningId();
-    await audit({ workspaceId: ws.id, userId, action: 'reading.create', entityType: 'reading', entityId: row!.id, details: { fermentId, rawValue: entry.value, rawUnit: entry.unit, method: entry.method, correctedSg: corrected.sg } }, tx);
+    const [row] = await tx
+      .insert(readings)
+      .values({
+        workspaceId: ws.id,
+        fermentId,
+        takenAt: entry.takenAt,
+        method: entry.method,
+        rawValue: entry.value,
+        rawUnit: entry.unit,
+        sampleTempC: entry.sampleTempC,
+        sampleTempUnit: entry.sampleTempUnit,
+        correctedSg: corrected.sg,
+        lowConfidence: corrected.lowConfidence,
+        source: 'manual',
+        fermentTempC: entry.fermentTempC,
+        ph: body.ph ?? null,
+        note: body.note?.trim() || null,
+        takenBy: userId,
+      })
+      .$returningId();
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId,
+        action: 'reading.create',
+        entityType: 'reading',
+        entityId: row!.id,
+        details: { fermentId, rawValue: entry.value, rawUnit: entry.unit, method: entry.method, correctedSg: corrected.sg },
+      },
+      tx,
+    );
     return row!.id;
   });
   await recomputeForecast(ctx, fermentId, now);
-  const stored = { id, fermentId, takenAt: entry.takenAt, method: entry.method, rawValue: entry.value, rawUnit: entry.unit, sampleTempC: entry.sampleTempC, correctedSg: corrected.sg, lowConfidence: corrected.lowConfidence };
+  const stored = {
+    id,
+    fermentId,
+    takenAt: entry.takenAt,
+    method: entry.method,
+    rawValue: entry.value,
+    rawUnit: entry.unit,
+    sampleTempC: entry.sampleTempC,
+    correctedSg: corrected.sg,
+    lowConfidence: corrected.lowConfidence,
+  };
   return afterCommit(async () => (await listReadings(ctx, fermentId)).find((r) => r.id === id)!, stored as never);
 }
 
-const AUDITED = ['takenAt', 'method', 'rawValue', 'rawUnit', 'sampleTempC', 'sampleTempUnit', 'correctedSg', 'lowConfidence', 'fermentTempC', 'ph', 'note'] as const;
+const AUDITED = [
+  'takenAt',
+  'method',
+  'rawValue',
+  'rawUnit',
+  'sampleTempC',
+  'sampleTempUnit',
+  'correctedSg',
+  'lowConfidence',
+  'fermentTempC',
+  'ph',
+  'note',
+] as const;
 
 function snapshot(r: Record<string, unknown>): Record<string, unknown> {
-  return Object.fromEntries(AUDITED.map((k) => [k, r[k] instanceof Date ? (r[k] as Date).toISOString() : r[k] ?? null]));
+  return Object.fromEntries(AUDITED.map((k) => [k, r[k] instanceof Date ? (r[k] as Date).toISOString() : (r[k] ?? null)]));
 }
 
 /** Edit = the new values, plus an audit entry holding the old and the new; the original stays readable there. */
 export async function updateReading(ctx: Ctx, readingId: number, body: Partial<ReadingBody>, now = new Date()): Promise<ReadingView> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const before = await readingById(ws.id, readingId);
   const ferment = await getFerment(ctx, before.fermentId);
   const merged: ReadingBody = {
@@ -202,17 +298,42 @@ export async function updateReading(ctx: Ctx, readingId: number, body: Partial<R
   };
   const entry = entryFrom(ws, merged, now);
   // Temperatures not sent keep their stored °C exactly (no round trip through °F).
-  if (body.sampleTemp === undefined) { entry.sampleTempC = before.sampleTempC; entry.sampleTempUnit = before.sampleTempUnit; }
+  if (body.sampleTemp === undefined) {
+    entry.sampleTempC = before.sampleTempC;
+    entry.sampleTempUnit = before.sampleTempUnit;
+  }
   if (body.fermentTemp === undefined) entry.fermentTempC = before.fermentTempC;
   const corrected = deriveCorrected(ws, { ...ferment, emptiedAt: null }, entry, await earlierReadings(ws.id, ferment.id, entry.takenAt, readingId), now);
   const after = {
-    takenAt: entry.takenAt, method: entry.method, rawValue: entry.value, rawUnit: entry.unit, sampleTempC: entry.sampleTempC, sampleTempUnit: entry.sampleTempUnit,
-    correctedSg: corrected.sg, lowConfidence: corrected.lowConfidence, fermentTempC: entry.fermentTempC, ph: merged.ph ?? null, note: merged.note?.trim() || null,
+    takenAt: entry.takenAt,
+    method: entry.method,
+    rawValue: entry.value,
+    rawUnit: entry.unit,
+    sampleTempC: entry.sampleTempC,
+    sampleTempUnit: entry.sampleTempUnit,
+    correctedSg: corrected.sg,
+    lowConfidence: corrected.lowConfidence,
+    fermentTempC: entry.fermentTempC,
+    ph: merged.ph ?? null,
+    note: merged.note?.trim() || null,
   };
   const db = getDb();
   await db.transaction(async (tx) => {
-    await tx.update(readings).set(after).where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id)));
-    await audit({ workspaceId: ws.id, userId, action: 'reading.update', entityType: 'reading', entityId: readingId, details: { fermentId: ferment.id, before: snapshot(before), after: snapshot(after) } }, tx);
+    await tx
+      .update(readings)
+      .set(after)
+      .where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id)));
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId,
+        action: 'reading.update',
+        entityType: 'reading',
+        entityId: readingId,
+        details: { fermentId: ferment.id, before: snapshot(before), after: snapshot(after) },
+      },
+      tx,
+    );
   });
   await recomputeForecast(ctx, ferment.id, now);
   return (await listReadings(ctx, ferment.id)).find((r) => r.id === readingId)!;
@@ -220,36 +341,77 @@ export async function updateReading(ctx: Ctx, readingId: number, body: Partial<R
 
 /** Delete = soft delete (deleted_at) plus an audit entry with the full reading. */
 export async function deleteReading(ctx: Ctx, readingId: number, now = new Date()): Promise<void> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const before = await readingById(ws.id, readingId);
   const db = getDb();
   await db.transaction(async (tx) => {
-    await tx.update(readings).set({ deletedAt: now }).where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id), isNull(readings.deletedAt)));
-    await audit({ workspaceId: ws.id, userId, action: 'reading.delete', entityType: 'reading', entityId: readingId, details: { fermentId: before.fermentId, reading: snapshot(before) } }, tx);
+    await tx
+      .update(readings)
+      .set({ deletedAt: now })
+      .where(and(eq(readings.id, readingId), eq(readings.workspaceId, ws.id), isNull(readings.deletedAt)));
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId,
+        action: 'reading.delete',
+        entityType: 'reading',
+        entityId: readingId,
+        details: { fermentId: before.fermentId, reading: snapshot(before) },
+      },
+      tx,
+    );
   });
   await recomputeForecast(ctx, before.fermentId, now);
 }
 
 /** After an OG or pitch-time change: re-derive every reading's corrected SG (in order, since "started" depends on earlier ones). */
 export async function recorrectFermentReadings(ctx: Ctx, tx: Tx, ferment: { id: number; og: number; pitchedAt: Date }): Promise<void> {
-  const { ws, actor: { userId } } = ctx;
-  const rows = await tx.select().from(readings)
-    .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, ferment.id), isNull(readings.deletedAt))).orderBy(asc(readings.takenAt), asc(readings.id));
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
+  const rows = await tx
+    .select()
+    .from(readings)
+    .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, ferment.id), isNull(readings.deletedAt)))
+    .orderBy(asc(readings.takenAt), asc(readings.id));
   const done: Array<{ takenAt: Date; correctedSg: number }> = [];
   for (const r of rows) {
     let sg: number;
     try {
       sg = correctReading({
-        value: r.rawValue, unit: r.rawUnit, method: r.method, sampleTempC: r.sampleTempC, calibrationTempC: ws.calibrationTempC, wcf: ws.wortCorrectionFactor,
-        originalGravity: ferment.og, fermentationStarted: fermentationStarted(done, ferment.og, ferment.pitchedAt, r.takenAt),
+        value: r.rawValue,
+        unit: r.rawUnit,
+        method: r.method,
+        sampleTempC: r.sampleTempC,
+        calibrationTempC: ws.calibrationTempC,
+        wcf: ws.wortCorrectionFactor,
+        originalGravity: ferment.og,
+        fermentationStarted: fermentationStarted(done, ferment.og, ferment.pitchedAt, r.takenAt),
       }).sg;
     } catch (err) {
-      if (err instanceof GravityInputError) throw new HttpError(400, 'invalid', `With this OG the reading of ${r.takenAt.toISOString().slice(0, 16)} no longer makes sense: ${err.message}`, { og: err.message });
+      if (err instanceof GravityInputError)
+        throw new HttpError(400, 'invalid', `With this OG the reading of ${r.takenAt.toISOString().slice(0, 16)} no longer makes sense: ${err.message}`, {
+          og: err.message,
+        });
       throw err;
     }
     if (Math.abs(sg - r.correctedSg) > 1e-9) {
       await tx.update(readings).set({ correctedSg: sg }).where(eq(readings.id, r.id));
-      await audit({ workspaceId: ws.id, userId, action: 'reading.recorrect', entityType: 'reading', entityId: r.id, details: { fermentId: ferment.id, before: { correctedSg: r.correctedSg }, after: { correctedSg: sg } } }, tx);
+      await audit(
+        {
+          workspaceId: ws.id,
+          userId,
+          action: 'reading.recorrect',
+          entityType: 'reading',
+          entityId: r.id,
+          details: { fermentId: ferment.id, before: { correctedSg: r.correctedSg }, after: { correctedSg: sg } },
+        },
+        tx,
+      );
     }
     done.push({ takenAt: r.takenAt, correctedSg: sg });
   }

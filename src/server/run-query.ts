@@ -22,8 +22,18 @@ export interface RunChange {
 
 /** The columns every run is read with. */
 export const runColumns = {
-  id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt,
-  operatorId: runs.operatorId, chargeLitres: runs.chargeLitres, chargeAbv: runs.chargeAbv, version: runs.version, sequence: runs.sequence, notes: runs.notes,
+  id: runs.id,
+  stillId: runs.stillId,
+  type: runs.type,
+  status: runs.status,
+  startsAt: runs.startsAt,
+  endsAt: runs.endsAt,
+  operatorId: runs.operatorId,
+  chargeLitres: runs.chargeLitres,
+  chargeAbv: runs.chargeAbv,
+  version: runs.version,
+  sequence: runs.sequence,
+  notes: runs.notes,
 };
 
 /** A run row before its lines are attached. */
@@ -52,30 +62,51 @@ export interface RunQuery<E extends RunExtras> {
 }
 
 /** Runs of a workspace, ordered by start, with their charge lines, feeds and recorded low wines. */
-export async function selectRuns<E extends RunExtras = Record<never, never>>(db: Reader, workspaceId: number, q: RunQuery<E> = {}): Promise<Array<BoardRun & ExtraData<E>>> {
+export async function selectRuns<E extends RunExtras = Record<never, never>>(
+  db: Reader,
+  workspaceId: number,
+  q: RunQuery<E> = {},
+): Promise<Array<BoardRun & ExtraData<E>>> {
   if (q.ids && q.ids.length === 0) return [];
   const extra = (q.extra ?? {}) as RunExtras;
   const values = Object.values(extra);
   const needsStill = values.some((v) => v === stillName || v === stillCapacityLitres);
   const needsOperator = values.some((v) => v === operatorName);
-  let query = db.select({ ...runColumns, ...extra }).from(runs).$dynamic();
+  let query = db
+    .select({ ...runColumns, ...extra })
+    .from(runs)
+    .$dynamic();
   if (needsStill) query = query.innerJoin(stills, eq(stills.id, runs.stillId));
   if (needsOperator) query = query.leftJoin(users, eq(users.id, runs.operatorId));
-  const rows = await query.where(and(
-    eq(runs.workspaceId, workspaceId),
-    q.window ? and(lt(runs.startsAt, q.window.to), gt(runs.endsAt, q.window.from)) : undefined,
-    q.ids ? inArray(runs.id, [...q.ids]) : undefined,
-    q.takingFerment !== undefined
-      ? inArray(runs.id, db.select({ id: runFerments.runId }).from(runFerments)
-        .where(and(eq(runFerments.workspaceId, workspaceId), eq(runFerments.fermentId, q.takingFerment))))
-      : undefined,
-    q.where,
-  )).orderBy(asc(runs.startsAt), asc(runs.id));
+  const rows = await query
+    .where(
+      and(
+        eq(runs.workspaceId, workspaceId),
+        q.window ? and(lt(runs.startsAt, q.window.to), gt(runs.endsAt, q.window.from)) : undefined,
+        q.ids ? inArray(runs.id, [...q.ids]) : undefined,
+        q.takingFerment !== undefined
+          ? inArray(
+              runs.id,
+              db
+                .select({ id: runFerments.runId })
+                .from(runFerments)
+                .where(and(eq(runFerments.workspaceId, workspaceId), eq(runFerments.fermentId, q.takingFerment))),
+            )
+          : undefined,
+        q.where,
+      ),
+    )
+    .orderBy(asc(runs.startsAt), asc(runs.id));
   return attachLines(db, workspaceId, rows as unknown as Array<RunBase & ExtraData<E>>, q.window);
 }
 
 /** One run of the workspace, or null. */
-export async function selectRun<E extends RunExtras = Record<never, never>>(db: Reader, workspaceId: number, id: number, extra?: E): Promise<(BoardRun & ExtraData<E>) | null> {
+export async function selectRun<E extends RunExtras = Record<never, never>>(
+  db: Reader,
+  workspaceId: number,
+  id: number,
+  extra?: E,
+): Promise<(BoardRun & ExtraData<E>) | null> {
   const [run] = await selectRuns(db, workspaceId, { ids: [id], extra });
   return run ?? null;
 }
@@ -85,23 +116,35 @@ export async function selectRun<E extends RunExtras = Record<never, never>>(db: 
  * joining runs in a time window instead of listing hundreds of run ids (much cheaper for
  * the board); rows outside `rows` are ignored either way.
  */
-async function attachLines<R extends RunBase>(db: Reader, workspaceId: number, rows: R[], range?: { from: Date; to: Date }): Promise<Array<R & Pick<BoardRun, 'ferments' | 'feeds' | 'lowWinesLitres'>>> {
+async function attachLines<R extends RunBase>(
+  db: Reader,
+  workspaceId: number,
+  rows: R[],
+  range?: { from: Date; to: Date },
+): Promise<Array<R & Pick<BoardRun, 'ferments' | 'feeds' | 'lowWinesLitres'>>> {
   if (rows.length === 0) return [];
   const ids = rows.map((r) => r.id);
   const inRuns = (runIdCol: typeof runFerments.runId | typeof runFeeds.runId | typeof runOutcomes.runId) =>
     range ? and(eq(runs.workspaceId, workspaceId), lt(runs.startsAt, range.to), gt(runs.endsAt, range.from)) : inArray(runIdCol, ids);
   const [charges, feeds, lowWines] = await Promise.all([
     (range
-      ? db.select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres }).from(runFerments).innerJoin(runs, eq(runs.id, runFerments.runId))
-      : db.select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres }).from(runFerments))
-      .where(and(eq(runFerments.workspaceId, workspaceId), inRuns(runFerments.runId))),
+      ? db
+          .select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres })
+          .from(runFerments)
+          .innerJoin(runs, eq(runs.id, runFerments.runId))
+      : db.select({ runId: runFerments.runId, fermentId: runFerments.fermentId, litres: runFerments.litres }).from(runFerments)
+    ).where(and(eq(runFerments.workspaceId, workspaceId), inRuns(runFerments.runId))),
     (range
       ? db.select({ runId: runFeeds.runId, feedRunId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds).innerJoin(runs, eq(runs.id, runFeeds.runId))
-      : db.select({ runId: runFeeds.runId, feedRunId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds))
-      .where(and(eq(runFeeds.workspaceId, workspaceId), inRuns(runFeeds.runId))),
+      : db.select({ runId: runFeeds.runId, feedRunId: runFeeds.feedRunId, litres: runFeeds.litres }).from(runFeeds)
+    ).where(and(eq(runFeeds.workspaceId, workspaceId), inRuns(runFeeds.runId))),
     (range
-      ? db.select({ runId: runOutcomes.runId, litres: sql<number>`SUM(${runOutcomes.volumeLitres})` }).from(runOutcomes).innerJoin(runs, eq(runs.id, runOutcomes.runId))
-      : db.select({ runId: runOutcomes.runId, litres: sql<number>`SUM(${runOutcomes.volumeLitres})` }).from(runOutcomes))
+      ? db
+          .select({ runId: runOutcomes.runId, litres: sql<number>`SUM(${runOutcomes.volumeLitres})` })
+          .from(runOutcomes)
+          .innerJoin(runs, eq(runs.id, runOutcomes.runId))
+      : db.select({ runId: runOutcomes.runId, litres: sql<number>`SUM(${runOutcomes.volumeLitres})` }).from(runOutcomes)
+    )
       .where(and(eq(runOutcomes.workspaceId, workspaceId), eq(runOutcomes.fraction, 'low_wines'), inRuns(runOutcomes.runId)))
       .groupBy(runOutcomes.runId),
   ]);

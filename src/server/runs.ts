@@ -102,25 +102,41 @@ export const runJson = (r: BoardRun): BoardRunJson => dehydrateRun(r);
  */
 async function lockStills(tx: Tx, workspaceId: number, stillIds: number[]) {
   const ids = [...new Set(stillIds)].sort((a, b) => a - b);
-  const locked = await tx.select({ id: stills.id, active: stills.active, cleaningAfterRunMinutes: stills.cleaningAfterRunMinutes, capacityLitres: stills.capacityLitres })
-    .from(stills).where(and(eq(stills.workspaceId, workspaceId), inArray(stills.id, ids))).orderBy(asc(stills.id)).for('update');
+  const locked = await tx
+    .select({ id: stills.id, active: stills.active, cleaningAfterRunMinutes: stills.cleaningAfterRunMinutes, capacityLitres: stills.capacityLitres })
+    .from(stills)
+    .where(and(eq(stills.workspaceId, workspaceId), inArray(stills.id, ids)))
+    .orderBy(asc(stills.id))
+    .for('update');
   if (locked.length !== ids.length) throw notFound('No such still in this distillery.');
-  await tx.update(stills)
+  await tx
+    .update(stills)
     .set({ updatedAt: sql`GREATEST(CURRENT_TIMESTAMP(3), ${stills.updatedAt} + INTERVAL 1000 MICROSECOND)` })
     .where(and(eq(stills.workspaceId, workspaceId), inArray(stills.id, ids)));
   return new Map(locked.map((s) => [s.id, s]));
 }
 
 /** Refuse (409) when the run's busy time on its still, cleaning slot included, overlaps another live run's. */
-async function assertNoOverlap(tx: Tx, workspaceId: number, candidate: Pick<BoardRun, 'stillId' | 'type' | 'status' | 'startsAt' | 'endsAt'> & { id: number | undefined }, cleaningMinutes: number): Promise<void> {
+async function assertNoOverlap(
+  tx: Tx,
+  workspaceId: number,
+  candidate: Pick<BoardRun, 'stillId' | 'type' | 'status' | 'startsAt' | 'endsAt'> & { id: number | undefined },
+  cleaningMinutes: number,
+): Promise<void> {
   if (candidate.status === 'cancelled' || candidate.status === 'done') return;
   const pad = cleaningMinutes * MINUTE_MS;
-  const nearby = await tx.select({ id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt })
+  const nearby = await tx
+    .select({ id: runs.id, stillId: runs.stillId, type: runs.type, status: runs.status, startsAt: runs.startsAt, endsAt: runs.endsAt })
     .from(runs)
-    .where(and(
-      eq(runs.workspaceId, workspaceId), eq(runs.stillId, candidate.stillId), ne(runs.status, 'cancelled'),
-      lt(runs.startsAt, new Date(candidate.endsAt.getTime() + pad)), gt(runs.endsAt, new Date(candidate.startsAt.getTime() - pad)),
-    ));
+    .where(
+      and(
+        eq(runs.workspaceId, workspaceId),
+        eq(runs.stillId, candidate.stillId),
+        ne(runs.status, 'cancelled'),
+        lt(runs.startsAt, new Date(candidate.endsAt.getTime() + pad)),
+        gt(runs.endsAt, new Date(candidate.startsAt.getTime() - pad)),
+      ),
+    );
   const clash = findOverlap(candidate, nearby, { cleaningAfterRunMinutes: cleaningMinutes });
   if (clash) {
     throw conflict('That still is already booked then (the cleaning slot after a run counts as booked).', {
@@ -131,17 +147,24 @@ async function assertNoOverlap(tx: Tx, workspaceId: number, candidate: Pick<Boar
 
 async function assertOperator(db: Reader, workspaceId: number, operatorId: number | null | undefined): Promise<void> {
   if (operatorId === null || operatorId === undefined) return;
-  const [m] = await db.select({ role: memberships.role }).from(memberships)
-    .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, operatorId))).limit(1);
+  const [m] = await db
+    .select({ role: memberships.role })
+    .from(memberships)
+    .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, operatorId)))
+    .limit(1);
   if (!m) throw invalid('operatorId', 'That person is not a member of this distillery.');
 }
 
 async function assertCharges(db: Reader, workspaceId: number, type: RunType, lines: CreateRunInput['ferments']): Promise<void> {
   if (!lines?.length) return;
-  if (type !== 'stripping' && type !== 'redistillation') throw invalid('ferments', 'Only stripping runs take wash from ferments; spirit runs are fed by stripping runs.');
+  if (type !== 'stripping' && type !== 'redistillation')
+    throw invalid('ferments', 'Only stripping runs take wash from ferments; spirit runs are fed by stripping runs.');
   const ids = [...new Set(lines.map((l) => l.fermentId))];
   if (ids.length !== lines.length) throw invalid('ferments', 'Name each ferment once.');
-  const found = await db.select({ id: ferments.id }).from(ferments).where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, ids)));
+  const found = await db
+    .select({ id: ferments.id })
+    .from(ferments)
+    .where(and(eq(ferments.workspaceId, workspaceId), inArray(ferments.id, ids)));
   if (found.length !== ids.length) throw invalid('ferments', 'One of those ferments is not in this distillery.');
 }
 
@@ -151,7 +174,10 @@ async function assertFeeds(db: Reader, workspaceId: number, type: RunType, lines
   const ids = [...new Set(lines.map((l) => l.runId))];
   if (ids.length !== lines.length) throw invalid('feeds', 'Name each feeding run once.');
   if (runId !== undefined && ids.includes(runId)) throw invalid('feeds', 'A run cannot feed itself.');
-  const found = await db.select({ id: runs.id, type: runs.type }).from(runs).where(and(eq(runs.workspaceId, workspaceId), inArray(runs.id, ids)));
+  const found = await db
+    .select({ id: runs.id, type: runs.type })
+    .from(runs)
+    .where(and(eq(runs.workspaceId, workspaceId), inArray(runs.id, ids)));
   if (found.length !== ids.length) throw invalid('feeds', 'One of those feeding runs is not in this distillery.');
   if (found.some((r) => r.type !== 'stripping')) throw invalid('feeds', 'Low wines come from stripping runs.');
 }
@@ -162,10 +188,16 @@ function assertTimes(startsAt: Date, endsAt: Date): void {
   if (minutes > MAX_RUN_MINUTES) throw invalid('endsAt', 'A run can be at most a week long.');
 }
 
-async function writeLines(tx: Tx, workspaceId: number, runId: number, input: { ferments?: CreateRunInput['ferments']; feeds?: CreateRunInput['feeds'] }): Promise<void> {
+async function writeLines(
+  tx: Tx,
+  workspaceId: number,
+  runId: number,
+  input: { ferments?: CreateRunInput['ferments']; feeds?: CreateRunInput['feeds'] },
+): Promise<void> {
   if (input.ferments) {
     await tx.delete(runFerments).where(and(eq(runFerments.workspaceId, workspaceId), eq(runFerments.runId, runId)));
-    if (input.ferments.length) await tx.insert(runFerments).values(input.ferments.map((l) => ({ runId, fermentId: l.fermentId, workspaceId, litres: l.litres })));
+    if (input.ferments.length)
+      await tx.insert(runFerments).values(input.ferments.map((l) => ({ runId, fermentId: l.fermentId, workspaceId, litres: l.litres })));
   }
   if (input.feeds) {
     await tx.delete(runFeeds).where(and(eq(runFeeds.workspaceId, workspaceId), eq(runFeeds.runId, runId)));
@@ -173,10 +205,20 @@ async function writeLines(tx: Tx, workspaceId: number, runId: number, input: { f
   }
 }
 
-const auditRun = (r: BoardRun) => ({ stillId: r.stillId, type: r.type, status: r.status, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString(), operatorId: r.operatorId });
+const auditRun = (r: BoardRun) => ({
+  stillId: r.stillId,
+  type: r.type,
+  status: r.status,
+  startsAt: r.startsAt.toISOString(),
+  endsAt: r.endsAt.toISOString(),
+  operatorId: r.operatorId,
+});
 
 export async function createRun(ctx: Ctx, input: CreateRunInput): Promise<BoardRun> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   const db = getDb();
   const still = await getStill(ctx, input.stillId);
   if (!still.active) throw invalid('stillId', 'That still is retired.');
@@ -184,9 +226,8 @@ export async function createRun(ctx: Ctx, input: CreateRunInput): Promise<BoardR
   await assertCharges(db, workspaceId, input.type, input.ferments);
   await assertFeeds(db, workspaceId, input.type, input.feeds);
   // A charge sent (even null) is stored as sent; otherwise the charge the lines give.
-  const chargeLitres = input.chargeLitres !== undefined
-    ? input.chargeLitres
-    : runChargeLitres({ chargeLitres: null, ferments: input.ferments ?? [], feeds: input.feeds ?? [] });
+  const chargeLitres =
+    input.chargeLitres !== undefined ? input.chargeLitres : runChargeLitres({ chargeLitres: null, ferments: input.ferments ?? [], feeds: input.feeds ?? [] });
   const minutes = input.durationMinutes ?? defaultRunMinutes(still, input.type, chargeLitres, input.chargeAbv ?? null);
   const endsAt = input.endsAt ?? new Date(input.startsAt.getTime() + minutes * MINUTE_MS);
   assertTimes(input.startsAt, endsAt);
@@ -196,10 +237,22 @@ export async function createRun(ctx: Ctx, input: CreateRunInput): Promise<BoardR
     const cleaning = locked.get(input.stillId)!.cleaningAfterRunMinutes;
     const status = input.status ?? 'planned';
     await assertNoOverlap(tx, workspaceId, { id: undefined, stillId: input.stillId, type: input.type, status, startsAt: input.startsAt, endsAt }, cleaning);
-    const [row] = await tx.insert(runs).values({
-      workspaceId, stillId: input.stillId, type: input.type, status, startsAt: input.startsAt, endsAt,
-      operatorId: input.operatorId ?? null, chargeLitres, chargeAbv: input.chargeAbv ?? null, notes: input.notes ?? null, createdBy: userId,
-    }).$returningId();
+    const [row] = await tx
+      .insert(runs)
+      .values({
+        workspaceId,
+        stillId: input.stillId,
+        type: input.type,
+        status,
+        startsAt: input.startsAt,
+        endsAt,
+        operatorId: input.operatorId ?? null,
+        chargeLitres,
+        chargeAbv: input.chargeAbv ?? null,
+        notes: input.notes ?? null,
+        createdBy: userId,
+      })
+      .$returningId();
     const id = row!.id;
     await writeLines(tx, workspaceId, id, input);
     const after = await getRun(ctx, id, tx);
@@ -211,7 +264,11 @@ export async function createRun(ctx: Ctx, input: CreateRunInput): Promise<BoardR
 
 /** Lock the run row and check the version the caller saw; 409 with the current run when stale. */
 async function lockRun(tx: Tx, ctx: Ctx, id: number, version: number): Promise<BoardRun> {
-  const [row] = await tx.select({ id: runs.id }).from(runs).where(and(eq(runs.id, id), eq(runs.workspaceId, ctx.ws.id))).for('update');
+  const [row] = await tx
+    .select({ id: runs.id })
+    .from(runs)
+    .where(and(eq(runs.id, id), eq(runs.workspaceId, ctx.ws.id)))
+    .for('update');
   if (!row) throw notFound('No such run in this distillery.');
   const current = await getRun(ctx, id, tx);
   if (current.version !== version) {
@@ -224,7 +281,10 @@ const same = (a: Date, b: Date) => a.getTime() === b.getTime();
 
 /** Move, resize or edit a run. Moving and resizing keep its wall-clock meaning only as sent: the island snaps times. */
 export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Promise<BoardRun> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   const db = getDb();
   await assertOperator(db, workspaceId, input.operatorId);
   // Validate lines against the type they will have (the current type when unchanged).
@@ -259,7 +319,11 @@ export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Pr
       await assertNoOverlap(tx, workspaceId, { id, stillId, type, status, startsAt, endsAt }, target.cleaningAfterRunMinutes);
     }
     const set: Partial<typeof runs.$inferInsert> = {
-      stillId, startsAt, endsAt, type, status,
+      stillId,
+      startsAt,
+      endsAt,
+      type,
+      status,
       version: sql`${runs.version} + 1` as unknown as number,
     };
     if (timeOrStillChanged || statusChanged) set.sequence = sql`${runs.sequence} + 1` as unknown as number;
@@ -267,21 +331,34 @@ export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Pr
     if (input.chargeLitres !== undefined) set.chargeLitres = input.chargeLitres;
     if (input.chargeAbv !== undefined) set.chargeAbv = input.chargeAbv;
     if (input.notes !== undefined) set.notes = input.notes;
-    await tx.update(runs).set(set).where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
+    await tx
+      .update(runs)
+      .set(set)
+      .where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
     await writeLines(tx, workspaceId, id, input);
     const after = await getRun(ctx, id, tx);
     const kind = timeOrStillChanged ? 'move' : 'update';
-    await audit({
-      workspaceId, userId, action: timeOrStillChanged ? 'run.move' : 'run.update', entityType: 'run', entityId: id,
-      details: { before: auditRun(before), after: auditRun(after), fields: Object.keys(input).filter((k) => k !== 'version') },
-    }, tx);
+    await audit(
+      {
+        workspaceId,
+        userId,
+        action: timeOrStillChanged ? 'run.move' : 'run.update',
+        entityType: 'run',
+        entityId: id,
+        details: { before: auditRun(before), after: auditRun(after), fields: Object.keys(input).filter((k) => k !== 'version') },
+      },
+      tx,
+    );
     await onRunChanged(tx, { kind, workspaceId, before, after, actorId: userId });
     return after;
   });
 }
 
 async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel' | 'start' | 'finish', reason?: string): Promise<BoardRun> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   return inRetriedTransaction(async (tx) => {
     const before = await lockRun(tx, ctx, id, version);
     const allowed: Record<typeof kind, string[]> = { cancel: ['planned', 'confirmed'], start: ['planned', 'confirmed'], finish: ['running'] };
@@ -292,15 +369,21 @@ async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel
     await lockStills(tx, workspaceId, [before.stillId]);
     const now = new Date();
     const next = kind === 'cancel' ? 'cancelled' : kind === 'start' ? 'running' : 'done';
-    await tx.update(runs).set({
-      status: next,
-      version: sql`${runs.version} + 1` as unknown as number,
-      sequence: sql`${runs.sequence} + 1` as unknown as number,
-      ...(kind === 'start' ? { startedAt: now } : {}),
-      ...(kind === 'finish' ? { finishedAt: now } : {}),
-    }).where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
+    await tx
+      .update(runs)
+      .set({
+        status: next,
+        version: sql`${runs.version} + 1` as unknown as number,
+        sequence: sql`${runs.sequence} + 1` as unknown as number,
+        ...(kind === 'start' ? { startedAt: now } : {}),
+        ...(kind === 'finish' ? { finishedAt: now } : {}),
+      })
+      .where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
     const after = await getRun(ctx, id, tx);
-    await audit({ workspaceId, userId, action: `run.${kind}`, entityType: 'run', entityId: id, details: { before: auditRun(before), ...(reason ? { reason } : {}) } }, tx);
+    await audit(
+      { workspaceId, userId, action: `run.${kind}`, entityType: 'run', entityId: id, details: { before: auditRun(before), ...(reason ? { reason } : {}) } },
+      tx,
+    );
     await onRunChanged(tx, { kind, workspaceId, before, after, actorId: userId });
     return after;
   });

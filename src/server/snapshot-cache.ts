@@ -12,7 +12,7 @@ const HOUR_MS = 3_600_000;
  */
 export async function workspaceFingerprint(workspaceId: number): Promise<string> {
   const w = workspaceId;
-  const [rows] = await getDb().execute(sql`SELECT
+  const [rows] = (await getDb().execute(sql`SELECT
     (SELECT CONCAT(COUNT(*), '/', COALESCE(SUM(version), 0), '/', COALESCE(MAX(updated_at), '')) FROM runs WHERE workspace_id = ${w}) AS r,
     (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM stills WHERE workspace_id = ${w}) AS s,
     (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM still_closures WHERE workspace_id = ${w}) AS c,
@@ -20,7 +20,7 @@ export async function workspaceFingerprint(workspaceId: number): Promise<string>
     (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(computed_at), '')) FROM ferment_forecasts WHERE workspace_id = ${w}) AS p,
     (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM fermenters WHERE workspace_id = ${w}) AS v,
     (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(u.updated_at), '')) FROM memberships m JOIN users u ON u.id = m.user_id WHERE m.workspace_id = ${w}) AS m,
-    (SELECT CONCAT(updated_at, '') FROM workspaces WHERE id = ${w}) AS w`) as unknown as [Array<Record<string, unknown>>];
+    (SELECT CONCAT(updated_at, '') FROM workspaces WHERE id = ${w}) AS w`)) as unknown as [Array<Record<string, unknown>>];
   return JSON.stringify(rows[0] ?? {});
 }
 
@@ -68,7 +68,10 @@ async function freshFingerprint(workspaceId: number, nowMs = Date.now()): Promis
 export class SnapshotCache<T> {
   private entries = new Map<string, { fingerprint: string; at: number; hour: number; value: T }>();
   private building = new Map<string, Promise<T>>();
-  constructor(private maxAgeMs: number, private maxEntries = 64) {}
+  constructor(
+    private maxAgeMs: number,
+    private maxEntries = 64,
+  ) {}
 
   /** `fresh`: read the fingerprint now rather than trust a recent read (the client just changed something). */
   async get(workspaceId: number, key: string, now: Date, build: () => Promise<T>, opts: { fresh?: boolean } = {}): Promise<T> {
@@ -89,6 +92,10 @@ export class SnapshotCache<T> {
       return value;
     })();
     this.building.set(flightKey, job);
-    try { return await job; } finally { this.building.delete(flightKey); }
+    try {
+      return await job;
+    } finally {
+      this.building.delete(flightKey);
+    }
   }
 }

@@ -22,8 +22,7 @@ export const MAX_BLOCK_MS = 15 * 60 * 1000;
 // slip under the limit. A success may forgive a key afterwards (sign-in forgives the e-mail).
 // ---------------------------------------------------------------------------
 
-export type ThrottleBucket =
-  | 'sign_in' | 'sign_up' | 'forgot_password' | 'confirm' | 'accept_invitation' | 'reset_password' | 'password_change';
+export type ThrottleBucket = 'sign_in' | 'sign_up' | 'forgot_password' | 'confirm' | 'accept_invitation' | 'reset_password' | 'password_change';
 
 /** Attempts allowed per window for one key, and the block once they are used up. */
 export interface ThrottleRule {
@@ -79,10 +78,7 @@ const THROTTLE_MESSAGES: Record<ThrottleBucket, string> = {
 };
 
 /** The longest window of any rule: a row older than this with no running block is dead. */
-export const LONGEST_THROTTLE_WINDOW_MS = Math.max(
-  WINDOW_MS,
-  ...Object.values(THROTTLE_RULES).flatMap((rules) => Object.values(rules).map((r) => r.windowMs)),
-);
+export const LONGEST_THROTTLE_WINDOW_MS = Math.max(WINDOW_MS, ...Object.values(THROTTLE_RULES).flatMap((rules) => Object.values(rules).map((r) => r.windowMs)));
 
 const KEY_COLUMN_LENGTH = 300;
 
@@ -126,14 +122,15 @@ export async function takeAttempt(bucket: ThrottleBucket, keys: readonly string[
   let waitMs = 0;
   for (let attempt = 1; ; attempt++) {
     try {
-      waitMs = await getDb().transaction(async (tx) => {
-        for (const key of stored) {
-          const r = ruleOf.get(key)!;
-          const windowStartedBefore = new Date(now.getTime() - r.windowMs);
-          const firstBlock = r.free < 1 ? new Date(now.getTime() + Math.min(r.maxBlockMs, r.baseBlockMs)) : null;
-          // Assignments run left to right and each sees the columns already assigned: blocked_until
-          // reads the old count and window, failures the old window, the window itself goes last.
-          await tx.execute(sql`INSERT INTO sign_in_throttle (throttle_key, failures, window_started_at, blocked_until)
+      waitMs = await getDb().transaction(
+        async (tx) => {
+          for (const key of stored) {
+            const r = ruleOf.get(key)!;
+            const windowStartedBefore = new Date(now.getTime() - r.windowMs);
+            const firstBlock = r.free < 1 ? new Date(now.getTime() + Math.min(r.maxBlockMs, r.baseBlockMs)) : null;
+            // Assignments run left to right and each sees the columns already assigned: blocked_until
+            // reads the old count and window, failures the old window, the window itself goes last.
+            await tx.execute(sql`INSERT INTO sign_in_throttle (throttle_key, failures, window_started_at, blocked_until)
             VALUES (${key}, 1, ${now}, ${firstBlock})
             ON DUPLICATE KEY UPDATE
               blocked_until = IF(window_started_at <= ${windowStartedBefore},
@@ -144,13 +141,18 @@ export async function takeAttempt(bucket: ThrottleBucket, keys: readonly string[
                   blocked_until)),
               failures = IF(window_started_at <= ${windowStartedBefore}, 1, failures + 1),
               window_started_at = IF(window_started_at <= ${windowStartedBefore}, ${now}, window_started_at)`);
-        }
-        const [rows] = await tx.execute(sql`SELECT blocked_until FROM sign_in_throttle
-          WHERE throttle_key IN (${sql.join(stored.map((k) => sql`${k}`), sql`, `)}) AND blocked_until > ${now}`);
-        let worst = 0;
-        for (const row of rows as unknown as { blocked_until: Date }[]) worst = Math.max(worst, new Date(row.blocked_until).getTime() - now.getTime());
-        return worst;
-      }, { isolationLevel: 'read committed' });
+          }
+          const [rows] = await tx.execute(sql`SELECT blocked_until FROM sign_in_throttle
+          WHERE throttle_key IN (${sql.join(
+            stored.map((k) => sql`${k}`),
+            sql`, `,
+          )}) AND blocked_until > ${now}`);
+          let worst = 0;
+          for (const row of rows as unknown as { blocked_until: Date }[]) worst = Math.max(worst, new Date(row.blocked_until).getTime() - now.getTime());
+          return worst;
+        },
+        { isolationLevel: 'read committed' },
+      );
       break;
     } catch (err) {
       if (attempt >= 6 || !isRetryableTxError(err)) throw err;
@@ -160,7 +162,9 @@ export async function takeAttempt(bucket: ThrottleBucket, keys: readonly string[
 
   if (now.getTime() - lastPrunedAt >= PRUNE_EVERY_MS) {
     lastPrunedAt = now.getTime();
-    void pruneThrottle(now).catch(() => { /* best effort: the next prune takes what this one left */ });
+    void pruneThrottle(now).catch(() => {
+      /* best effort: the next prune takes what this one left */
+    });
   }
 
   if (waitMs > 0) {
@@ -171,7 +175,9 @@ export async function takeAttempt(bucket: ThrottleBucket, keys: readonly string[
 
 /** Clears one key of a bucket after a success (sign-in forgives the e-mail, never the address). */
 export async function forgive(bucket: ThrottleBucket, key: string): Promise<void> {
-  await getDb().delete(signInThrottle).where(eq(signInThrottle.key, storedThrottleKey(bucket, key)));
+  await getDb()
+    .delete(signInThrottle)
+    .where(eq(signInThrottle.key, storedThrottleKey(bucket, key)));
 }
 
 /**
@@ -185,7 +191,10 @@ export async function refund(bucket: ThrottleBucket, keys: readonly string[], op
   const stored = [...new Set(keys.map((k) => storedThrottleKey(bucket, k)))];
   if (stored.length === 0) return;
   await getDb().execute(sql`UPDATE sign_in_throttle SET failures = GREATEST(failures - 1, 0)
-    WHERE throttle_key IN (${sql.join(stored.map((k) => sql`${k}`), sql`, `)}) AND (blocked_until IS NULL OR blocked_until <= ${now})`);
+    WHERE throttle_key IN (${sql.join(
+      stored.map((k) => sql`${k}`),
+      sql`, `,
+    )}) AND (blocked_until IS NULL OR blocked_until <= ${now})`);
 }
 
 /**

@@ -20,7 +20,12 @@ const PREVIEW_ROWS = 200;
 const PREVIEW_REJECTED = 500;
 
 const mb = (n: number) => `${(n / 1024 / 1024).toFixed(0)} MB`;
-const tooLarge = () => new HttpError(413, 'too_large', `The file is larger than ${mb(MAX_UPLOAD_BYTES)}. Split it into smaller files (at most ${MAX_UPLOAD_ROWS.toLocaleString('en-GB')} readings each).`);
+const tooLarge = () =>
+  new HttpError(
+    413,
+    'too_large',
+    `The file is larger than ${mb(MAX_UPLOAD_BYTES)}. Split it into smaller files (at most ${MAX_UPLOAD_ROWS.toLocaleString('en-GB')} readings each).`,
+  );
 
 /**
  * Reads the upload without ever holding more than the limit: refuses at once on a declared
@@ -72,7 +77,10 @@ export interface UploadPreview {
 
 /** Parse, check and stage a logger CSV for one ferment; nothing is written to readings. */
 export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now = new Date()): Promise<UploadPreview> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const ferment = await getFerment(ctx, fermentId);
   if (ferment.emptiedAt) throw conflict(`${ferment.code} has been emptied; readings can no longer be added.`);
   const parsed = parseLoggerCsv(text, { timeZone: ws.timeZone, defaultTempUnit: temperatureUnitFor(ws.units) });
@@ -81,7 +89,9 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
     throw new HttpError(status, parsed.fatal.code, `Nothing was imported. ${parsed.fatal.message}`);
   }
   const db = getDb();
-  const existing = await db.select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg }).from(readings)
+  const existing = await db
+    .select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg })
+    .from(readings)
     .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, fermentId), isNull(readings.deletedAt)));
   const existingTimes = new Set(existing.map((r) => r.takenAt.getTime()));
   const rejected = [...parsed.rejected];
@@ -92,11 +102,27 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
   const history = existing.map((r) => ({ takenAt: r.takenAt, correctedSg: r.correctedSg }));
   for (const row of rows) {
     try {
-      const c = deriveCorrected(ws, ferment, { value: row.value, unit: row.unit, method: row.method, sampleTempC: row.sampleTempC, takenAt: row.takenAt }, history, now);
+      const c = deriveCorrected(
+        ws,
+        ferment,
+        { value: row.value, unit: row.unit, method: row.method, sampleTempC: row.sampleTempC, takenAt: row.takenAt },
+        history,
+        now,
+      );
       const t = row.takenAt.getTime();
       const duplicate = existingTimes.has(t) || seenInFile.has(t);
       seenInFile.add(t);
-      accepted.push({ line: row.line, takenAt: row.takenAt.toISOString(), value: row.value, unit: row.unit, method: row.method, sampleTempC: row.sampleTempC, correctedSg: c.sg, lowConfidence: c.lowConfidence, duplicate });
+      accepted.push({
+        line: row.line,
+        takenAt: row.takenAt.toISOString(),
+        value: row.value,
+        unit: row.unit,
+        method: row.method,
+        sampleTempC: row.sampleTempC,
+        correctedSg: c.sg,
+        lowConfidence: c.lowConfidence,
+        duplicate,
+      });
       if (!duplicate) history.push({ takenAt: row.takenAt, correctedSg: c.sg });
     } catch (err) {
       if (err instanceof HttpError) rejected.push({ line: row.line, reason: err.message, raw: '' });
@@ -111,12 +137,22 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
   const expiresAt = new Date(now.getTime() + UPLOAD_TTL_MS);
   await db.delete(readingUploads).where(and(eq(readingUploads.workspaceId, ws.id), lt(readingUploads.expiresAt, now)));
   await db.insert(readingUploads).values({
-    id: uploadId, workspaceId: ws.id, fermentId, userId, accepted: accepted.filter((r) => !r.duplicate),
-    summary: { counts, delimiter: parsed.delimiter }, expiresAt, createdAt: now,
+    id: uploadId,
+    workspaceId: ws.id,
+    fermentId,
+    userId,
+    accepted: accepted.filter((r) => !r.duplicate),
+    summary: { counts, delimiter: parsed.delimiter },
+    expiresAt,
+    createdAt: now,
   });
   return {
-    uploadId, expiresAt: expiresAt.toISOString(), delimiter: parsed.delimiter, counts,
-    accepted: accepted.slice(0, PREVIEW_ROWS), rejected: rejected.slice(0, PREVIEW_REJECTED),
+    uploadId,
+    expiresAt: expiresAt.toISOString(),
+    delimiter: parsed.delimiter,
+    counts,
+    accepted: accepted.slice(0, PREVIEW_ROWS),
+    rejected: rejected.slice(0, PREVIEW_REJECTED),
     truncated: { accepted: accepted.length > PREVIEW_ROWS, rejected: rejected.length > PREVIEW_REJECTED },
   };
 }
@@ -127,44 +163,79 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
  * already there) are skipped, not imported twice.
  */
 export async function commitUpload(ctx: Ctx, fermentId: number, uploadId: string, now = new Date()): Promise<{ imported: number; skippedDuplicates: number }> {
-  const { ws, actor: { userId } } = ctx;
+  const {
+    ws,
+    actor: { userId },
+  } = ctx;
   const ferment = await getFerment(ctx, fermentId);
   const db = getDb();
   const result = await db.transaction(async (tx) => {
-    const [staged] = await tx.select().from(readingUploads)
-      .where(and(eq(readingUploads.id, uploadId), eq(readingUploads.workspaceId, ws.id), eq(readingUploads.fermentId, fermentId))).for('update');
+    const [staged] = await tx
+      .select()
+      .from(readingUploads)
+      .where(and(eq(readingUploads.id, uploadId), eq(readingUploads.workspaceId, ws.id), eq(readingUploads.fermentId, fermentId)))
+      .for('update');
     if (!staged) throw notFound('No such upload (it may have expired): upload the file again.');
     if (staged.committedAt) throw conflict('This upload has already been imported.');
     if (staged.expiresAt.getTime() <= now.getTime()) throw new HttpError(410, 'expired', 'This preview expired after an hour: upload the file again.');
     if (ferment.emptiedAt) throw conflict(`${ferment.code} has been emptied; readings can no longer be added.`);
     const rows = (staged.accepted as StagedRow[]).map((r) => ({ ...r, at: new Date(r.takenAt) })).sort((a, b) => a.at.getTime() - b.at.getTime());
-    const existing = await tx.select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg }).from(readings)
+    const existing = await tx
+      .select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg })
+      .from(readings)
       .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, fermentId), isNull(readings.deletedAt)));
     const times = new Set(existing.map((r) => r.takenAt.getTime()));
     const history = existing.map((r) => ({ takenAt: r.takenAt, correctedSg: r.correctedSg }));
     const values: Array<typeof readings.$inferInsert> = [];
     let skipped = 0;
     for (const r of rows) {
-      if (times.has(r.at.getTime())) { skipped++; continue; }
+      if (times.has(r.at.getTime())) {
+        skipped++;
+        continue;
+      }
       let c: { sg: number; lowConfidence: boolean };
       try {
         c = deriveCorrected(ws, ferment, { value: r.value, unit: r.unit, method: r.method, sampleTempC: r.sampleTempC, takenAt: r.at }, history, now);
       } catch (err) {
-        if (err instanceof HttpError) throw new HttpError(409, 'row_failed', `Nothing was imported: line ${r.line} no longer passes (${err.message}). Upload the file again.`);
+        if (err instanceof HttpError)
+          throw new HttpError(409, 'row_failed', `Nothing was imported: line ${r.line} no longer passes (${err.message}). Upload the file again.`);
         throw err;
       }
       times.add(r.at.getTime());
       history.push({ takenAt: r.at, correctedSg: c.sg });
       values.push({
-        workspaceId: ws.id, fermentId, takenAt: r.at, method: r.method, rawValue: r.value, rawUnit: r.unit, sampleTempC: r.sampleTempC,
-        sampleTempUnit: r.sampleTempC === null ? null : 'C', correctedSg: c.sg, lowConfidence: c.lowConfidence, source: 'upload', uploadId, takenBy: userId,
+        workspaceId: ws.id,
+        fermentId,
+        takenAt: r.at,
+        method: r.method,
+        rawValue: r.value,
+        rawUnit: r.unit,
+        sampleTempC: r.sampleTempC,
+        sampleTempUnit: r.sampleTempC === null ? null : 'C',
+        correctedSg: c.sg,
+        lowConfidence: c.lowConfidence,
+        source: 'upload',
+        uploadId,
+        takenBy: userId,
       });
     }
     for (let i = 0; i < values.length; i += 1000) await tx.insert(readings).values(values.slice(i, i + 1000));
-    const marked = await tx.update(readingUploads).set({ committedAt: now })
+    const marked = await tx
+      .update(readingUploads)
+      .set({ committedAt: now })
       .where(and(eq(readingUploads.id, uploadId), isNull(readingUploads.committedAt), gt(readingUploads.expiresAt, now)));
     if ((marked as unknown as [{ affectedRows: number }])[0].affectedRows !== 1) throw conflict('This upload has already been imported.');
-    await audit({ workspaceId: ws.id, userId, action: 'reading.upload', entityType: 'ferment', entityId: fermentId, details: { uploadId, imported: values.length, skippedDuplicates: skipped } }, tx);
+    await audit(
+      {
+        workspaceId: ws.id,
+        userId,
+        action: 'reading.upload',
+        entityType: 'ferment',
+        entityId: fermentId,
+        details: { uploadId, imported: values.length, skippedDuplicates: skipped },
+      },
+      tx,
+    );
     return { imported: values.length, skippedDuplicates: skipped };
   });
   await recomputeForecast(ctx, fermentId, now);

@@ -16,7 +16,11 @@ export const fermenterInputSchema = z.object({
   position: z.number().int().min(0).max(10_000).optional(),
 });
 
-const sg = (what: string) => z.number({ error: `Enter the ${what} as an SG, e.g. 1.004.` }).min(0.98, `The ${what} must be at least 0.980.`).max(1.2, `The ${what} must be at most 1.200.`);
+const sg = (what: string) =>
+  z
+    .number({ error: `Enter the ${what} as an SG, e.g. 1.004.` })
+    .min(0.98, `The ${what} must be at least 0.980.`)
+    .max(1.2, `The ${what} must be at most 1.200.`);
 
 /** A wash type as a manager sends it (POST /api/wash-types; PATCH takes it partial). */
 export const washTypeInputSchema = z.object({
@@ -74,8 +78,13 @@ export async function listFermenters(ctx: Ctx): Promise<FermenterRow[]> {
   const workspaceId = ctx.ws.id;
   const rows = await db
     .select({
-      id: fermenters.id, name: fermenters.name, capacityLitres: fermenters.capacityLitres, position: fermenters.position, active: fermenters.active,
-      fermentId: ferments.id, fermentCode: ferments.code,
+      id: fermenters.id,
+      name: fermenters.name,
+      capacityLitres: fermenters.capacityLitres,
+      position: fermenters.position,
+      active: fermenters.active,
+      fermentId: ferments.id,
+      fermentCode: ferments.code,
     })
     .from(fermenters)
     .leftJoin(ferments, and(eq(ferments.fermenterId, fermenters.id), isNull(ferments.emptiedAt), eq(ferments.workspaceId, workspaceId)))
@@ -85,29 +94,50 @@ export async function listFermenters(ctx: Ctx): Promise<FermenterRow[]> {
   for (const r of rows) {
     if (seen.has(r.id)) continue;
     seen.set(r.id, {
-      id: r.id, name: r.name, capacityLitres: r.capacityLitres, position: r.position, active: r.active,
+      id: r.id,
+      name: r.name,
+      capacityLitres: r.capacityLitres,
+      position: r.position,
+      active: r.active,
       activeFerment: r.fermentId ? { id: r.fermentId, code: r.fermentCode! } : null,
     });
   }
   return [...seen.values()];
 }
 
-export interface FermenterInput { name: string; capacityLitres: number; active?: boolean; position?: number }
+export interface FermenterInput {
+  name: string;
+  capacityLitres: number;
+  active?: boolean;
+  position?: number;
+}
 
 async function assertUniqueFermenterName(workspaceId: number, name: string, exceptId?: number): Promise<void> {
-  const same = await getDb().select({ id: fermenters.id }).from(fermenters)
+  const same = await getDb()
+    .select({ id: fermenters.id })
+    .from(fermenters)
     .where(and(eq(fermenters.workspaceId, workspaceId), eq(fermenters.name, name)));
   if (same.some((r) => r.id !== exceptId)) throw invalid('name', `A fermenter called "${name}" already exists.`);
 }
 
 export async function createFermenter(ctx: Ctx, input: FermenterInput): Promise<FermenterRow> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   await assertUniqueFermenterName(workspaceId, input.name);
   const db = getDb();
   const id = await db.transaction(async (tx) => {
-    const [row] = await tx.insert(fermenters).values({
-      workspaceId, name: input.name, capacityLitres: input.capacityLitres, active: input.active ?? true, position: input.position ?? 0,
-    }).$returningId();
+    const [row] = await tx
+      .insert(fermenters)
+      .values({
+        workspaceId,
+        name: input.name,
+        capacityLitres: input.capacityLitres,
+        active: input.active ?? true,
+        position: input.position ?? 0,
+      })
+      .$returningId();
     await audit({ workspaceId, userId, action: 'fermenter.create', entityType: 'fermenter', entityId: row!.id, details: { ...input } }, tx);
     return row!.id;
   });
@@ -115,37 +145,73 @@ export async function createFermenter(ctx: Ctx, input: FermenterInput): Promise<
 }
 
 export async function updateFermenter(ctx: Ctx, id: number, input: Partial<FermenterInput>): Promise<FermenterRow> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   const db = getDb();
-  const [before] = await db.select().from(fermenters).where(and(eq(fermenters.id, id), eq(fermenters.workspaceId, workspaceId))).limit(1);
+  const [before] = await db
+    .select()
+    .from(fermenters)
+    .where(and(eq(fermenters.id, id), eq(fermenters.workspaceId, workspaceId)))
+    .limit(1);
   if (!before) throw notFound('No such fermenter.');
   if (input.name !== undefined) await assertUniqueFermenterName(workspaceId, input.name, id);
   if (input.active === false) {
-    const [busy] = await db.select({ code: ferments.code }).from(ferments)
-      .where(and(eq(ferments.workspaceId, workspaceId), eq(ferments.fermenterId, id), isNull(ferments.emptiedAt))).limit(1);
+    const [busy] = await db
+      .select({ code: ferments.code })
+      .from(ferments)
+      .where(and(eq(ferments.workspaceId, workspaceId), eq(ferments.fermenterId, id), isNull(ferments.emptiedAt)))
+      .limit(1);
     if (busy) throw conflict(`${before.name} holds ${busy.code}; mark it emptied before retiring the fermenter.`);
   }
   await db.transaction(async (tx) => {
-    await tx.update(fermenters).set(input).where(and(eq(fermenters.id, id), eq(fermenters.workspaceId, workspaceId)));
-    await audit({
-      workspaceId, userId, action: 'fermenter.update', entityType: 'fermenter', entityId: id,
-      details: { before: { name: before.name, capacityLitres: before.capacityLitres, active: before.active, position: before.position }, after: input },
-    }, tx);
+    await tx
+      .update(fermenters)
+      .set(input)
+      .where(and(eq(fermenters.id, id), eq(fermenters.workspaceId, workspaceId)));
+    await audit(
+      {
+        workspaceId,
+        userId,
+        action: 'fermenter.update',
+        entityType: 'fermenter',
+        entityId: id,
+        details: { before: { name: before.name, capacityLitres: before.capacityLitres, active: before.active, position: before.position }, after: input },
+      },
+      tx,
+    );
   });
   return (await listFermenters(ctx)).find((f) => f.id === id)!;
 }
 
-export interface WashTypeRow extends WashTypeDefault { id: number }
+export interface WashTypeRow extends WashTypeDefault {
+  id: number;
+}
 
 export async function listWashTypes(ctx: Ctx): Promise<WashTypeRow[]> {
   const workspaceId = ctx.ws.id;
-  return getDb().select({
-    id: washTypes.id, name: washTypes.name, category: washTypes.category, terminalMin: washTypes.terminalMin,
-    terminalMax: washTypes.terminalMax, typicalOg: washTypes.typicalOg,
-  }).from(washTypes).where(eq(washTypes.workspaceId, workspaceId)).orderBy(asc(washTypes.name), asc(washTypes.id));
+  return getDb()
+    .select({
+      id: washTypes.id,
+      name: washTypes.name,
+      category: washTypes.category,
+      terminalMin: washTypes.terminalMin,
+      terminalMax: washTypes.terminalMax,
+      typicalOg: washTypes.typicalOg,
+    })
+    .from(washTypes)
+    .where(eq(washTypes.workspaceId, workspaceId))
+    .orderBy(asc(washTypes.name), asc(washTypes.id));
 }
 
-export interface WashTypeInput { name: string; category: WashCategory; terminalMin: number; terminalMax: number; typicalOg?: number | null }
+export interface WashTypeInput {
+  name: string;
+  category: WashCategory;
+  terminalMin: number;
+  terminalMax: number;
+  typicalOg?: number | null;
+}
 
 function checkRange(min: number, max: number, og: number | null | undefined): void {
   if (min > max) throw invalid('terminalMax', 'The top of the terminal range must not be below its bottom.');
@@ -153,11 +219,17 @@ function checkRange(min: number, max: number, og: number | null | undefined): vo
 }
 
 export async function createWashType(ctx: Ctx, input: WashTypeInput): Promise<WashTypeRow> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   checkRange(input.terminalMin, input.terminalMax, input.typicalOg);
   const db = getDb();
   const id = await db.transaction(async (tx) => {
-    const [row] = await tx.insert(washTypes).values({ workspaceId, ...input, typicalOg: input.typicalOg ?? null }).$returningId();
+    const [row] = await tx
+      .insert(washTypes)
+      .values({ workspaceId, ...input, typicalOg: input.typicalOg ?? null })
+      .$returningId();
     await audit({ workspaceId, userId, action: 'wash_type.create', entityType: 'wash_type', entityId: row!.id, details: { ...input } }, tx);
     return row!.id;
   });
@@ -165,17 +237,47 @@ export async function createWashType(ctx: Ctx, input: WashTypeInput): Promise<Wa
 }
 
 export async function updateWashType(ctx: Ctx, id: number, input: Partial<WashTypeInput>): Promise<WashTypeRow> {
-  const { ws: { id: workspaceId }, actor: { userId } } = ctx;
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
   const db = getDb();
-  const [before] = await db.select().from(washTypes).where(and(eq(washTypes.id, id), eq(washTypes.workspaceId, workspaceId))).limit(1);
+  const [before] = await db
+    .select()
+    .from(washTypes)
+    .where(and(eq(washTypes.id, id), eq(washTypes.workspaceId, workspaceId)))
+    .limit(1);
   if (!before) throw notFound('No such wash type.');
-  checkRange(input.terminalMin ?? before.terminalMin, input.terminalMax ?? before.terminalMax, input.typicalOg === undefined ? before.typicalOg : input.typicalOg);
+  checkRange(
+    input.terminalMin ?? before.terminalMin,
+    input.terminalMax ?? before.terminalMax,
+    input.typicalOg === undefined ? before.typicalOg : input.typicalOg,
+  );
   await db.transaction(async (tx) => {
-    await tx.update(washTypes).set(input).where(and(eq(washTypes.id, id), eq(washTypes.workspaceId, workspaceId)));
-    await audit({
-      workspaceId, userId, action: 'wash_type.update', entityType: 'wash_type', entityId: id,
-      details: { before: { name: before.name, category: before.category, terminalMin: before.terminalMin, terminalMax: before.terminalMax, typicalOg: before.typicalOg }, after: input },
-    }, tx);
+    await tx
+      .update(washTypes)
+      .set(input)
+      .where(and(eq(washTypes.id, id), eq(washTypes.workspaceId, workspaceId)));
+    await audit(
+      {
+        workspaceId,
+        userId,
+        action: 'wash_type.update',
+        entityType: 'wash_type',
+        entityId: id,
+        details: {
+          before: {
+            name: before.name,
+            category: before.category,
+            terminalMin: before.terminalMin,
+            terminalMax: before.terminalMax,
+            typicalOg: before.typicalOg,
+          },
+          after: input,
+        },
+      },
+      tx,
+    );
   });
   return (await listWashTypes(ctx)).find((w) => w.id === id)!;
 }

@@ -27,8 +27,15 @@ export async function membershipsOf(userId: number): Promise<Array<{ workspaceId
 
 export function toSettings(row: typeof workspaces.$inferSelect): WorkspaceSettings {
   return {
-    id: row.id, name: row.name, timeZone: row.timeZone, units: row.units, calibrationTempC: row.calibrationTempC,
-    stableDays: row.stableDays, stableTolerance: row.stableTolerance, wortCorrectionFactor: row.wortCorrectionFactor, isDemo: row.isDemo,
+    id: row.id,
+    name: row.name,
+    timeZone: row.timeZone,
+    units: row.units,
+    calibrationTempC: row.calibrationTempC,
+    stableDays: row.stableDays,
+    stableTolerance: row.stableTolerance,
+    wortCorrectionFactor: row.wortCorrectionFactor,
+    isDemo: row.isDemo,
   };
 }
 
@@ -37,18 +44,23 @@ export async function workspaceSettings(workspaceId: number): Promise<WorkspaceS
   return row ? toSettings(row) : null;
 }
 
-
 export async function roleIn(userId: number, workspaceId: number): Promise<Role | null> {
-  const [row] = await getDb().select({ role: memberships.role }).from(memberships)
-    .where(and(eq(memberships.userId, userId), eq(memberships.workspaceId, workspaceId))).limit(1);
+  const [row] = await getDb()
+    .select({ role: memberships.role })
+    .from(memberships)
+    .where(and(eq(memberships.userId, userId), eq(memberships.workspaceId, workspaceId)))
+    .limit(1);
   return row?.role ?? null;
 }
 
 /** True when the person belongs to the demo distillery (whose sign-ins are published). */
 export async function isDemoMember(userId: number): Promise<boolean> {
-  const [row] = await getDb().select({ id: workspaces.id }).from(memberships)
+  const [row] = await getDb()
+    .select({ id: workspaces.id })
+    .from(memberships)
     .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
-    .where(and(eq(memberships.userId, userId), eq(workspaces.isDemo, true))).limit(1);
+    .where(and(eq(memberships.userId, userId), eq(workspaces.isDemo, true)))
+    .limit(1);
   return !!row;
 }
 

@@ -36,7 +36,9 @@ describe('account flows end to end in Chromium', () => {
     browser = await launch();
     await getDb().delete(t.signInThrottle).where(like(t.signInThrottle.key, '%'));
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   it('a new distillery signs up on a phone, confirms from the e-mail and chooses the password there', async () => {
     const email = unique('founder');

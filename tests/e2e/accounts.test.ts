@@ -10,8 +10,13 @@ import { newToken, hashToken } from '../../src/server/auth/tokens';
 describe('account pages in Chromium', () => {
   let browser: Browser;
   let ws: TestWorkspace;
-  beforeAll(async () => { browser = await launch(); ws = await createTestWorkspace('Account Pages Distillery'); });
-  afterAll(async () => { await browser?.close(); });
+  beforeAll(async () => {
+    browser = await launch();
+    ws = await createTestWorkspace('Account Pages Distillery');
+  });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   it('the account page at phone width: rename, and sign out another session', async () => {
     await ws.client('planner'); // a second session elsewhere
@@ -53,11 +58,30 @@ describe('account pages in Chromium', () => {
   it('signed-out pages: sign up, forgotten password, reset, invitation, confirmation', async () => {
     const db = getDb();
     const reset = newToken();
-    await db.insert(t.emailTokens).values({ purpose: 'password_reset', tokenHash: hashToken(reset), email: ws.users.staff.email, userId: ws.users.staff.id, expiresAt: new Date(Date.now() + 600_000) });
+    await db.insert(t.emailTokens).values({
+      purpose: 'password_reset',
+      tokenHash: hashToken(reset),
+      email: ws.users.staff.email,
+      userId: ws.users.staff.id,
+      expiresAt: new Date(Date.now() + 600_000),
+    });
     const confirm = newToken();
-    await db.insert(t.emailTokens).values({ purpose: 'signup_confirm', tokenHash: hashToken(confirm), email: `founder-${Date.now()}@test.example`, payload: { name: 'Founder', workspaceName: 'Juniper Hill Distillery' }, expiresAt: new Date(Date.now() + 600_000) });
+    await db.insert(t.emailTokens).values({
+      purpose: 'signup_confirm',
+      tokenHash: hashToken(confirm),
+      email: `founder-${Date.now()}@test.example`,
+      payload: { name: 'Founder', workspaceName: 'Juniper Hill Distillery' },
+      expiresAt: new Date(Date.now() + 600_000),
+    });
     const invite = newToken();
-    await db.insert(t.invitations).values({ workspaceId: ws.workspaceId, email: `invitee-${Date.now()}@test.example`, role: 'distiller', tokenHash: hashToken(invite), invitedBy: ws.users.manager.id, expiresAt: new Date(Date.now() + 86400_000) });
+    await db.insert(t.invitations).values({
+      workspaceId: ws.workspaceId,
+      email: `invitee-${Date.now()}@test.example`,
+      role: 'distiller',
+      tokenHash: hashToken(invite),
+      invitedBy: ws.users.manager.id,
+      expiresAt: new Date(Date.now() + 86400_000),
+    });
     for (const [path, name, heading] of [
       ['/sign-up', 'sign-up-phone', 'Set up a distillery'],
       ['/forgot-password', 'forgot-password-phone', 'Forgotten your password?'],

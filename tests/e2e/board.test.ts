@@ -49,11 +49,18 @@ describe('the still board in Chromium', () => {
     planner = await fx.client('planner');
     tuesday = nextTuesday();
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   it('drags a run with the mouse to another still and day, and finds it there after a reload', async () => {
     const start = zonedDateTime(tuesday, '06:00', TZ);
-    const r = await planner.post('/api/runs', { stillId: fx.stills.ws1, type: 'maintenance', startsAt: start.toISOString(), endsAt: new Date(start.getTime() + 4 * 3600e3).toISOString() });
+    const r = await planner.post('/api/runs', {
+      stillId: fx.stills.ws1,
+      type: 'maintenance',
+      startsAt: start.toISOString(),
+      endsAt: new Date(start.getTime() + 4 * 3600e3).toISOString(),
+    });
     expect(r.status, r.text).toBe(201);
     const id = r.json.run.id;
     const t = await newPage(browser, WIDE);
@@ -82,7 +89,12 @@ describe('the still board in Chromium', () => {
 
   it('moves a run with the keyboard and announces it in words; escape puts a run back', async () => {
     const start = zonedDateTime(tuesday, '12:00', TZ);
-    const r = await planner.post('/api/runs', { stillId: fx.stills.ws2, type: 'cleaning', startsAt: start.toISOString(), endsAt: new Date(start.getTime() + 2 * 3600e3).toISOString() });
+    const r = await planner.post('/api/runs', {
+      stillId: fx.stills.ws2,
+      type: 'cleaning',
+      startsAt: start.toISOString(),
+      endsAt: new Date(start.getTime() + 2 * 3600e3).toISOString(),
+    });
     const id = r.json.run.id;
     const t = await newPage(browser, WIDE);
     await signInUi(t.page, fx.users.distiller.email, TEST_PASSWORD);
@@ -106,17 +118,25 @@ describe('the still board in Chromium', () => {
     await t.context.close();
   });
 
-  it('shows the booked-before-ready/stable badge while a run is dragged before its wash\'s ready window', async () => {
+  it("shows the booked-before-ready/stable badge while a run is dragged before its wash's ready window", async () => {
     // A wash pitched a day ago, still falling: its ready window lies days ahead.
     const fermentId = await addFerment(fx, { code: 'E2E-W', fermenter: 1, pitchedDaysAgo: 1, og: 1.062, k: 0.35 });
-    const board = await planner.get(`/api/board?from=${encodeURIComponent(new Date().toISOString())}&to=${encodeURIComponent(new Date(Date.now() + 30 * 86400e3).toISOString())}`);
+    const board = await planner.get(
+      `/api/board?from=${encodeURIComponent(new Date().toISOString())}&to=${encodeURIComponent(new Date(Date.now() + 30 * 86400e3).toISOString())}`,
+    );
     const f = board.json.ferments.find((x: { id: number }) => x.id === fermentId);
     expect(f.readyP90, JSON.stringify(f)).not.toBeNull();
     // Book it a day after the late edge of its window, then drag it back by days.
     const late = new Date(Date.parse(f.readyP90) + 86400e3);
     const ymd = wallClock(late, TZ).ymd;
     const startsAt = zonedDateTime(ymd, '10:00', TZ);
-    const r = await planner.post('/api/runs', { stillId: fx.stills.small, type: 'stripping', startsAt: startsAt.toISOString(), endsAt: new Date(startsAt.getTime() + 3 * 3600e3).toISOString(), ferments: [{ fermentId, litres: 250 }] });
+    const r = await planner.post('/api/runs', {
+      stillId: fx.stills.small,
+      type: 'stripping',
+      startsAt: startsAt.toISOString(),
+      endsAt: new Date(startsAt.getTime() + 3 * 3600e3).toISOString(),
+      ferments: [{ fermentId, litres: 250 }],
+    });
     expect(r.status, r.text).toBe(201);
     const id = r.json.run.id;
     const t = await newPage(browser, WIDE);
@@ -145,7 +165,14 @@ describe('the still board in Chromium', () => {
     const stuck = await addFerment(fx, { code: 'QR-112', fermenter: 2, pitchedDaysAgo: 9, og: 1.065, holdAt: 1.022 });
     const inThree = wallClock(new Date(Date.now() + 3 * 86400e3), TZ).ymd;
     const startsAt = zonedDateTime(inThree, '07:00', TZ);
-    const r = await planner.post('/api/runs', { stillId: fx.stills.ws1, type: 'stripping', startsAt: startsAt.toISOString(), endsAt: new Date(startsAt.getTime() + 6 * 3600e3).toISOString(), ferments: [{ fermentId: stuck, litres: 2400 }], notes: 'S112' });
+    const r = await planner.post('/api/runs', {
+      stillId: fx.stills.ws1,
+      type: 'stripping',
+      startsAt: startsAt.toISOString(),
+      endsAt: new Date(startsAt.getTime() + 6 * 3600e3).toISOString(),
+      ferments: [{ fermentId: stuck, litres: 2400 }],
+      notes: 'S112',
+    });
     expect(r.status, r.text).toBe(201);
     const id = r.json.run.id;
     const t = await newPage(browser, DESKTOP);
@@ -173,7 +200,12 @@ describe('the still board in Chromium', () => {
     const today = wallClock(now, TZ).ymd;
     const endOfToday = zonedDateTime(addDaysYmd(today, 1), '00:00', TZ);
     const startsAt = start.getTime() + 3600e3 < endOfToday.getTime() ? start : new Date(endOfToday.getTime() - 2 * 3600e3);
-    const r = await planner.post('/api/runs', { stillId: fx.stills.small, type: 'stripping', startsAt: startsAt.toISOString(), endsAt: new Date(startsAt.getTime() + 3600e3).toISOString() });
+    const r = await planner.post('/api/runs', {
+      stillId: fx.stills.small,
+      type: 'stripping',
+      startsAt: startsAt.toISOString(),
+      endsAt: new Date(startsAt.getTime() + 3600e3).toISOString(),
+    });
     expect(r.status, r.text).toBe(201);
     const t = await newPage(browser, PHONE);
     await signInUi(t.page, fx.users.distiller.email, TEST_PASSWORD);

@@ -21,14 +21,33 @@ describe('calendar feeds and notification mail in Chromium', () => {
     browser = await launch();
     ws = await createTestWorkspace('Feed E2E Distillery');
     const db = getDb();
-    const [s] = await db.insert(t.stills).values({ workspaceId: ws.workspaceId, name: 'Wash Still 1', kind: 'pot', capacityLitres: 3000, heatingKw: 60, operatingHours: ALL_WEEK, typicalMinutes: {} }).$returningId();
+    const [s] = await db
+      .insert(t.stills)
+      .values({
+        workspaceId: ws.workspaceId,
+        name: 'Wash Still 1',
+        kind: 'pot',
+        capacityLitres: 3000,
+        heatingKw: 60,
+        operatingHours: ALL_WEEK,
+        typicalMinutes: {},
+      })
+      .$returningId();
     const planner = await ws.client('planner');
     const startsAt = new Date(Math.floor(Date.now() / DAY) * DAY + 2 * DAY + 7 * HOUR);
-    const r = await planner.post('/api/runs', { stillId: s!.id, type: 'stripping', startsAt: startsAt.toISOString(), durationMinutes: 300, operatorId: ws.users.distiller.id });
+    const r = await planner.post('/api/runs', {
+      stillId: s!.id,
+      type: 'stripping',
+      startsAt: startsAt.toISOString(),
+      durationMinutes: 300,
+      operatorId: ws.users.distiller.id,
+    });
     expect(r.status, r.text).toBe(201);
     run = r.json.run;
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   it('creates a feed in settings, shows its address once, and the address serves the runs', async () => {
     const p = await newPage(browser, DESKTOP);
@@ -74,14 +93,16 @@ describe('calendar feeds and notification mail in Chromium', () => {
     await p.context.close();
   });
 
-  it('a moved run\'s e-mail arrives in the mailbox with the new time', async () => {
+  it("a moved run's e-mail arrives in the mailbox with the new time", async () => {
     const planner = await ws.client('planner');
     const to = new Date(new Date(run.startsAt).getTime() + 23 * HOUR);
     const r = await planner.patch(`/api/runs/${run.id}`, { version: run.version, startsAt: to.toISOString() });
     expect(r.status, r.text).toBe(200);
     const dir = process.env.MAILBOX_DIR ?? '.data/test-mailbox';
     const subject = `Stripping run on Wash Still 1 moved to ${londonWhen(to)} (was ${londonWhen(new Date(run.startsAt))})`;
-    await expect.poll(() => readMailbox(dir).find((m) => m.to.includes(ws.users.distiller.email) && m.subject === subject), { timeout: 30_000, interval: 500 }).toBeTruthy();
+    await expect
+      .poll(() => readMailbox(dir).find((m) => m.to.includes(ws.users.distiller.email) && m.subject === subject), { timeout: 30_000, interval: 500 })
+      .toBeTruthy();
     const mail = readMailbox(dir).find((m) => m.to.includes(ws.users.distiller.email) && m.subject === subject)!;
     expect(mail.text).toContain(londonWhen(to));
     expect(mail.html).toContain(londonWhen(to));

@@ -8,7 +8,11 @@ import { createTestWorkspace, TEST_PASSWORD, type TestWorkspace } from '../helpe
 
 /** Water density, Tanaka et al. (2001), REFERENCES §2. */
 function tanaka(tC: number): number {
-  const a1 = -3.983035, a2 = 301.797, a3 = 522528.9, a4 = 69.34881, a5 = 999.974950;
+  const a1 = -3.983035,
+    a2 = 301.797,
+    a3 = 522528.9,
+    a4 = 69.34881,
+    a5 = 999.97495;
   return a5 * (1 - ((tC + a1) ** 2 * (tC + a2)) / (a3 * (tC + a4)));
 }
 
@@ -33,14 +37,35 @@ describe('ferments in Chromium at phone width', () => {
     const fv = await m.post('/api/fermenters', { name: 'FV3', capacity: 3000 });
     await m.post('/api/fermenters', { name: 'FV4', capacity: 2500 });
     const p = await ws.client('planner');
-    const f = await p.post('/api/ferments', { code: 'QX-201', washTypeId: wt.json.washType.id, fermenterId: fv.json.fermenter.id, volume: 2400, pitchedAt: pitched.toISOString(), og: 1.062, yeast: 'M strain' });
+    const f = await p.post('/api/ferments', {
+      code: 'QX-201',
+      washTypeId: wt.json.washType.id,
+      fermenterId: fv.json.fermenter.id,
+      volume: 2400,
+      pitchedAt: pitched.toISOString(),
+      og: 1.062,
+      yeast: 'M strain',
+    });
     fermentId = f.json.ferment.id;
     for (const [i, sg] of [1.062, 1.048, 1.034, 1.024].entries()) {
-      await p.post(`/api/ferments/${fermentId}/readings`, { value: sg, unit: 'sg', method: 'hydrometer', sampleTemp: 20, takenAt: new Date(pitched.getTime() + i * 0.66 * DAY + 60_000).toISOString() });
+      await p.post(`/api/ferments/${fermentId}/readings`, {
+        value: sg,
+        unit: 'sg',
+        method: 'hydrometer',
+        sampleTemp: 20,
+        takenAt: new Date(pitched.getTime() + i * 0.66 * DAY + 60_000).toISOString(),
+      });
     }
-    await p.post(`/api/ferments/${fermentId}/readings`, { value: 6.4, unit: 'brix', method: 'refractometer', takenAt: new Date(pitched.getTime() + 2.2 * DAY).toISOString() });
+    await p.post(`/api/ferments/${fermentId}/readings`, {
+      value: 6.4,
+      unit: 'brix',
+      method: 'refractometer',
+      takenAt: new Date(pitched.getTime() + 2.2 * DAY).toISOString(),
+    });
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   it('a distiller logs a hydrometer reading at 28 °C and sees the corrected SG in the table and on the chart', async () => {
     const t = await newPage(browser, PHONE);
@@ -70,7 +95,7 @@ describe('ferments in Chromium at phone width', () => {
     await value.fill('1.050');
     t.errors.length = 0; // the browser logs the refused request's 400 status
     await Promise.all([t.page.waitForURL(/logged=/), t.page.getByRole('button', { name: 'Save reading' }).click()]);
-    const expected = (1.05 * tanaka(20) / tanaka(28)).toFixed(4); // Tanaka et al. 2001
+    const expected = ((1.05 * tanaka(20)) / tanaka(28)).toFixed(4); // Tanaka et al. 2001
     await expect.poll(() => t.page.getByTestId('logged-message').textContent()).toContain(expected);
     const row = t.page.getByTestId('readings-table').locator('tbody tr').first();
     expect(await row.textContent()).toContain(expected);
@@ -90,7 +115,7 @@ describe('ferments in Chromium at phone width', () => {
     const file = path.join(dir, 'logger.csv');
     const start = pitched.getTime() + 2.5 * DAY;
     const lines = ['time,value,unit,method,temperature'];
-    for (let i = 0; i < 12; i++) lines.push(`${new Date(start + i * 3_600_000).toISOString()},${(1.020 - i * 0.0004).toFixed(4)},sg,digital,`);
+    for (let i = 0; i < 12; i++) lines.push(`${new Date(start + i * 3_600_000).toISOString()},${(1.02 - i * 0.0004).toFixed(4)},sg,digital,`);
     lines.push(`${new Date(start + 13 * 3_600_000).toISOString()},=HYPERLINK("x"),sg,digital,`);
     writeFileSync(file, lines.join('\n') + '\n');
     const t = await newPage(browser, PHONE);
@@ -111,7 +136,10 @@ describe('ferments in Chromium at phone width', () => {
     await expect.poll(() => t.page.getByTestId('upload-done').textContent()).toContain('Imported 12 readings');
     await expect.poll(() => t.page.getByRole('heading', { name: /Readings \(/ }).textContent()).toBe('Readings (18)');
     expect(await t.page.getByTestId('readings-table').locator('tbody tr').count()).toBe(18);
-    const symbols = await t.page.getByTestId('gravity-chart').locator('.recharts-scatter').evaluateAll((els) => els.map((e) => e.querySelectorAll('.recharts-scatter-symbol').length));
+    const symbols = await t.page
+      .getByTestId('gravity-chart')
+      .locator('.recharts-scatter')
+      .evaluateAll((els) => els.map((e) => e.querySelectorAll('.recharts-scatter-symbol').length));
     expect(symbols).toEqual([17, 1]); // hydrometer and logger points, refractometer point
     await checkPage(t, 'ferment-after-upload-phone');
     await t.context.close();
@@ -166,7 +194,12 @@ describe('ferments in Chromium at phone width', () => {
     // Falls for four days, then holds at 1.022 for five: stuck far above the 1.002–1.008 finish (common practice).
     const sgs = [1.065, 1.05, 1.038, 1.029, 1.024, 1.022, 1.022, 1.022, 1.022, 1.022];
     for (const [i, sg] of sgs.entries()) {
-      const r = await p.post(`/api/ferments/${id}/readings`, { value: sg, unit: 'sg', method: 'digital', takenAt: new Date(start.getTime() + i * DAY - 60_000 + (i === 0 ? 120_000 : 0)).toISOString() });
+      const r = await p.post(`/api/ferments/${id}/readings`, {
+        value: sg,
+        unit: 'sg',
+        method: 'digital',
+        takenAt: new Date(start.getTime() + i * DAY - 60_000 + (i === 0 ? 120_000 : 0)).toISOString(),
+      });
       expect(r.status, r.text).toBe(201);
     }
     const t = await newPage(browser, DESKTOP);

@@ -22,22 +22,68 @@ describe('run record and reports in Chromium', () => {
     const db = getDb();
     const w = ws.workspaceId;
     const every = [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday, open: '00:00', close: '24:00' }));
-    const [wash] = await db.insert(t.stills).values({ workspaceId: w, name: 'Wash Still', kind: 'pot', capacityLitres: 2500, heatingKw: 60, operatingHours: every, typicalMinutes: {} }).$returningId();
-    const [spirit] = await db.insert(t.stills).values({ workspaceId: w, name: 'Spirit Still', kind: 'pot', capacityLitres: 1200, heatingKw: 40, operatingHours: every, typicalMinutes: {}, position: 1 }).$returningId();
+    const [wash] = await db
+      .insert(t.stills)
+      .values({ workspaceId: w, name: 'Wash Still', kind: 'pot', capacityLitres: 2500, heatingKw: 60, operatingHours: every, typicalMinutes: {} })
+      .$returningId();
+    const [spirit] = await db
+      .insert(t.stills)
+      .values({
+        workspaceId: w,
+        name: 'Spirit Still',
+        kind: 'pot',
+        capacityLitres: 1200,
+        heatingKw: 40,
+        operatingHours: every,
+        typicalMinutes: {},
+        position: 1,
+      })
+      .$returningId();
     const now = Date.now();
-    const [strip] = await db.insert(t.runs).values({
-      workspaceId: w, stillId: wash!.id, type: 'stripping', status: 'done', startsAt: new Date(now - 26 * 3600_000), endsAt: new Date(now - 20 * 3600_000),
-      finishedAt: new Date(now - 20 * 3600_000), chargeLitres: 2400, chargeAbv: 7.5,
-    }).$returningId();
-    await db.insert(t.runOutcomes).values({ workspaceId: w, runId: strip!.id, fraction: 'low_wines', volumeLitres: 640, alcoholmeterReading: 27.5, readingTempC: 20, abv20: 27.5, laa: 176 });
-    const [run] = await db.insert(t.runs).values({
-      workspaceId: w, stillId: spirit!.id, type: 'spirit', status: 'running', startsAt: new Date(now - 5 * 3600_000), endsAt: new Date(now + 3600_000),
-      startedAt: new Date(now - 5 * 3600_000), operatorId: ws.users.distiller.id, chargeLitres: 640,
-    }).$returningId();
+    const [strip] = await db
+      .insert(t.runs)
+      .values({
+        workspaceId: w,
+        stillId: wash!.id,
+        type: 'stripping',
+        status: 'done',
+        startsAt: new Date(now - 26 * 3600_000),
+        endsAt: new Date(now - 20 * 3600_000),
+        finishedAt: new Date(now - 20 * 3600_000),
+        chargeLitres: 2400,
+        chargeAbv: 7.5,
+      })
+      .$returningId();
+    await db.insert(t.runOutcomes).values({
+      workspaceId: w,
+      runId: strip!.id,
+      fraction: 'low_wines',
+      volumeLitres: 640,
+      alcoholmeterReading: 27.5,
+      readingTempC: 20,
+      abv20: 27.5,
+      laa: 176,
+    });
+    const [run] = await db
+      .insert(t.runs)
+      .values({
+        workspaceId: w,
+        stillId: spirit!.id,
+        type: 'spirit',
+        status: 'running',
+        startsAt: new Date(now - 5 * 3600_000),
+        endsAt: new Date(now + 3600_000),
+        startedAt: new Date(now - 5 * 3600_000),
+        operatorId: ws.users.distiller.id,
+        chargeLitres: 640,
+      })
+      .$returningId();
     await db.insert(t.runFeeds).values({ runId: run!.id, feedRunId: strip!.id, workspaceId: w, litres: 640 });
     spiritRunId = run!.id;
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   it('a distiller records the cuts on a phone and marks the run done', async () => {
     const tr = await newPage(browser, PHONE);
@@ -73,7 +119,10 @@ describe('run record and reports in Chromium', () => {
     tr.page.once('dialog', (d) => void d.accept());
     await tr.page.getByRole('button', { name: 'Save and mark run done' }).click();
     await expect.poll(() => tr.page.getByRole('status').textContent()).toContain('The run is marked done');
-    const [row] = await getDb().select().from(t.runs).where((await import('drizzle-orm')).eq(t.runs.id, spiritRunId));
+    const [row] = await getDb()
+      .select()
+      .from(t.runs)
+      .where((await import('drizzle-orm')).eq(t.runs.id, spiritRunId));
     expect(row!.status).toBe('done');
     await tr.context.close();
   });
@@ -94,10 +143,7 @@ describe('run record and reports in Chromium', () => {
     const overflow = await tr.page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
     expect(overflow).toBeLessThanOrEqual(1);
     await checkPage(tr, 'reports-tablet');
-    const [download] = await Promise.all([
-      tr.page.waitForEvent('download'),
-      tr.page.getByRole('link', { name: 'Runs with outcomes (CSV)' }).click(),
-    ]);
+    const [download] = await Promise.all([tr.page.waitForEvent('download'), tr.page.getByRole('link', { name: 'Runs with outcomes (CSV)' }).click()]);
     expect(download.suggestedFilename()).toMatch(/^plateau-runs-outcomes-\d{4}-\d{2}-\d{2}-to-\d{4}-\d{2}-\d{2}\.csv$/);
     const path = await download.path();
     const text = (await import('node:fs')).readFileSync(path!, 'utf8');

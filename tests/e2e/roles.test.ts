@@ -15,8 +15,13 @@ const EXPECT: Record<Role, { form: boolean; members: boolean; audit: boolean; ma
 describe('settings by role in Chromium', () => {
   let browser: Browser;
   let ws: TestWorkspace;
-  beforeAll(async () => { browser = await launch(); ws = await createTestWorkspace('Roles Distillery'); });
-  afterAll(async () => { await browser?.close(); });
+  beforeAll(async () => {
+    browser = await launch();
+    ws = await createTestWorkspace('Roles Distillery');
+  });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
   it.each(Object.keys(EXPECT) as Role[])('%s sees only what the role may do, then signs out', async (role) => {
     const t = await newPage(browser, DESKTOP);

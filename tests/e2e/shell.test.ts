@@ -10,9 +10,14 @@ describe('application shell in Chromium', () => {
     browser = await launch();
     ws = await createTestWorkspace('Shell Test Distillery');
   });
-  afterAll(async () => { await browser?.close(); });
+  afterAll(async () => {
+    await browser?.close();
+  });
 
-  it.each([['desktop', DESKTOP], ['phone', PHONE]] as const)('shows the distillery, the person and the navigation at %s width', async (name, viewport) => {
+  it.each([
+    ['desktop', DESKTOP],
+    ['phone', PHONE],
+  ] as const)('shows the distillery, the person and the navigation at %s width', async (name, viewport) => {
     const t = await newPage(browser, viewport);
     await signInUi(t.page, ws.users.manager.email, TEST_PASSWORD);
     await expect.poll(() => t.page.getByTestId('workspace-name').textContent()).toContain('Shell Test Distillery');

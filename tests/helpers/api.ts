@@ -13,12 +13,20 @@ export class Client {
   cookie = '';
   constructor(public base = BASE()) {}
 
-  async request(method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<{ status: number; json: any; text: string; headers: Headers }> {
+  async request(
+    method: string,
+    path: string,
+    body?: unknown,
+    headers: Record<string, string> = {},
+  ): Promise<{ status: number; json: any; text: string; headers: Headers }> {
     const h: Record<string, string> = { origin: this.base, accept: 'application/json', ...headers };
     if (this.cookie) h.cookie = this.cookie;
     let payload: BodyInit | undefined;
     if (body instanceof FormData || typeof body === 'string') payload = body as BodyInit;
-    else if (body !== undefined) { payload = JSON.stringify(body); h['content-type'] ??= 'application/json'; }
+    else if (body !== undefined) {
+      payload = JSON.stringify(body);
+      h['content-type'] ??= 'application/json';
+    }
     let res: Response;
     try {
       res = await fetch(this.base + path, { method, headers: h, body: payload, redirect: 'manual' });
@@ -35,14 +43,28 @@ export class Client {
     }
     const text = await res.text();
     let json: any = null;
-    try { json = JSON.parse(text); } catch { /* not JSON */ }
+    try {
+      json = JSON.parse(text);
+    } catch {
+      /* not JSON */
+    }
     return { status: res.status, json, text, headers: res.headers };
   }
-  get(path: string, headers?: Record<string, string>) { return this.request('GET', path, undefined, headers); }
-  post(path: string, body?: unknown, headers?: Record<string, string>) { return this.request('POST', path, body ?? {}, headers); }
-  patch(path: string, body?: unknown) { return this.request('PATCH', path, body ?? {}); }
-  put(path: string, body?: unknown) { return this.request('PUT', path, body ?? {}); }
-  del(path: string, body?: unknown) { return this.request('DELETE', path, body); }
+  get(path: string, headers?: Record<string, string>) {
+    return this.request('GET', path, undefined, headers);
+  }
+  post(path: string, body?: unknown, headers?: Record<string, string>) {
+    return this.request('POST', path, body ?? {}, headers);
+  }
+  patch(path: string, body?: unknown) {
+    return this.request('PATCH', path, body ?? {});
+  }
+  put(path: string, body?: unknown) {
+    return this.request('PUT', path, body ?? {});
+  }
+  del(path: string, body?: unknown) {
+    return this.request('DELETE', path, body);
+  }
 
   async signIn(email: string, password = TEST_PASSWORD): Promise<this> {
     const r = await this.post('/api/auth/sign-in', { email, password });
@@ -69,11 +91,17 @@ export async function createTestWorkspace(name = 'Test distillery', settings: Pa
   const db = getDb();
   hashCache ??= await hashPassword(TEST_PASSWORD);
   const tag = `${Date.now().toString(36)}${(++counter).toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}`;
-  const [ws] = await db.insert(t.workspaces).values({ name: `${name} ${tag}`, timeZone: 'Europe/London', ...settings }).$returningId();
+  const [ws] = await db
+    .insert(t.workspaces)
+    .values({ name: `${name} ${tag}`, timeZone: 'Europe/London', ...settings })
+    .$returningId();
   const users = {} as TestWorkspace['users'];
   for (const role of ROLES) {
     const email = `${role}-${tag}@test.example`;
-    const [u] = await db.insert(t.users).values({ email, name: `${role[0]!.toUpperCase()}${role.slice(1)} ${tag}`, passwordHash: hashCache, emailVerifiedAt: new Date() }).$returningId();
+    const [u] = await db
+      .insert(t.users)
+      .values({ email, name: `${role[0]!.toUpperCase()}${role.slice(1)} ${tag}`, passwordHash: hashCache, emailVerifiedAt: new Date() })
+      .$returningId();
     await db.insert(t.memberships).values({ workspaceId: ws!.id, userId: u!.id, role });
     users[role] = { id: u!.id, email };
   }

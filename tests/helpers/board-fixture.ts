@@ -17,14 +17,27 @@ export async function boardFixture(name = 'Board Test Distillery', timeZone = 'E
   const ws = await createTestWorkspace(name, { timeZone });
   const db = getDb();
   const mk = async (nameS: string, capacityLitres: number, cleaning: number, position: number) => {
-    const [r] = await db.insert(t.stills).values({
-      workspaceId: ws.workspaceId, name: nameS, kind: 'pot', capacityLitres, heatingKw: 60, operatingHours: allWeek,
-      cleaningAfterRunMinutes: cleaning, typicalMinutes: typical, position,
-    }).$returningId();
+    const [r] = await db
+      .insert(t.stills)
+      .values({
+        workspaceId: ws.workspaceId,
+        name: nameS,
+        kind: 'pot',
+        capacityLitres,
+        heatingKw: 60,
+        operatingHours: allWeek,
+        cleaningAfterRunMinutes: cleaning,
+        typicalMinutes: typical,
+        position,
+      })
+      .$returningId();
     return r!.id;
   };
   const stills = { ws1: await mk('Wash Still 1', 2500, 60, 0), ws2: await mk('Wash Still 2', 2500, 0, 1), small: await mk('Small Still', 300, 0, 2) };
-  const [wt] = await db.insert(t.washTypes).values({ workspaceId: ws.workspaceId, name: 'All-grain wash', category: 'grain', terminalMin: 1.002, terminalMax: 1.008, typicalOg: 1.06 }).$returningId();
+  const [wt] = await db
+    .insert(t.washTypes)
+    .values({ workspaceId: ws.workspaceId, name: 'All-grain wash', category: 'grain', terminalMin: 1.002, terminalMax: 1.008, typicalOg: 1.06 })
+    .$returningId();
   const fermenterIds: number[] = [];
   for (const [i, fv] of ['FV1', 'FV2', 'FV3'].entries()) {
     const [r] = await db.insert(t.fermenters).values({ workspaceId: ws.workspaceId, name: fv, capacityLitres: 3000, position: i }).$returningId();
@@ -40,15 +53,26 @@ const DAY = 86_400_000;
  * (a stuck ferment: the same reading for days, far above the 1.002–1.008 finish range);
  * without it the gravity follows a first-order fall from OG to 1.005.
  */
-export async function addFerment(fx: BoardFixture, opts: { code: string; fermenter: number; pitchedDaysAgo: number; og?: number; holdAt?: number; k?: number; volume?: number; readings?: boolean }): Promise<number> {
+export async function addFerment(
+  fx: BoardFixture,
+  opts: { code: string; fermenter: number; pitchedDaysAgo: number; og?: number; holdAt?: number; k?: number; volume?: number; readings?: boolean },
+): Promise<number> {
   const db = getDb();
   const now = Date.now();
   const og = opts.og ?? 1.062;
   const pitchedAt = new Date(now - opts.pitchedDaysAgo * DAY);
-  const [f] = await db.insert(t.ferments).values({
-    workspaceId: fx.workspaceId, code: opts.code, washTypeId: fx.washTypeId, fermenterId: fx.fermenterIds[opts.fermenter]!, volumeLitres: opts.volume ?? 2400,
-    pitchedAt, og,
-  }).$returningId();
+  const [f] = await db
+    .insert(t.ferments)
+    .values({
+      workspaceId: fx.workspaceId,
+      code: opts.code,
+      washTypeId: fx.washTypeId,
+      fermenterId: fx.fermenterIds[opts.fermenter]!,
+      volumeLitres: opts.volume ?? 2400,
+      pitchedAt,
+      og,
+    })
+    .$returningId();
   if (opts.readings !== false) {
     const rows = [];
     for (let tMs = pitchedAt.getTime() + 0.25 * DAY; tMs < now - 3_600_000; tMs += 0.5 * DAY) {
@@ -57,7 +81,17 @@ export async function addFerment(fx: BoardFixture, opts: { code: string; ferment
       let sg = fg + (og - fg) * Math.exp(-(opts.k ?? 0.9) * days);
       if (opts.holdAt !== undefined && days > 4) sg = opts.holdAt;
       sg = Math.round(sg * 1000) / 1000;
-      rows.push({ workspaceId: fx.workspaceId, fermentId: f!.id, takenAt: new Date(tMs), method: 'hydrometer' as const, rawValue: sg, rawUnit: 'sg' as const, correctedSg: sg, sampleTempC: 20, sampleTempUnit: 'C' as const });
+      rows.push({
+        workspaceId: fx.workspaceId,
+        fermentId: f!.id,
+        takenAt: new Date(tMs),
+        method: 'hydrometer' as const,
+        rawValue: sg,
+        rawUnit: 'sg' as const,
+        correctedSg: sg,
+        sampleTempC: 20,
+        sampleTempUnit: 'C' as const,
+      });
     }
     if (rows.length) await db.insert(t.readings).values(rows);
   }

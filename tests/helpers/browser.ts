@@ -18,19 +18,33 @@ export async function launch(): Promise<Browser> {
   return chromium.launch({
     executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
     headless: true,
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking',
-      '--disable-component-update', '--disable-sync'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
 }
 
-export interface Tracked { page: Page; context: BrowserContext; errors: string[] }
+export interface Tracked {
+  page: Page;
+  context: BrowserContext;
+  errors: string[];
+}
 
 /** A new page that records console errors and failed requests. */
 export async function newPage(browser: Browser, viewport = DESKTOP): Promise<Tracked> {
   const context = await browser.newContext({ viewport, baseURL: BASE() });
   const page = await context.newPage();
   const errors: string[] = [];
-  page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()); });
+  page.on('console', (m) => {
+    if (m.type() === 'error') errors.push(m.text());
+  });
   page.on('pageerror', (e) => errors.push(String(e)));
   return { page, context, errors };
 }
@@ -49,7 +63,16 @@ export async function checkPage(t: Tracked, name: string): Promise<void> {
   expect(barlow, `${name}: Barlow font loaded`).toBe(true);
   const results = await new AxeBuilder({ page: t.page }).analyze();
   const bad = results.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
-  expect(bad.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(', ')})`), `${name}: axe serious/critical`).toEqual([]);
+  expect(
+    bad.map(
+      (v) =>
+        `${v.id}: ${v.help} (${v.nodes
+          .map((n) => n.target.join(' '))
+          .slice(0, 3)
+          .join(', ')})`,
+    ),
+    `${name}: axe serious/critical`,
+  ).toEqual([]);
   expect(t.errors, `${name}: console errors`).toEqual([]);
   await t.page.screenshot({ path: path.join(SCREENSHOT_DIR, `${name}.png`), fullPage: true });
 }

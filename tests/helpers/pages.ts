@@ -12,7 +12,12 @@ export const ERROR_PAGES = new Set(['/403', '/404', '/500']);
 
 /** src/pages/ferments/[id]/edit.astro -> /ferments/[id]/edit; index.astro -> its folder ('/' at the top). */
 export function pagePattern(file: string): string {
-  const parts = path.relative(PAGES_DIR, file).split(path.sep).join('/').replace(/\.(astro|md|mdx|html)$/, '').split('/');
+  const parts = path
+    .relative(PAGES_DIR, file)
+    .split(path.sep)
+    .join('/')
+    .replace(/\.(astro|md|mdx|html)$/, '')
+    .split('/');
   if (parts[parts.length - 1] === 'index') parts.pop();
   return '/' + parts.join('/');
 }

@@ -8,7 +8,11 @@ import { spawn, type ChildProcess } from 'node:child_process';
 let child: ChildProcess | null = null;
 
 async function healthy(url: string): Promise<boolean> {
-  try { return (await fetch(`${url}/api/health`)).ok; } catch { return false; }
+  try {
+    return (await fetch(`${url}/api/health`)).ok;
+  } catch {
+    return false;
+  }
 }
 
 export async function setup(): Promise<void> {
@@ -17,7 +21,10 @@ export async function setup(): Promise<void> {
   process.env.DB_NAME ??= 'plateau_test';
   if (await healthy(url)) return;
   const port = new URL(url).port;
-  child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], { env: { ...process.env, HOST: '127.0.0.1', PORT: port, PLATEAU_MODE: 'test' }, stdio: 'ignore' });
+  child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], {
+    env: { ...process.env, HOST: '127.0.0.1', PORT: port, PLATEAU_MODE: 'test' },
+    stdio: 'ignore',
+  });
   for (let i = 0; i < 100 && !(await healthy(url)); i++) await new Promise((r) => setTimeout(r, 200));
 }
 

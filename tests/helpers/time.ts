@@ -11,8 +11,18 @@ export const ALL_WEEK = [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday, open:
 
 /** 'Tue 3 Dec 06:00' in Europe/London, from the platform's Intl (not our formatter). */
 export function londonWhen(date: Date): string {
-  const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', {
-    weekday: 'short', day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone: 'Europe/London',
-  }).formatToParts(date).map((p) => [p.type, p.value]));
+  const parts = Object.fromEntries(
+    new Intl.DateTimeFormat('en-GB', {
+      weekday: 'short',
+      day: 'numeric',
+      month: 'short',
+      hour: '2-digit',
+      minute: '2-digit',
+      hourCycle: 'h23',
+      timeZone: 'Europe/London',
+    })
+      .formatToParts(date)
+      .map((p) => [p.type, p.value]),
+  );
   return `${parts.weekday} ${parts.day} ${String(parts.month).slice(0, 3)} ${parts.hour}:${parts.minute}`;
 }

@@ -90,7 +90,7 @@ describe('sessions', () => {
     expect(a.cookie).not.toBe(b.cookie);
   });
 
-  it('the sign-out form redirects to sign-in, clears the cookie and the site\'s cache', async () => {
+  it("the sign-out form redirects to sign-in, clears the cookie and the site's cache", async () => {
     const ws = await createTestWorkspace('Sign out form');
     const c = await ws.client('staff');
     const r = await c.post('/api/auth/sign-out', undefined, { accept: 'text/html' });
@@ -109,7 +109,8 @@ describe('sessions', () => {
     const out = await c.post('/api/auth/sign-out');
     expect(out.status).toBe(200);
     expect(out.headers.get('clear-site-data')).toBe('"cache"'); // the browser's cached board goes too
-    const replay = new Client(); replay.cookie = stolen;
+    const replay = new Client();
+    replay.cookie = stolen;
     expect((await replay.get('/api/account')).status).toBe(401);
     const id = hashToken(stolen.replace('plateau_session=', ''));
     expect(await getDb().select().from(t.sessions).where(eq(t.sessions.id, id))).toHaveLength(0);
@@ -119,7 +120,10 @@ describe('sessions', () => {
     const ws = await createTestWorkspace('Idle');
     const c = await ws.client('staff');
     const row = await sessionRow(c);
-    await getDb().update(t.sessions).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(t.sessions.id, row!.id));
+    await getDb()
+      .update(t.sessions)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(t.sessions.id, row!.id));
     expect((await c.get('/api/account')).status).toBe(401);
   });
 
@@ -127,7 +131,10 @@ describe('sessions', () => {
     const ws = await createTestWorkspace('Absolute');
     const c = await ws.client('staff');
     const row = await sessionRow(c);
-    await getDb().update(t.sessions).set({ createdAt: new Date(Date.now() - 31 * 86400_000) }).where(eq(t.sessions.id, row!.id));
+    await getDb()
+      .update(t.sessions)
+      .set({ createdAt: new Date(Date.now() - 31 * 86400_000) })
+      .where(eq(t.sessions.id, row!.id));
     expect((await c.get('/api/account')).status).toBe(401);
     expect(await sessionRow(c)).toBeNull();
   });
@@ -231,7 +238,10 @@ describe('invitations through the fake SMTP', () => {
     expect(me.json.memberships).toEqual([expect.objectContaining({ workspaceId: ws.workspaceId, role: 'distiller' })]);
     // Single use.
     expect((await new Client().post('/api/auth/accept-invitation', { token, name: 'Again', password: 'feints and tails 7' })).status).toBe(410);
-    const [row] = await getDb().select().from(t.auditLog).where(and(eq(t.auditLog.workspaceId, ws.workspaceId), eq(t.auditLog.action, 'member.invitation_accepted')));
+    const [row] = await getDb()
+      .select()
+      .from(t.auditLog)
+      .where(and(eq(t.auditLog.workspaceId, ws.workspaceId), eq(t.auditLog.action, 'member.invitation_accepted')));
     expect(row).toBeTruthy();
   });
 
@@ -248,10 +258,12 @@ describe('invitations through the fake SMTP', () => {
     const c = await home.client('planner');
     expect((await c.post('/api/auth/accept-invitation', { token })).status).toBe(200);
     const me = await c.get('/api/account');
-    expect(me.json.memberships).toEqual(expect.arrayContaining([
-      expect.objectContaining({ workspaceId: other.workspaceId, role: 'staff' }),
-      expect.objectContaining({ workspaceId: home.workspaceId, role: 'planner' }),
-    ]));
+    expect(me.json.memberships).toEqual(
+      expect.arrayContaining([
+        expect.objectContaining({ workspaceId: other.workspaceId, role: 'staff' }),
+        expect.objectContaining({ workspaceId: home.workspaceId, role: 'planner' }),
+      ]),
+    );
     // The session now looks at the distillery just joined, as staff.
     expect((await c.get('/api/members')).status).toBe(403);
     expect((await c.get('/api/workspace')).json.workspace.id).toBe(other.workspaceId);
@@ -268,7 +280,10 @@ describe('invitations through the fake SMTP', () => {
     const { token } = linkIn(await waitForMail(email, 'Join'), '/invite');
     const [inv] = await getDb().select().from(t.invitations).where(eq(t.invitations.id, invitationId));
     expect(inv!.expiresAt.getTime() - inv!.createdAt.getTime()).toBeGreaterThan(6.9 * 86400_000);
-    await getDb().update(t.invitations).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(t.invitations.id, invitationId));
+    await getDb()
+      .update(t.invitations)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(t.invitations.id, invitationId));
     expect((await new Client().post('/api/auth/accept-invitation', { token, name: 'Late', password: 'late but long enough' })).status).toBe(410);
     // Only the hash is stored.
     expect(JSON.stringify(inv)).not.toContain(token);
@@ -292,7 +307,10 @@ describe('password reset', () => {
     expect((await new Client().post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(400);
     await new Client().signIn(email, 'the still is cold now');
     expect((await new Client().post('/api/auth/reset-password', { token, password: 'second use of link' })).status).toBe(410);
-    const [audit] = await getDb().select().from(t.auditLog).where(and(eq(t.auditLog.userId, ws.users.distiller.id), eq(t.auditLog.action, 'auth.password_reset')));
+    const [audit] = await getDb()
+      .select()
+      .from(t.auditLog)
+      .where(and(eq(t.auditLog.userId, ws.users.distiller.id), eq(t.auditLog.action, 'auth.password_reset')));
     expect(audit).toBeTruthy();
     await clearIpThrottle();
   });
@@ -302,10 +320,16 @@ describe('password reset', () => {
     const email = ws.users.staff.email;
     await new Client().post('/api/auth/forgot-password', { email });
     const { token } = linkIn(await waitForMail(email, 'new Plateau password'), '/reset-password');
-    const [row] = await getDb().select().from(t.emailTokens).where(and(eq(t.emailTokens.userId, ws.users.staff.id), eq(t.emailTokens.purpose, 'password_reset')));
+    const [row] = await getDb()
+      .select()
+      .from(t.emailTokens)
+      .where(and(eq(t.emailTokens.userId, ws.users.staff.id), eq(t.emailTokens.purpose, 'password_reset')));
     expect(row!.expiresAt.getTime() - row!.createdAt.getTime()).toBeGreaterThan(29 * 60_000);
     expect(row!.expiresAt.getTime() - row!.createdAt.getTime()).toBeLessThanOrEqual(31 * 60_000);
-    await getDb().update(t.emailTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(t.emailTokens.id, row!.id));
+    await getDb()
+      .update(t.emailTokens)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(t.emailTokens.id, row!.id));
     expect((await new Client().post('/api/auth/reset-password', { token, password: 'too late for this' })).status).toBe(410);
     expect((await new Client().get(`/reset-password/${token}`, { accept: 'text/html' })).status).toBe(410);
   });
@@ -329,7 +353,10 @@ describe('throttling and CSRF', () => {
       expect((await new Client().post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(429);
       // Time passes (the block and the counting window are moved into the past): the owner gets in.
       const past = new Date(Date.now() - 16 * 60_000);
-      await getDb().update(t.signInThrottle).set({ blockedUntil: new Date(Date.now() - 1000), windowStartedAt: past }).where(like(t.signInThrottle.key, '%'));
+      await getDb()
+        .update(t.signInThrottle)
+        .set({ blockedUntil: new Date(Date.now() - 1000), windowStartedAt: past })
+        .where(like(t.signInThrottle.key, '%'));
       expect((await new Client().post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(200);
     } finally {
       await clearIpThrottle();
@@ -339,7 +366,12 @@ describe('throttling and CSRF', () => {
   it('refuses state-changing requests without our Origin', async () => {
     const ws = await createTestWorkspace('CSRF');
     const c = await ws.client('staff');
-    const send = (headers: Record<string, string>) => fetch(BASE() + '/api/account', { method: 'PATCH', headers: { cookie: c.cookie, 'content-type': 'application/json', ...headers }, body: JSON.stringify({ name: 'Changed' }) });
+    const send = (headers: Record<string, string>) =>
+      fetch(BASE() + '/api/account', {
+        method: 'PATCH',
+        headers: { cookie: c.cookie, 'content-type': 'application/json', ...headers },
+        body: JSON.stringify({ name: 'Changed' }),
+      });
     expect((await send({})).status).toBe(403);
     expect((await send({ origin: 'https://evil.example' })).status).toBe(403);
     expect((await send({ origin: BASE() })).status).toBe(200);

@@ -21,7 +21,11 @@ const API_DIR = path.resolve('src/pages/api');
 
 /** src/pages/api/ferments/[id]/readings.ts -> /api/ferments/[id]/readings; index.ts -> its folder. */
 export function routePattern(file: string): string {
-  const rel = path.relative(API_DIR, file).split(path.sep).join('/').replace(/\.(ts|js|mjs)$/, '');
+  const rel = path
+    .relative(API_DIR, file)
+    .split(path.sep)
+    .join('/')
+    .replace(/\.(ts|js|mjs)$/, '');
   const parts = rel.split('/');
   if (parts[parts.length - 1] === 'index') parts.pop();
   return '/api' + (parts.length ? '/' + parts.join('/') : '');
@@ -77,7 +81,11 @@ async function snapshotWorkspace(workspaceId: number): Promise<string> {
     const cols = getTableColumns(table) as Record<string, unknown>;
     const tableName = getTableConfig(table).name;
     if (tableName === 'sessions') {
-      out[tableName] = await db.select({ id: schema.sessions.id, userId: schema.sessions.userId }).from(schema.sessions).where(eq(schema.sessions.workspaceId, workspaceId)).orderBy(schema.sessions.id);
+      out[tableName] = await db
+        .select({ id: schema.sessions.id, userId: schema.sessions.userId })
+        .from(schema.sessions)
+        .where(eq(schema.sessions.workspaceId, workspaceId))
+        .orderBy(schema.sessions.id);
       continue;
     }
     if (tableName === 'workspaces') {
@@ -88,11 +96,18 @@ async function snapshotWorkspace(workspaceId: number): Promise<string> {
     // Background work may touch these while the case runs: the outbox sender marks mail sent,
     // and any read may refresh the forecast cache. Compare what a request could have changed.
     if (tableName === 'mail_outbox') {
-      out[name] = await db.select({ id: schema.mailOutbox.id, to: schema.mailOutbox.toAddress, subject: schema.mailOutbox.subject }).from(schema.mailOutbox).where(eq(schema.mailOutbox.workspaceId, workspaceId)).orderBy(schema.mailOutbox.id);
+      out[name] = await db
+        .select({ id: schema.mailOutbox.id, to: schema.mailOutbox.toAddress, subject: schema.mailOutbox.subject })
+        .from(schema.mailOutbox)
+        .where(eq(schema.mailOutbox.workspaceId, workspaceId))
+        .orderBy(schema.mailOutbox.id);
       continue;
     }
     if (tableName === 'ferment_forecasts' || tableName === 'forecast_history') continue;
-    out[name] = await db.select().from(table).where(eq((table as unknown as { workspaceId: never }).workspaceId, workspaceId));
+    out[name] = await db
+      .select()
+      .from(table)
+      .where(eq((table as unknown as { workspaceId: never }).workspaceId, workspaceId));
   }
   return JSON.stringify(out);
 }
@@ -117,7 +132,9 @@ describe('authorization matrix', () => {
   });
 
   let shared: Fixture;
-  beforeAll(async () => { shared = await buildFixture(); }, 60_000);
+  beforeAll(async () => {
+    shared = await buildFixture();
+  }, 60_000);
 
   const label = (c: RouteCase) => `${c.method} ${c.route}${c.note ? ` (${c.note})` : ''}`;
   it.each(CASES.map((c) => [label(c), c] as const))('%s', async (_name, rc) => {

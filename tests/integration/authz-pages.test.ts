@@ -70,7 +70,8 @@ describe('page authorization matrix', () => {
       if (anon.status !== 200) problems.push(`no session: public page expected 200, got ${anon.status}`);
     } else {
       const location = anon.headers.get('location') ?? '';
-      if (anon.status !== 303 || !location.startsWith('/sign-in?next=')) problems.push(`no session: expected 303 to /sign-in?next=…, got ${anon.status} ${location}`);
+      if (anon.status !== 303 || !location.startsWith('/sign-in?next='))
+        problems.push(`no session: expected 303 to /sign-in?next=…, got ${anon.status} ${location}`);
     }
 
     // 2. Roles of A that may not: the 403 page, naming the role.

@@ -11,12 +11,19 @@ import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 
 const target = `plateau_restore_${process.pid}`;
-const urlFor = (db: string) => { const u = new URL(databaseUrl()); u.pathname = `/${db}`; return u.toString(); };
+const urlFor = (db: string) => {
+  const u = new URL(databaseUrl());
+  u.pathname = `/${db}`;
+  return u.toString();
+};
 
 async function fingerprint(db: string): Promise<Record<string, { rows: number; checksum: string }>> {
   const c = await mysql.createConnection({ uri: urlFor(db) });
   try {
-    const [tables] = await c.query("SELECT table_name AS t FROM information_schema.tables WHERE table_schema = ? AND table_type = 'BASE TABLE' ORDER BY table_name", [db]);
+    const [tables] = await c.query(
+      "SELECT table_name AS t FROM information_schema.tables WHERE table_schema = ? AND table_type = 'BASE TABLE' ORDER BY table_name",
+      [db],
+    );
     const out: Record<string, { rows: number; checksum: string }> = {};
     for (const { t: name } of tables as Array<{ t: string }>) {
       const [[count]] = (await c.query(`SELECT COUNT(*) AS n FROM \`${name}\``)) as any;
@@ -24,12 +31,15 @@ async function fingerprint(db: string): Promise<Record<string, { rows: number; c
       out[name] = { rows: Number(count.n), checksum: String(sum.Checksum) };
     }
     return out;
-  } finally { await c.end(); }
+  } finally {
+    await c.end();
+  }
 }
 
 describe('backup and restore', () => {
   afterAll(async () => {
-    const u = new URL(databaseUrl()); u.pathname = '/';
+    const u = new URL(databaseUrl());
+    u.pathname = '/';
     const c = await mysql.createConnection({ uri: u.toString() });
     await c.query(`DROP DATABASE IF EXISTS \`${target}\``);
     await c.end();
@@ -37,7 +47,7 @@ describe('backup and restore', () => {
 
   it('restores a dump into a fresh database with identical row counts and checksums', async () => {
     // Make sure there is something worth restoring, including text that needs care.
-    const ws = await createTestWorkspace('Backup «Ünïcode» \'quotes\'');
+    const ws = await createTestWorkspace("Backup «Ünïcode» 'quotes'");
     await getDb().insert(t.fermenters).values({ workspaceId: ws.workspaceId, name: 'FV "one"; DROP TABLE x; --', capacityLitres: 1234.5 });
     const source = new URL(databaseUrl()).pathname.slice(1);
     const dir = mkdtempSync(path.join(tmpdir(), 'plateau-backup-'));
@@ -61,7 +71,8 @@ describe('backup and restore', () => {
     await restore(urlFor(second), again);
     const [x, y] = await Promise.all([fingerprint(target), fingerprint(second)]);
     expect(y).toEqual(x);
-    const u = new URL(databaseUrl()); u.pathname = '/';
+    const u = new URL(databaseUrl());
+    u.pathname = '/';
     const admin = await mysql.createConnection({ uri: u.toString() });
     await admin.query(`DROP DATABASE IF EXISTS \`${second}\``);
     await admin.end();

@@ -20,7 +20,13 @@ describe('board API', () => {
     planner = await fx.client('planner');
     // A grain wash pitched at 1.065 holding at 1.022 for days: stuck far above the 1.002–1.008 finish (common practice).
     stalled = await addFerment(fx, { code: 'ST-1', fermenter: 0, pitchedDaysAgo: 9, og: 1.065, holdAt: 1.022 });
-    const r = await planner.post('/api/runs', { stillId: fx.stills.ws1, type: 'stripping', startsAt: iso(at(3, 6)), endsAt: iso(at(3, 12)), ferments: [{ fermentId: stalled, litres: 2400 }] });
+    const r = await planner.post('/api/runs', {
+      stillId: fx.stills.ws1,
+      type: 'stripping',
+      startsAt: iso(at(3, 6)),
+      endsAt: iso(at(3, 12)),
+      ferments: [{ fermentId: stalled, litres: 2400 }],
+    });
     expect(r.status, r.text).toBe(201);
     runId = r.json.run.id;
     expect(r.json.warnings.map((w: { code: string }) => w.code)).toContain('ferment_stalled');
@@ -58,7 +64,12 @@ describe('board API', () => {
     }
     const slot = r.json.slots[0];
     const current = await planner.get(`/api/runs/${runId}`);
-    const moved = await planner.patch(`/api/runs/${runId}`, { version: current.json.run.version, stillId: slot.stillId, startsAt: slot.startsAt, endsAt: slot.endsAt });
+    const moved = await planner.patch(`/api/runs/${runId}`, {
+      version: current.json.run.version,
+      stillId: slot.stillId,
+      startsAt: slot.startsAt,
+      endsAt: slot.endsAt,
+    });
     expect(moved.status, moved.text).toBe(200);
     expect(moved.json.run.startsAt).toBe(slot.startsAt);
     expect(moved.json.run.sequence).toBe(current.json.run.sequence + 1);
@@ -102,11 +113,17 @@ describe('board API', () => {
 
     // A change this process did not make (another instance, another node): asked for fresh it
     // shows at once; otherwise within FINGERPRINT_TTL_MS.
-    await getDb().update(t.runs).set({ notes: 'Changed elsewhere', version: sql`${t.runs.version} + 1` }).where(eq(t.runs.id, runId));
+    await getDb()
+      .update(t.runs)
+      .set({ notes: 'Changed elsewhere', version: sql`${t.runs.version} + 1` })
+      .where(eq(t.runs.id, runId));
     const fresh = await planner.get(path, { 'if-none-match': etag2, 'cache-control': 'no-cache' });
     expect(fresh.status).toBe(200);
     expect(fresh.json.runs.find((x: { id: number }) => x.id === runId).notes).toBe('Changed elsewhere');
-    await getDb().update(t.runs).set({ notes: 'Changed elsewhere again', version: sql`${t.runs.version} + 1` }).where(eq(t.runs.id, runId));
+    await getDb()
+      .update(t.runs)
+      .set({ notes: 'Changed elsewhere again', version: sql`${t.runs.version} + 1` })
+      .where(eq(t.runs.id, runId));
     await new Promise((r) => setTimeout(r, FINGERPRINT_TTL_MS + 200));
     const later = await planner.get(path);
     expect(later.json.runs.find((x: { id: number }) => x.id === runId).notes).toBe('Changed elsewhere again');

@@ -12,7 +12,11 @@ import { storedThrottleKey } from '../../src/server/throttle';
 // proxy, once trusting 127.0.0.1 as a proxy. A failed sign-in writes the client address into
 // audit_log, which shows whose address the app believed.
 
-interface Served { child: ChildProcess; url: string; log: string[] }
+interface Served {
+  child: ChildProcess;
+  url: string;
+  log: string[];
+}
 const servers: Served[] = [];
 
 async function sparePort(): Promise<number> {
@@ -55,7 +59,11 @@ function startServe(port: number, trustProxy: string | undefined): Served {
 async function healthy(s: Served): Promise<void> {
   for (let i = 0; i < 150; i++) {
     if (s.child.exitCode !== null) throw new Error(`serve.ts exited (${s.child.exitCode}): ${s.log.join('')}`);
-    try { if ((await fetch(`${s.url}/api/health`)).ok) return; } catch { /* not listening yet */ }
+    try {
+      if ((await fetch(`${s.url}/api/health`)).ok) return;
+    } catch {
+      /* not listening yet */
+    }
     await new Promise((r) => setTimeout(r, 100));
   }
   throw new Error(`serve.ts did not answer on ${s.url}: ${s.log.join('')}`);
@@ -80,10 +88,14 @@ function clientPeer(): string {
 
 function post(base: string, path: string, headers: Record<string, string>, body: string, localAddress = '127.0.0.1'): Promise<number> {
   return new Promise((resolve, reject) => {
-    const req = http.request(base + path, { method: 'POST', localAddress, headers: { 'content-length': String(Buffer.byteLength(body)), ...headers } }, (res) => {
-      res.resume();
-      resolve(res.statusCode ?? 0);
-    });
+    const req = http.request(
+      base + path,
+      { method: 'POST', localAddress, headers: { 'content-length': String(Buffer.byteLength(body)), ...headers } },
+      (res) => {
+        res.resume();
+        resolve(res.statusCode ?? 0);
+      },
+    );
     req.on('error', reject);
     req.end(body);
   });
@@ -95,8 +107,13 @@ function post(base: string, path: string, headers: Record<string, string>, body:
  */
 async function recordedAddress(s: Served, headers: Record<string, string>, peer: string): Promise<string | null> {
   const email = `nobody-${randomBytes(6).toString('hex')}@client-address.example`;
-  const status = await post(s.url, '/api/auth/sign-in', { origin: s.url, accept: 'application/json', 'content-type': 'application/json', ...headers },
-    JSON.stringify({ email, password: 'not the password at all' }), peer);
+  const status = await post(
+    s.url,
+    '/api/auth/sign-in',
+    { origin: s.url, accept: 'application/json', 'content-type': 'application/json', ...headers },
+    JSON.stringify({ email, password: 'not the password at all' }),
+    peer,
+  );
   expect(status).toBe(400);
   const [rows] = await getDb().execute(sql`SELECT ip FROM audit_log
     WHERE action = 'auth.sign_in_failed' AND JSON_VALUE(details, '$.email') = ${email} ORDER BY id DESC LIMIT 1`);
@@ -115,13 +132,19 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  for (const s of servers) if (s.child.exitCode === null) { s.child.kill('SIGKILL'); await exited(s.child); }
+  for (const s of servers)
+    if (s.child.exitCode === null) {
+      s.child.kill('SIGKILL');
+      await exited(s.child);
+    }
 });
 
 describe('without TRUST_PROXY, the peer is the client', () => {
   it('a forged X-Forwarded-For from 127.0.0.1: audit_log records 127.0.0.1', async () => {
     // Earlier files fail sign-ins from 127.0.0.1 too; start this address from a clean slate.
-    await getDb().delete(signInThrottle).where(inArray(signInThrottle.key, ['ip:127.0.0.1', storedThrottleKey('sign_in', 'ip:127.0.0.1')]));
+    await getDb()
+      .delete(signInThrottle)
+      .where(inArray(signInThrottle.key, ['ip:127.0.0.1', storedThrottleKey('sign_in', 'ip:127.0.0.1')]));
     expect(await recordedAddress(untrusted, { 'x-forwarded-for': '203.0.113.7' }, '127.0.0.1')).toBe('127.0.0.1');
   });
 
@@ -136,9 +159,13 @@ describe('without TRUST_PROXY, the peer is the client', () => {
   });
 
   it('X-Forwarded-Host does not make a foreign origin acceptable', async () => {
-    const status = await post(untrusted.url, '/api/auth/sign-in',
+    const status = await post(
+      untrusted.url,
+      '/api/auth/sign-in',
       { origin: 'https://evil.example', 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https', 'content-type': 'application/json' },
-      JSON.stringify({ email: 'a@b.example', password: 'whatever-password' }), loopbackPeer());
+      JSON.stringify({ email: 'a@b.example', password: 'whatever-password' }),
+      loopbackPeer(),
+    );
     expect(status).toBe(403);
   });
 });
@@ -172,9 +199,12 @@ describe('with TRUST_PROXY=127.0.0.1 (and a second proxy), the right-most addres
   });
 
   it('X-Forwarded-Host from a trusted proxy still decides nothing in the origin check', async () => {
-    const status = await post(trusting.url, '/api/auth/sign-in',
+    const status = await post(
+      trusting.url,
+      '/api/auth/sign-in',
       { origin: 'https://evil.example', 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https', 'content-type': 'application/json' },
-      JSON.stringify({ email: 'a@b.example', password: 'whatever-password' }));
+      JSON.stringify({ email: 'a@b.example', password: 'whatever-password' }),
+    );
     expect(status).toBe(403);
   });
 });
@@ -197,9 +227,17 @@ describe('the server around the app', () => {
 
   it('refuses a declared body larger than any route accepts, before reading it', async () => {
     const status = await new Promise<number>((resolve, reject) => {
-      const req = http.request(`${untrusted.url}/api/auth/sign-in`, {
-        method: 'POST', headers: { origin: untrusted.url, 'content-type': 'application/json', 'content-length': String(50 * 1024 * 1024) },
-      }, (res) => { res.resume(); resolve(res.statusCode ?? 0); });
+      const req = http.request(
+        `${untrusted.url}/api/auth/sign-in`,
+        {
+          method: 'POST',
+          headers: { origin: untrusted.url, 'content-type': 'application/json', 'content-length': String(50 * 1024 * 1024) },
+        },
+        (res) => {
+          res.resume();
+          resolve(res.statusCode ?? 0);
+        },
+      );
       req.on('error', reject);
       req.write('{');
     });

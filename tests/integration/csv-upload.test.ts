@@ -25,13 +25,19 @@ const upload = (c: Client, fermentId: number, body: string | FormData, headers: 
   c.request('POST', `/api/ferments/${fermentId}/uploads`, body, headers);
 
 async function count(workspaceId: number, fermentId: number) {
-  return (await getDb().select({ id: t.readings.id }).from(t.readings)
-    .where(and(eq(t.readings.workspaceId, workspaceId), eq(t.readings.fermentId, fermentId), isNull(t.readings.deletedAt)))).length;
+  return (
+    await getDb()
+      .select({ id: t.readings.id })
+      .from(t.readings)
+      .where(and(eq(t.readings.workspaceId, workspaceId), eq(t.readings.fermentId, fermentId), isNull(t.readings.deletedAt)))
+  ).length;
 }
 
 describe('logger CSV upload', () => {
   let s: Awaited<ReturnType<typeof setup>>;
-  beforeAll(async () => { s = await setup(); });
+  beforeAll(async () => {
+    s = await setup();
+  });
 
   it('previews, flags duplicates of existing readings, then imports in one go', async () => {
     const id = await s.mk('CSV-1');
@@ -51,7 +57,10 @@ describe('logger CSV upload', () => {
     expect(c.status, c.text).toBe(200);
     expect(c.json.imported).toBe(4);
     expect(await count(s.ws.workspaceId, id)).toBe(5);
-    const rows = await getDb().select().from(t.readings).where(and(eq(t.readings.fermentId, id), eq(t.readings.source, 'upload')));
+    const rows = await getDb()
+      .select()
+      .from(t.readings)
+      .where(and(eq(t.readings.fermentId, id), eq(t.readings.source, 'upload')));
     expect(rows.every((x) => x.uploadId === p.uploadId)).toBe(true);
     // A second commit of the same preview imports nothing more.
     expect((await s.planner.post(`/api/ferments/${id}/uploads/${p.uploadId}/commit`)).status).toBe(409);
@@ -122,10 +131,17 @@ describe('logger CSV upload', () => {
     // Chunked, without a Content-Length: the server counts bytes as they arrive.
     const c = s.planner;
     const stream = new ReadableStream<Uint8Array>({
-      start(ctrl) { const chunk = new TextEncoder().encode('2025-03-01T09:00:00Z,1.050\n'.repeat(40_000)); for (let i = 0; i < 6; i++) ctrl.enqueue(chunk); ctrl.close(); },
+      start(ctrl) {
+        const chunk = new TextEncoder().encode('2025-03-01T09:00:00Z,1.050\n'.repeat(40_000));
+        for (let i = 0; i < 6; i++) ctrl.enqueue(chunk);
+        ctrl.close();
+      },
     });
     const res = await fetch(`${BASE()}/api/ferments/${id}/uploads`, {
-      method: 'POST', body: stream, headers: { origin: BASE(), cookie: c.cookie, 'content-type': 'text/csv' }, duplex: 'half',
+      method: 'POST',
+      body: stream,
+      headers: { origin: BASE(), cookie: c.cookie, 'content-type': 'text/csv' },
+      duplex: 'half',
     } as RequestInit & { duplex: 'half' });
     expect(res.status).toBe(413);
     expect(await count(s.ws.workspaceId, id)).toBe(0);
@@ -136,7 +152,10 @@ describe('logger CSV upload', () => {
     const r = await upload(s.planner, id, fixture('good.csv'));
     expect(r.json.preview.counts.toImport).toBe(5);
     // Move the pitch later than the file's first rows: they would now be before pitching.
-    await getDb().update(t.ferments).set({ pitchedAt: new Date('2025-03-02T12:00:00Z') }).where(eq(t.ferments.id, id));
+    await getDb()
+      .update(t.ferments)
+      .set({ pitchedAt: new Date('2025-03-02T12:00:00Z') })
+      .where(eq(t.ferments.id, id));
     const c = await s.planner.post(`/api/ferments/${id}/uploads/${r.json.preview.uploadId}/commit`);
     expect(c.status).toBe(409);
     expect(c.json.error.message).toMatch(/Nothing was imported/);

@@ -16,7 +16,10 @@ const { runDigestFor } = await import('../../src/server/digest');
 const { notifyFermentStatusChange } = await import('../../src/server/notify');
 
 const mailOf = (workspaceId: number, kind: string) =>
-  getDb().select().from(t.mailOutbox).where(and(eq(t.mailOutbox.workspaceId, workspaceId), eq(t.mailOutbox.kind, kind)));
+  getDb()
+    .select()
+    .from(t.mailOutbox)
+    .where(and(eq(t.mailOutbox.workspaceId, workspaceId), eq(t.mailOutbox.kind, kind)));
 
 describe('daily digest', () => {
   let ws: TestWorkspace;
@@ -26,9 +29,27 @@ describe('daily digest', () => {
   beforeAll(async () => {
     ws = await createTestWorkspace('Digest Distillery');
     const db = getDb();
-    const [s] = await db.insert(t.stills).values({ workspaceId: ws.workspaceId, name: 'Wash Still 1', kind: 'pot', capacityLitres: 3000, heatingKw: 60, operatingHours: ALL_WEEK, typicalMinutes: {} }).$returningId();
+    const [s] = await db
+      .insert(t.stills)
+      .values({
+        workspaceId: ws.workspaceId,
+        name: 'Wash Still 1',
+        kind: 'pot',
+        capacityLitres: 3000,
+        heatingKw: 60,
+        operatingHours: ALL_WEEK,
+        typicalMinutes: {},
+      })
+      .$returningId();
     await db.insert(t.runs).values([
-      { workspaceId: ws.workspaceId, stillId: s!.id, type: 'stripping', startsAt: new Date('2027-03-10T08:00:00Z'), endsAt: new Date('2027-03-10T14:00:00Z'), operatorId: ws.users.distiller.id },
+      {
+        workspaceId: ws.workspaceId,
+        stillId: s!.id,
+        type: 'stripping',
+        startsAt: new Date('2027-03-10T08:00:00Z'),
+        endsAt: new Date('2027-03-10T14:00:00Z'),
+        operatorId: ws.users.distiller.id,
+      },
       { workspaceId: ws.workspaceId, stillId: s!.id, type: 'spirit', startsAt: new Date('2027-03-11T07:00:00Z'), endsAt: new Date('2027-03-11T16:00:00Z') },
       { workspaceId: ws.workspaceId, stillId: s!.id, type: 'cleaning', startsAt: new Date('2027-03-13T07:00:00Z'), endsAt: new Date('2027-03-13T09:00:00Z') },
     ]);
@@ -55,7 +76,10 @@ describe('daily digest', () => {
     expect(text).toContain('Tomorrow, Thu 11 Mar');
     expect(text).toContain('07:00–16:00 Spirit run on Wash Still 1, no operator yet');
     expect(text).not.toContain('Cleaning'); // 13 March is neither today nor tomorrow
-    const claims = await getDb().select().from(t.jobClaims).where(and(eq(t.jobClaims.workspaceId, ws.workspaceId), eq(t.jobClaims.job, 'digest')));
+    const claims = await getDb()
+      .select()
+      .from(t.jobClaims)
+      .where(and(eq(t.jobClaims.workspaceId, ws.workspaceId), eq(t.jobClaims.job, 'digest')));
     expect(claims.map((c) => c.jobKey)).toEqual(['2027-03-10']);
   });
 
@@ -70,8 +94,14 @@ describe('stalled-wash notice claim', () => {
   it('is sent once when two instances notice the same change', async () => {
     const ws = await createTestWorkspace('Stall Claim Distillery');
     const db = getDb();
-    const [wt] = await db.insert(t.washTypes).values({ workspaceId: ws.workspaceId, name: 'Grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 }).$returningId();
-    const [f] = await db.insert(t.ferments).values({ workspaceId: ws.workspaceId, code: 'G-1', washTypeId: wt!.id, volumeLitres: 1000, pitchedAt: new Date(Date.now() - 8 * 86_400_000), og: 1.060 }).$returningId();
+    const [wt] = await db
+      .insert(t.washTypes)
+      .values({ workspaceId: ws.workspaceId, name: 'Grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 })
+      .$returningId();
+    const [f] = await db
+      .insert(t.ferments)
+      .values({ workspaceId: ws.workspaceId, code: 'G-1', washTypeId: wt!.id, volumeLitres: 1000, pitchedAt: new Date(Date.now() - 8 * 86_400_000), og: 1.06 })
+      .$returningId();
     const change = { workspaceId: ws.workspaceId, fermentId: f!.id, before: 'slowing', after: 'stalled' };
     const sent = await Promise.all([notifyFermentStatusChange(db, change), notifyFermentStatusChange(db, change)]);
     expect(sent.filter(Boolean)).toHaveLength(1);

@@ -20,23 +20,85 @@ beforeAll(async () => {
   ws = await createTestWorkspace('Exports', { timeZone: 'Europe/London' });
   const db = getDb();
   const w = ws.workspaceId;
-  const [still] = await db.insert(t.stills).values({
-    workspaceId: w, name: '=Still "A", copper', kind: 'pot', capacityLitres: 1000, heatingKw: 30,
-    operatingHours: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, open: '08:00', close: '18:00' })), typicalMinutes: {},
-  }).$returningId();
-  const [wt] = await db.insert(t.washTypes).values({ workspaceId: w, name: '@grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 }).$returningId();
-  const [f] = await db.insert(t.ferments).values({
-    workspaceId: w, code: '+EX-1', washTypeId: wt!.id, volumeLitres: 900, pitchedAt: utc('2025-03-03T09:00'), og: 1.06, yeast: '-cmd|calc', notes: NASTY_NOTES,
-  }).$returningId();
+  const [still] = await db
+    .insert(t.stills)
+    .values({
+      workspaceId: w,
+      name: '=Still "A", copper',
+      kind: 'pot',
+      capacityLitres: 1000,
+      heatingKw: 30,
+      operatingHours: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, open: '08:00', close: '18:00' })),
+      typicalMinutes: {},
+    })
+    .$returningId();
+  const [wt] = await db
+    .insert(t.washTypes)
+    .values({ workspaceId: w, name: '@grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 })
+    .$returningId();
+  const [f] = await db
+    .insert(t.ferments)
+    .values({
+      workspaceId: w,
+      code: '+EX-1',
+      washTypeId: wt!.id,
+      volumeLitres: 900,
+      pitchedAt: utc('2025-03-03T09:00'),
+      og: 1.06,
+      yeast: '-cmd|calc',
+      notes: NASTY_NOTES,
+    })
+    .$returningId();
   await db.insert(t.readings).values([
-    { workspaceId: w, fermentId: f!.id, takenAt: utc('2025-03-04T09:00'), method: 'hydrometer', rawValue: 1.03, rawUnit: 'sg', sampleTempC: 20, correctedSg: 1.03, note: '=HYPERLINK("http://x.example","y")' },
-    { workspaceId: w, fermentId: f!.id, takenAt: utc('2025-03-05T09:00'), method: 'hydrometer', rawValue: 1.012, rawUnit: 'sg', sampleTempC: 21.5, correctedSg: 1.0123, note: '\tTAB first' },
+    {
+      workspaceId: w,
+      fermentId: f!.id,
+      takenAt: utc('2025-03-04T09:00'),
+      method: 'hydrometer',
+      rawValue: 1.03,
+      rawUnit: 'sg',
+      sampleTempC: 20,
+      correctedSg: 1.03,
+      note: '=HYPERLINK("http://x.example","y")',
+    },
+    {
+      workspaceId: w,
+      fermentId: f!.id,
+      takenAt: utc('2025-03-05T09:00'),
+      method: 'hydrometer',
+      rawValue: 1.012,
+      rawUnit: 'sg',
+      sampleTempC: 21.5,
+      correctedSg: 1.0123,
+      note: '\tTAB first',
+    },
   ]);
-  const [run] = await db.insert(t.runs).values({
-    workspaceId: w, stillId: still!.id, type: 'stripping', status: 'done', startsAt: utc('2025-03-06T08:00'), endsAt: utc('2025-03-06T14:00'), chargeLitres: 900, chargeAbv: 7, notes: '-2+3',
-  }).$returningId();
+  const [run] = await db
+    .insert(t.runs)
+    .values({
+      workspaceId: w,
+      stillId: still!.id,
+      type: 'stripping',
+      status: 'done',
+      startsAt: utc('2025-03-06T08:00'),
+      endsAt: utc('2025-03-06T14:00'),
+      chargeLitres: 900,
+      chargeAbv: 7,
+      notes: '-2+3',
+    })
+    .$returningId();
   await db.insert(t.runFerments).values({ runId: run!.id, fermentId: f!.id, workspaceId: w, litres: 900 });
-  await db.insert(t.runOutcomes).values({ workspaceId: w, runId: run!.id, fraction: 'low_wines', volumeLitres: 220, alcoholmeterReading: 27, readingTempC: 20, abv20: 27, laa: 59.4, cutNote: '@SUM(A1:A2)' });
+  await db.insert(t.runOutcomes).values({
+    workspaceId: w,
+    runId: run!.id,
+    fraction: 'low_wines',
+    volumeLitres: 220,
+    alcoholmeterReading: 27,
+    readingTempC: 20,
+    abv20: 27,
+    laa: 59.4,
+    cutNote: '@SUM(A1:A2)',
+  });
   manager = await ws.client('manager');
   planner = await ws.client('planner');
 });
@@ -92,7 +154,17 @@ describe('CSV exports', () => {
     expect(r.status, r.text).toBe(200);
     const rows = parse(r.text);
     // Mon–Fri 08–18 = 50 h open; the 6 h run on Thursday = 6 h booked and done; 6 / 50 = 0.12
-    expect(rows).toEqual([{ still: '\'=Still "A", copper', iso_week: '2025-W10', available_hours: '50', booked_hours: '6', done_hours: '6', idle_waiting_hours: '0', utilisation: '0.12' }]);
+    expect(rows).toEqual([
+      {
+        still: '\'=Still "A", copper',
+        iso_week: '2025-W10',
+        available_hours: '50',
+        booked_hours: '6',
+        done_hours: '6',
+        idle_waiting_hours: '0',
+        utilisation: '0.12',
+      },
+    ]);
   });
 
   it('staff and distillers cannot export (403)', async () => {

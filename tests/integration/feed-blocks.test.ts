@@ -14,10 +14,24 @@ function events(n: number, workspaceId: number, changed = -1): FeedEvent[] {
   return Array.from({ length: n }, (_, i) => {
     const start = new Date(base + i * 8 * HOUR);
     return {
-      uid: uidForRun(i + 1, workspaceId), start, end: new Date(start.getTime() + 5 * HOUR),
+      uid: uidForRun(i + 1, workspaceId),
+      start,
+      end: new Date(start.getTime() + 5 * HOUR),
       title: runEventTitle('stripping', `Still ${(i % 3) + 1}`),
-      description: describeRunEvent({ runType: 'stripping', stillName: `Still ${(i % 3) + 1}`, ferments: [], chargeLitres: 2000, operatorName: null, warnings: [], url: `https://plateau.example/runs/${i + 1}`, timeZone: 'Europe/London' }),
-      location: `Still ${(i % 3) + 1}`, url: `https://plateau.example/runs/${i + 1}`, status: 'TENTATIVE', sequence: i === changed ? 1 : 0,
+      description: describeRunEvent({
+        runType: 'stripping',
+        stillName: `Still ${(i % 3) + 1}`,
+        ferments: [],
+        chargeLitres: 2000,
+        operatorName: null,
+        warnings: [],
+        url: `https://plateau.example/runs/${i + 1}`,
+        timeZone: 'Europe/London',
+      }),
+      location: `Still ${(i % 3) + 1}`,
+      url: `https://plateau.example/runs/${i + 1}`,
+      status: 'TENTATIVE',
+      sequence: i === changed ? 1 : 0,
       lastModified: new Date(base - 86_400_000),
     };
   });
@@ -27,7 +41,9 @@ function events(n: number, workspaceId: number, changed = -1): FeedEvent[] {
 describe('calendar event blocks kept in the database', () => {
   let ws: TestWorkspace;
   const now = new Date(Date.UTC(2026, 11, 6, 12));
-  beforeAll(async () => { ws = await createTestWorkspace('Feed blocks'); });
+  beforeAll(async () => {
+    ws = await createTestWorkspace('Feed blocks');
+  });
 
   it('stores what ics wrote, and a cold cache is filled from the store with the same text', async () => {
     // 250 events: a cold cache reads the workspace's blocks whole (from 200 missing); one changed event is looked up by key.
@@ -35,7 +51,10 @@ describe('calendar event blocks kept in the database', () => {
     const first = await buildFeedWithStore(ws.workspaceId, input, new EventCache());
     expect(first.fromStore).toBe(0);
     expect(first.written).toBe(250);
-    const [{ n }] = await getDb().select({ n: sql<number>`COUNT(*)` }).from(t.calendarEventBlocks).where(eq(t.calendarEventBlocks.workspaceId, ws.workspaceId)) as [{ n: number }];
+    const [{ n }] = (await getDb()
+      .select({ n: sql<number>`COUNT(*)` })
+      .from(t.calendarEventBlocks)
+      .where(eq(t.calendarEventBlocks.workspaceId, ws.workspaceId))) as [{ n: number }];
     expect(Number(n)).toBe(250);
 
     // "After a restart": an empty memory cache. Every block comes from the store; ics writes none.
@@ -67,7 +86,9 @@ describe('calendar event blocks kept in the database', () => {
   it(`prunes blocks older than ${BLOCK_MAX_AGE_DAYS} days`, async () => {
     const old = await createTestWorkspace('Feed blocks prune');
     await buildFeedWithStore(old.workspaceId, { name: 'x', events: events(6, old.workspaceId), now }, new EventCache());
-    await getDb().update(t.calendarEventBlocks).set({ createdAt: new Date(Date.now() - (BLOCK_MAX_AGE_DAYS + 1) * 86_400_000) })
+    await getDb()
+      .update(t.calendarEventBlocks)
+      .set({ createdAt: new Date(Date.now() - (BLOCK_MAX_AGE_DAYS + 1) * 86_400_000) })
       .where(eq(t.calendarEventBlocks.workspaceId, old.workspaceId));
     expect(await pruneBlocks(old.workspaceId)).toBe(6);
     const rebuilt = await buildFeedWithStore(old.workspaceId, { name: 'x', events: events(6, old.workspaceId), now }, new EventCache());

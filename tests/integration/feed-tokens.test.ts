@@ -12,7 +12,11 @@ import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
 import { Client, createTestWorkspace, type TestWorkspace } from '../helpers/api';
 
-interface Fetched { status: number; type: string | null; body: string }
+interface Fetched {
+  status: number;
+  type: string | null;
+  body: string;
+}
 
 async function fetchFeed(url: string): Promise<Fetched> {
   const res = await fetch(url, { headers: { 'cache-control': 'no-cache' } });
@@ -30,7 +34,12 @@ async function createFeed(client: Client, body: Record<string, unknown>): Promis
   return { id: r.json.feed.id, url: r.json.url };
 }
 
-interface GroupJson { holderId: number | null; holderName: string; holderRole: string | null; feeds: Array<Record<string, any>> }
+interface GroupJson {
+  holderId: number | null;
+  holderName: string;
+  holderRole: string | null;
+  feeds: Array<Record<string, any>>;
+}
 
 describe('feed tokens follow their holder', () => {
   let ws: TestWorkspace;

@@ -18,7 +18,15 @@ const DAY = 24 * HOUR;
 const STILL_1 = 'Alambic numéro un — chauffé à 98 °C, côté café, près de la réserve';
 const STILL_2 = 'Wash Still 2';
 
-interface Parsed { uid: string; start: number; end: number; status: string; sequence: number; summary: string; description: string }
+interface Parsed {
+  uid: string;
+  start: number;
+  end: number;
+  status: string;
+  sequence: number;
+  summary: string;
+  description: string;
+}
 
 /** Both parsers must agree on every event; returns them by UID. */
 function parseBoth(text: string): Map<string, Parsed> {
@@ -27,9 +35,13 @@ function parseBoth(text: string): Map<string, Parsed> {
   for (const c of cal.getAllSubcomponents('vevent')) {
     const ev = new ICAL.Event(c);
     a.set(ev.uid, {
-      uid: ev.uid, start: ev.startDate.toJSDate().getTime(), end: ev.endDate.toJSDate().getTime(),
-      status: String(c.getFirstPropertyValue('status')), sequence: Number(c.getFirstPropertyValue('sequence')),
-      summary: ev.summary, description: ev.description,
+      uid: ev.uid,
+      start: ev.startDate.toJSDate().getTime(),
+      end: ev.endDate.toJSDate().getTime(),
+      status: String(c.getFirstPropertyValue('status')),
+      sequence: Number(c.getFirstPropertyValue('sequence')),
+      summary: ev.summary,
+      description: ev.description,
     });
   }
   const b = new Map<string, Parsed>();
@@ -37,8 +49,13 @@ function parseBoth(text: string): Map<string, Parsed> {
     if (v?.type !== 'VEVENT') continue;
     const ev = v as nodeIcal.VEvent;
     b.set(ev.uid, {
-      uid: ev.uid, start: new Date(ev.start).getTime(), end: new Date(ev.end!).getTime(), status: String(ev.status), sequence: Number(ev.sequence),
-      summary: String(ev.summary), description: String(ev.description),
+      uid: ev.uid,
+      start: new Date(ev.start).getTime(),
+      end: new Date(ev.end!).getTime(),
+      status: String(ev.status),
+      sequence: Number(ev.sequence),
+      summary: String(ev.summary),
+      description: String(ev.description),
     });
   }
   expect([...b.keys()].sort()).toEqual([...a.keys()].sort());
@@ -88,23 +105,61 @@ describe('calendar feeds', () => {
   beforeAll(async () => {
     ws = await createTestWorkspace('Feeds Distillery');
     const db = getDb();
-    const mkStill = async (name: string) => (await db.insert(t.stills).values({
-      workspaceId: ws.workspaceId, name, kind: 'pot', capacityLitres: 3000, heatingKw: 60, operatingHours: ALL_WEEK, typicalMinutes: {},
-    }).$returningId())[0]!.id;
+    const mkStill = async (name: string) =>
+      (
+        await db
+          .insert(t.stills)
+          .values({
+            workspaceId: ws.workspaceId,
+            name,
+            kind: 'pot',
+            capacityLitres: 3000,
+            heatingKw: 60,
+            operatingHours: ALL_WEEK,
+            typicalMinutes: {},
+          })
+          .$returningId()
+      )[0]!.id;
     still1 = await mkStill(STILL_1);
     still2 = await mkStill(STILL_2);
-    const [wt] = await db.insert(t.washTypes).values({ workspaceId: ws.workspaceId, name: 'Sugar wash', category: 'sugar', terminalMin: 0.990, terminalMax: 1.000 }).$returningId();
+    const [wt] = await db
+      .insert(t.washTypes)
+      .values({ workspaceId: ws.workspaceId, name: 'Sugar wash', category: 'sugar', terminalMin: 0.99, terminalMax: 1.0 })
+      .$returningId();
     const now = Date.now();
-    const [f] = await db.insert(t.ferments).values({
-      workspaceId: ws.workspaceId, code: 'F-É1', washTypeId: wt!.id, volumeLitres: 2400, pitchedAt: new Date(now - 9 * DAY), og: 1.080,
-    }).$returningId();
+    const [f] = await db
+      .insert(t.ferments)
+      .values({
+        workspaceId: ws.workspaceId,
+        code: 'F-É1',
+        washTypeId: wt!.id,
+        volumeLitres: 2400,
+        pitchedAt: new Date(now - 9 * DAY),
+        og: 1.08,
+      })
+      .$returningId();
     fermentId = f!.id;
     // Still falling: not finished.
-    const falling: Array<[number, number]> = [[8.5, 1.070], [7.5, 1.050], [6.5, 1.030], [5.5, 1.015], [4.5, 1.006]];
-    await db.insert(t.readings).values(falling.map(([daysAgo, sg]) => ({
-      workspaceId: ws.workspaceId, fermentId, takenAt: new Date(now - daysAgo * DAY), method: 'hydrometer' as const, rawValue: sg, rawUnit: 'sg' as const,
-      sampleTempC: 20, sampleTempUnit: 'C' as const, correctedSg: sg,
-    })));
+    const falling: Array<[number, number]> = [
+      [8.5, 1.07],
+      [7.5, 1.05],
+      [6.5, 1.03],
+      [5.5, 1.015],
+      [4.5, 1.006],
+    ];
+    await db.insert(t.readings).values(
+      falling.map(([daysAgo, sg]) => ({
+        workspaceId: ws.workspaceId,
+        fermentId,
+        takenAt: new Date(now - daysAgo * DAY),
+        method: 'hydrometer' as const,
+        rawValue: sg,
+        rawUnit: 'sg' as const,
+        sampleTempC: 20,
+        sampleTempUnit: 'C' as const,
+        correctedSg: sg,
+      })),
+    );
     planner = await ws.client('planner');
     staff = await ws.client('staff');
     distiller = await ws.client('distiller');
@@ -114,7 +169,14 @@ describe('calendar feeds', () => {
       runs[key] = { id: r.json.run.id, startsAt: new Date(r.json.run.startsAt), endsAt: new Date(r.json.run.endsAt) };
     };
     const at = (days: number, hour: number) => new Date(Math.floor(now / DAY) * DAY + days * DAY + hour * HOUR).toISOString();
-    await book('strip', { stillId: still1, type: 'stripping', startsAt: at(3, 7), durationMinutes: 360, operatorId: ws.users.distiller.id, ferments: [{ fermentId, litres: 2400 }] });
+    await book('strip', {
+      stillId: still1,
+      type: 'stripping',
+      startsAt: at(3, 7),
+      durationMinutes: 360,
+      operatorId: ws.users.distiller.id,
+      ferments: [{ fermentId, litres: 2400 }],
+    });
     await book('clean', { stillId: still1, type: 'cleaning', startsAt: at(4, 8), durationMinutes: 120 });
     await book('other', { stillId: still2, type: 'maintenance', startsAt: at(5, 8), durationMinutes: 240, operatorId: ws.users.staff.id });
     await book('gone', { stillId: still2, type: 'stripping', startsAt: at(6, 8), durationMinutes: 300 });
@@ -184,7 +246,7 @@ describe('calendar feeds', () => {
     expect(stale.status).toBe(200);
   });
 
-  it('a per-still feed never shows another still\'s runs; a person feed only the runs they operate', async () => {
+  it("a per-still feed never shows another still's runs; a person feed only the runs they operate", async () => {
     const s2 = await distiller.post('/api/feeds', { scope: 'still', stillId: still2 });
     expect(s2.status, s2.text).toBe(201);
     const events = parseBoth((await fetchFeed(s2.json.url)).text);
@@ -227,7 +289,11 @@ describe('calendar feeds', () => {
     const now = Date.now();
     for (const daysAgo of [3.5, 2.5, 1.5, 0.2]) {
       const r = await distiller.post(`/api/ferments/${fermentId}/readings`, {
-        value: 0.996, unit: 'sg', method: 'hydrometer', sampleTemp: 20, takenAt: new Date(now - daysAgo * DAY).toISOString(),
+        value: 0.996,
+        unit: 'sg',
+        method: 'hydrometer',
+        sampleTemp: 20,
+        takenAt: new Date(now - daysAgo * DAY).toISOString(),
       });
       expect(r.status, r.text).toBe(201);
     }
@@ -250,7 +316,7 @@ describe('calendar feeds', () => {
     expect(after.start).toBe(newStart.getTime());
   });
 
-  it('lets each person see and revoke their own feeds; a manager sees and revokes everyone\'s', async () => {
+  it("lets each person see and revoke their own feeds; a manager sees and revokes everyone's", async () => {
     const plannersFeed = await planner.post('/api/feeds', { scope: 'workspace', name: 'Planner desk' });
     expect(plannersFeed.status).toBe(201);
     const distillerList = await distiller.get('/api/feeds');
@@ -265,7 +331,18 @@ describe('calendar feeds', () => {
     expect((await fetchFeed(plannersFeed.json.url)).status).toBe(404);
     // A still of another distillery cannot be subscribed to.
     const other = await createTestWorkspace('Other Distillery');
-    const [s] = await getDb().insert(t.stills).values({ workspaceId: other.workspaceId, name: 'Theirs', kind: 'pot', capacityLitres: 1000, heatingKw: 20, operatingHours: ALL_WEEK, typicalMinutes: {} }).$returningId();
+    const [s] = await getDb()
+      .insert(t.stills)
+      .values({
+        workspaceId: other.workspaceId,
+        name: 'Theirs',
+        kind: 'pot',
+        capacityLitres: 1000,
+        heatingKw: 20,
+        operatingHours: ALL_WEEK,
+        typicalMinutes: {},
+      })
+      .$returningId();
     expect((await staff.post('/api/feeds', { scope: 'still', stillId: s!.id })).status).toBe(400);
   });
 

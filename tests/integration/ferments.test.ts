@@ -55,7 +55,16 @@ describe('fermenters, wash types and ferments', () => {
   });
 
   it('creates a ferment, then refuses a second active ferment in the same fermenter (409) until it is emptied', async () => {
-    const body = { code: 'F-1', washTypeId, fermenterId: fv1, volume: 2500, pitchedAt: '2025-04-01T08:00', og: 1.062, yeast: 'M strain', ingredients: [{ name: 'Malt', quantity: 700 }] };
+    const body = {
+      code: 'F-1',
+      washTypeId,
+      fermenterId: fv1,
+      volume: 2500,
+      pitchedAt: '2025-04-01T08:00',
+      og: 1.062,
+      yeast: 'M strain',
+      ingredients: [{ name: 'Malt', quantity: 700 }],
+    };
     expect((await distiller.post('/api/ferments', body)).status).toBe(403);
     const r = await planner.post('/api/ferments', body);
     expect(r.status, r.text).toBe(201);
@@ -93,7 +102,15 @@ describe('fermenters, wash types and ferments', () => {
     const wt = (await m.get('/api/wash-types')).json.washTypes[0].id;
     const fv = await m.post('/api/fermenters', { name: 'FV1', capacity: 800 });
     expect(fv.json.fermenter.capacityLitres).toBeCloseTo(800 * 3.785411784, 6); // 1 US gal = 3.785411784 L (exact)
-    const f = await m.post('/api/ferments', { code: 'U-1', washTypeId: wt, fermenterId: fv.json.fermenter.id, volume: 500, pitchedAt: '2025-04-01T08:00:00Z', og: 1.06, ingredients: [{ name: 'Sugar', quantity: 100 }] });
+    const f = await m.post('/api/ferments', {
+      code: 'U-1',
+      washTypeId: wt,
+      fermenterId: fv.json.fermenter.id,
+      volume: 500,
+      pitchedAt: '2025-04-01T08:00:00Z',
+      og: 1.06,
+      ingredients: [{ name: 'Sugar', quantity: 100 }],
+    });
     expect(f.status, f.text).toBe(201);
     expect(f.json.ferment.volumeLitres).toBeCloseTo(500 * 3.785411784, 6);
     expect(f.json.ferment.ingredients[0].quantityKg).toBeCloseTo(100 * 0.45359237, 6); // 1 lb = 0.45359237 kg (exact)
@@ -129,9 +146,14 @@ describe('forecast wiring', () => {
     const f = await p.post('/api/ferments', { code: 'FC-1', washTypeId: sugar, fermenterId: null, volume: 1000, pitchedAt: pitched.toISOString(), og: 1.08 });
     const id = f.json.ferment.id;
     // REFERENCES §6 sugar-wash vector (readings every 24 h): finished, steady from 192 h at 3 stable days.
-    const series = [1.080, 1.050, 1.025, 1.010, 1.000, 0.996, 0.995, 0.995, 0.995];
+    const series = [1.08, 1.05, 1.025, 1.01, 1.0, 0.996, 0.995, 0.995, 0.995];
     for (const [i, sg] of series.entries()) {
-      const r = await p.post(`/api/ferments/${id}/readings`, { value: sg, unit: 'sg', method: 'digital', takenAt: new Date(pitched.getTime() + i * 86_400_000 + 60_000).toISOString() });
+      const r = await p.post(`/api/ferments/${id}/readings`, {
+        value: sg,
+        unit: 'sg',
+        method: 'digital',
+        takenAt: new Date(pitched.getTime() + i * 86_400_000 + 60_000).toISOString(),
+      });
       expect(r.status, r.text).toBe(201);
     }
     const fc = await p.get(`/api/ferments/${id}/forecast`);
@@ -145,14 +167,17 @@ describe('forecast wiring', () => {
     expect(summaries.get(id)!.lastSg).toBe(0.995);
     const [again] = await getDb().select().from(t.fermentForecasts).where(eq(t.fermentForecasts.fermentId, id));
     expect(again!.computedAt.getTime()).toBe(cached!.computedAt.getTime()); // served from the cache
-    const history = await getDb().select().from(t.forecastHistory).where(and(eq(t.forecastHistory.workspaceId, ws.workspaceId), eq(t.forecastHistory.fermentId, id)));
+    const history = await getDb()
+      .select()
+      .from(t.forecastHistory)
+      .where(and(eq(t.forecastHistory.workspaceId, ws.workspaceId), eq(t.forecastHistory.fermentId, id)));
     expect(history.length).toBe(1); // ten recomputes within minutes, one history row
     // Another workspace's ids give nothing.
     const other = await createTestWorkspace('Forecast stranger');
     expect((await getForecasts(await ctxOf(other.workspaceId), [id])).size).toBe(0);
   });
 
-  it('learns from the wash type\'s finished ferments: same type only, not itself, only those finished by then', async () => {
+  it("learns from the wash type's finished ferments: same type only, not itself, only those finished by then", async () => {
     const DAY = 86_400_000;
     const ws = await createTestWorkspace('Forecast history');
     await insertDefaultWashTypes(ws.workspaceId);
@@ -163,27 +188,61 @@ describe('forecast wiring', () => {
     const db = getDb();
     // Four sugar washes confirmed stable 6–7 days after pitching, one grain wash after 12 days (invented history).
     const past = [
-      { type: sugar.id, days: 6.0, ago: 60 }, { type: sugar.id, days: 6.5, ago: 50 }, { type: sugar.id, days: 7.0, ago: 40 },
-      { type: sugar.id, days: 6.5, ago: 30 }, { type: grain.id, days: 12, ago: 45 },
+      { type: sugar.id, days: 6.0, ago: 60 },
+      { type: sugar.id, days: 6.5, ago: 50 },
+      { type: sugar.id, days: 7.0, ago: 40 },
+      { type: sugar.id, days: 6.5, ago: 30 },
+      { type: grain.id, days: 12, ago: 45 },
     ];
     for (const [i, h] of past.entries()) {
       const pitchedAt = new Date(Date.now() - h.ago * DAY);
       const ruleMetAt = new Date(pitchedAt.getTime() + h.days * DAY);
-      const [f] = await db.insert(t.ferments).values({
-        workspaceId: ws.workspaceId, code: `H-${i + 1}`, washTypeId: h.type, volumeLitres: 1000, pitchedAt, og: 1.08,
-        emptiedAt: new Date(ruleMetAt.getTime() + DAY), emptiedReason: 'distilled',
-      }).$returningId();
+      const [f] = await db
+        .insert(t.ferments)
+        .values({
+          workspaceId: ws.workspaceId,
+          code: `H-${i + 1}`,
+          washTypeId: h.type,
+          volumeLitres: 1000,
+          pitchedAt,
+          og: 1.08,
+          emptiedAt: new Date(ruleMetAt.getTime() + DAY),
+          emptiedReason: 'distilled',
+        })
+        .$returningId();
       await db.insert(t.fermentForecasts).values({
-        fermentId: f!.id, workspaceId: ws.workspaceId, inputKey: 'seeded', status: 'finished', ruleMetAt, readyAt: ruleMetAt,
-        readyP10: ruleMetAt, readyP90: ruleMetAt, payload: {}, computedAt: new Date(),
+        fermentId: f!.id,
+        workspaceId: ws.workspaceId,
+        inputKey: 'seeded',
+        status: 'finished',
+        ruleMetAt,
+        readyAt: ruleMetAt,
+        readyP10: ruleMetAt,
+        readyP90: ruleMetAt,
+        payload: {},
+        computedAt: new Date(),
       });
     }
     // A sugar wash 1.5 days in: the curve's bend not seen yet, so the fit is loose.
     const pitched = new Date(Date.now() - 1.5 * DAY);
-    const live = (await p.post('/api/ferments', { code: 'H-LIVE', washTypeId: sugar.id, fermenterId: null, volume: 1000, pitchedAt: pitched.toISOString(), og: 1.08 })).json.ferment.id;
-    const series = [[0.25, 1.074], [0.5, 1.066], [0.75, 1.058], [1.0, 1.051], [1.25, 1.045], [1.5, 1.040]] as const;
+    const live = (
+      await p.post('/api/ferments', { code: 'H-LIVE', washTypeId: sugar.id, fermenterId: null, volume: 1000, pitchedAt: pitched.toISOString(), og: 1.08 })
+    ).json.ferment.id;
+    const series = [
+      [0.25, 1.074],
+      [0.5, 1.066],
+      [0.75, 1.058],
+      [1.0, 1.051],
+      [1.25, 1.045],
+      [1.5, 1.04],
+    ] as const;
     for (const [d, sg] of series) {
-      const r = await p.post(`/api/ferments/${live}/readings`, { value: sg, unit: 'sg', method: 'digital', takenAt: new Date(pitched.getTime() + d * DAY - 60_000).toISOString() });
+      const r = await p.post(`/api/ferments/${live}/readings`, {
+        value: sg,
+        unit: 'sg',
+        method: 'digital',
+        takenAt: new Date(pitched.getTime() + d * DAY - 60_000).toISOString(),
+      });
       expect(r.status, r.text).toBe(201);
     }
     const now = new Date();
@@ -193,8 +252,14 @@ describe('forecast wiring', () => {
     expect(withHistory.history!.medianDays).toBeCloseTo(6.5, 6);
     // The same inputs without history, straight from the forecaster: history pulls toward 6.5 days.
     const alone = forecastFerment({
-      readings: series.map(([d, sg]) => ({ takenAt: new Date(pitched.getTime() + d * DAY - 60_000), sg })), og: 1.08, pitchedAt: pitched,
-      terminalRange: { min: sugar.terminalMin, max: sugar.terminalMax }, stableDays: 3, tolerance: 0.001, now, seed: live,
+      readings: series.map(([d, sg]) => ({ takenAt: new Date(pitched.getTime() + d * DAY - 60_000), sg })),
+      og: 1.08,
+      pitchedAt: pitched,
+      terminalRange: { min: sugar.terminalMin, max: sugar.terminalMax },
+      stableDays: 3,
+      tolerance: 0.001,
+      now,
+      seed: live,
     });
     expect(alone.history).toBeNull();
     const days = (d: Date | null) => (d!.getTime() - pitched.getTime()) / DAY;
@@ -204,7 +269,13 @@ describe('forecast wiring', () => {
     // The selection itself: a ferment emptied at day 35 ago only knows those emptied before then.
     const finished = past.map((h, i) => {
       const pitchedAt = new Date(now.getTime() - h.ago * DAY);
-      return { id: i + 1, washTypeId: h.type, pitchedAt, ruleMetAt: new Date(pitchedAt.getTime() + h.days * DAY), emptiedAt: new Date(pitchedAt.getTime() + (h.days + 1) * DAY) };
+      return {
+        id: i + 1,
+        washTypeId: h.type,
+        pitchedAt,
+        ruleMetAt: new Date(pitchedAt.getTime() + h.days * DAY),
+        emptiedAt: new Date(pitchedAt.getTime() + (h.days + 1) * DAY),
+      };
     });
     expect(historyFor({ id: 99, washTypeId: sugar.id, emptiedAt: new Date(now.getTime() - 35 * DAY) }, finished, now).sort()).toEqual([6, 6.5]);
     expect(historyFor({ id: 2, washTypeId: sugar.id, emptiedAt: null }, finished, now).sort()).toEqual([6, 6.5, 7]);

@@ -11,20 +11,54 @@ import { getDb } from '../../src/db/client';
 import { Client, createTestWorkspace } from '../helpers/api';
 
 const scratchName = `plateau_scratch_${process.pid}`;
-const scratchUrl = () => { const u = new URL(databaseUrl()); u.pathname = `/${scratchName}`; return u.toString(); };
+const scratchUrl = () => {
+  const u = new URL(databaseUrl());
+  u.pathname = `/${scratchName}`;
+  return u.toString();
+};
 
 async function withAdmin<T>(fn: (c: mysql.Connection) => Promise<T>): Promise<T> {
-  const u = new URL(databaseUrl()); u.pathname = '/';
+  const u = new URL(databaseUrl());
+  u.pathname = '/';
   const c = await mysql.createConnection({ uri: u.toString() });
-  try { return await fn(c); } finally { await c.end(); }
+  try {
+    return await fn(c);
+  } finally {
+    await c.end();
+  }
 }
 
-const TABLES = ['workspaces', 'users', 'memberships', 'sessions', 'invitations', 'email_tokens', 'stills', 'still_closures', 'fermenters', 'wash_types',
-  'ferments', 'ferment_ingredients', 'readings', 'ferment_forecasts', 'forecast_history', 'runs', 'run_ferments', 'run_feeds', 'run_outcomes',
-  'calendar_feeds', 'mail_outbox', 'audit_log', 'sign_in_throttle', 'reading_uploads'];
+const TABLES = [
+  'workspaces',
+  'users',
+  'memberships',
+  'sessions',
+  'invitations',
+  'email_tokens',
+  'stills',
+  'still_closures',
+  'fermenters',
+  'wash_types',
+  'ferments',
+  'ferment_ingredients',
+  'readings',
+  'ferment_forecasts',
+  'forecast_history',
+  'runs',
+  'run_ferments',
+  'run_feeds',
+  'run_outcomes',
+  'calendar_feeds',
+  'mail_outbox',
+  'audit_log',
+  'sign_in_throttle',
+  'reading_uploads',
+];
 
 describe('database foundation', () => {
-  afterAll(async () => { await withAdmin((c) => c.query(`DROP DATABASE IF EXISTS \`${scratchName}\``)); });
+  afterAll(async () => {
+    await withAdmin((c) => c.query(`DROP DATABASE IF EXISTS \`${scratchName}\``));
+  });
 
   it('applies every migration to an empty database', async () => {
     await withAdmin((c) => c.query(`DROP DATABASE IF EXISTS \`${scratchName}\``).then(() => c.query(`CREATE DATABASE \`${scratchName}\``)));
@@ -60,8 +94,8 @@ describe('database foundation', () => {
     expect(afterFirst.stills).toBeLessThanOrEqual(4);
     expect(afterFirst.fermenters).toBeGreaterThanOrEqual(6);
     expect(afterFirst.ferments).toBeGreaterThanOrEqual(12);
-    const [past] = await pool.query("SELECT COUNT(*) AS n FROM runs WHERE starts_at < NOW() - INTERVAL 7 DAY");
-    const [future] = await pool.query("SELECT COUNT(*) AS n FROM runs WHERE starts_at > NOW() + INTERVAL 7 DAY");
+    const [past] = await pool.query('SELECT COUNT(*) AS n FROM runs WHERE starts_at < NOW() - INTERVAL 7 DAY');
+    const [future] = await pool.query('SELECT COUNT(*) AS n FROM runs WHERE starts_at > NOW() + INTERVAL 7 DAY');
     expect(Number((past as any)[0].n)).toBeGreaterThan(0);
     expect(Number((future as any)[0].n)).toBeGreaterThan(0);
     await pool.end();
@@ -71,20 +105,71 @@ describe('database foundation', () => {
     const ws = await createTestWorkspace('Round trip');
     const db = getDb();
     const wsId = ws.workspaceId;
-    const [still] = await db.insert(schema.stills).values({ workspaceId: wsId, name: 'Still A', kind: 'pot', capacityLitres: 1000, heatingKw: 20, operatingHours: [{ weekday: 1, open: '06:00', close: '18:00' }], typicalMinutes: { stripping: 240 } }).$returningId();
-    const [wt] = await db.insert(schema.washTypes).values({ workspaceId: wsId, name: 'Grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 }).$returningId();
+    const [still] = await db
+      .insert(schema.stills)
+      .values({
+        workspaceId: wsId,
+        name: 'Still A',
+        kind: 'pot',
+        capacityLitres: 1000,
+        heatingKw: 20,
+        operatingHours: [{ weekday: 1, open: '06:00', close: '18:00' }],
+        typicalMinutes: { stripping: 240 },
+      })
+      .$returningId();
+    const [wt] = await db
+      .insert(schema.washTypes)
+      .values({ workspaceId: wsId, name: 'Grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 })
+      .$returningId();
     const pitchedAt = new Date('2026-11-02T09:30:00.123Z');
     const ids: number[] = [];
     for (const code of ['RT-1', 'RT-2']) {
-      const [f] = await db.insert(schema.ferments).values({ workspaceId: wsId, code, washTypeId: wt!.id, volumeLitres: 500, pitchedAt, og: 1.06 }).$returningId();
+      const [f] = await db
+        .insert(schema.ferments)
+        .values({ workspaceId: wsId, code, washTypeId: wt!.id, volumeLitres: 500, pitchedAt, og: 1.06 })
+        .$returningId();
       ids.push(f!.id);
     }
     await db.insert(schema.readings).values([
-      { workspaceId: wsId, fermentId: ids[0]!, takenAt: new Date('2026-11-03T08:00:00Z'), method: 'hydrometer', rawValue: 1.05, rawUnit: 'sg', sampleTempC: 28, sampleTempUnit: 'C', correctedSg: 1.0521, takenBy: ws.users.distiller.id },
-      { workspaceId: wsId, fermentId: ids[0]!, takenAt: new Date('2026-11-04T08:00:00Z'), method: 'refractometer', rawValue: 9.5, rawUnit: 'brix', sampleTempC: null, correctedSg: 1.012, lowConfidence: true },
+      {
+        workspaceId: wsId,
+        fermentId: ids[0]!,
+        takenAt: new Date('2026-11-03T08:00:00Z'),
+        method: 'hydrometer',
+        rawValue: 1.05,
+        rawUnit: 'sg',
+        sampleTempC: 28,
+        sampleTempUnit: 'C',
+        correctedSg: 1.0521,
+        takenBy: ws.users.distiller.id,
+      },
+      {
+        workspaceId: wsId,
+        fermentId: ids[0]!,
+        takenAt: new Date('2026-11-04T08:00:00Z'),
+        method: 'refractometer',
+        rawValue: 9.5,
+        rawUnit: 'brix',
+        sampleTempC: null,
+        correctedSg: 1.012,
+        lowConfidence: true,
+      },
     ]);
-    const [run] = await db.insert(schema.runs).values({ workspaceId: wsId, stillId: still!.id, type: 'stripping', startsAt: new Date('2026-11-10T07:00:00Z'), endsAt: new Date('2026-11-10T12:00:00Z'), chargeLitres: 900 }).$returningId();
-    await db.insert(schema.runFerments).values([{ runId: run!.id, fermentId: ids[0]!, workspaceId: wsId, litres: 500 }, { runId: run!.id, fermentId: ids[1]!, workspaceId: wsId, litres: 400 }]);
+    const [run] = await db
+      .insert(schema.runs)
+      .values({
+        workspaceId: wsId,
+        stillId: still!.id,
+        type: 'stripping',
+        startsAt: new Date('2026-11-10T07:00:00Z'),
+        endsAt: new Date('2026-11-10T12:00:00Z'),
+        chargeLitres: 900,
+      })
+      .$returningId();
+    await db.insert(schema.runFerments).values([
+      { runId: run!.id, fermentId: ids[0]!, workspaceId: wsId, litres: 500 },
+      { runId: run!.id, fermentId: ids[1]!, workspaceId: wsId, litres: 400 },
+    ]);
 
     const readings = await db.select().from(schema.readings).where(eq(schema.readings.fermentId, ids[0]!)).orderBy(schema.readings.takenAt);
     expect(readings).toHaveLength(2);
@@ -96,7 +181,12 @@ describe('database foundation', () => {
     const [f1] = await db.select().from(schema.ferments).where(eq(schema.ferments.id, ids[0]!));
     expect(f1!.pitchedAt.toISOString()).toBe('2026-11-02T09:30:00.123Z');
     const links = await db.select().from(schema.runFerments).where(eq(schema.runFerments.runId, run!.id));
-    expect(links.map((l) => [l.fermentId, l.litres]).sort()).toEqual([[ids[0], 500], [ids[1], 400]].sort());
+    expect(links.map((l) => [l.fermentId, l.litres]).sort()).toEqual(
+      [
+        [ids[0], 500],
+        [ids[1], 400],
+      ].sort(),
+    );
     const [r] = await db.select().from(schema.runs).where(eq(schema.runs.id, run!.id));
     expect(r!.version).toBe(1);
     expect(r!.sequence).toBe(0);
@@ -131,7 +221,10 @@ describe('/api/health', () => {
       execFileSync('bash', ['scripts/db.sh', 'start'], { stdio: 'ignore' });
     }
     let up = await new Client().get('/api/health');
-    for (let i = 0; i < 20 && up.status !== 200; i++) { await new Promise((r) => setTimeout(r, 250)); up = await new Client().get('/api/health'); }
+    for (let i = 0; i < 20 && up.status !== 200; i++) {
+      await new Promise((r) => setTimeout(r, 250));
+      up = await new Client().get('/api/health');
+    }
     expect(up.status).toBe(200);
   });
 });

@@ -13,8 +13,12 @@ import { createTestWorkspace } from '../helpers/api';
 const ROUNDS = 8;
 
 const managersOf = async (workspaceId: number) =>
-  (await getDb().select({ userId: t.memberships.userId }).from(t.memberships)
-    .where(and(eq(t.memberships.workspaceId, workspaceId), eq(t.memberships.role, 'manager')))).map((r) => r.userId);
+  (
+    await getDb()
+      .select({ userId: t.memberships.userId })
+      .from(t.memberships)
+      .where(and(eq(t.memberships.workspaceId, workspaceId), eq(t.memberships.role, 'manager')))
+  ).map((r) => r.userId);
 
 describe('last manager under concurrent changes', () => {
   it(`lets exactly one of two simultaneous demotions of the two managers succeed (${ROUNDS} rounds)`, async () => {
@@ -28,13 +32,13 @@ describe('last manager under concurrent changes', () => {
 
     for (let round = 0; round < ROUNDS; round++) {
       // Each manager demotes the other, at the same moment.
-      const [r1, r2] = await Promise.all([
-        first.patch(`/api/members/${b}`, { role: 'distiller' }),
-        second.patch(`/api/members/${a}`, { role: 'distiller' }),
-      ]);
+      const [r1, r2] = await Promise.all([first.patch(`/api/members/${b}`, { role: 'distiller' }), second.patch(`/api/members/${a}`, { role: 'distiller' })]);
       const statuses = [r1.status, r2.status];
       seen.push(...statuses);
-      expect(statuses.filter((s) => s === 200), JSON.stringify([r1.json, r2.json])).toHaveLength(1);
+      expect(
+        statuses.filter((s) => s === 200),
+        JSON.stringify([r1.json, r2.json]),
+      ).toHaveLength(1);
       // The other is refused: 409 when it passed the role gate before the winner committed,
       // 403 when its manager had already been demoted by then. Never a 500.
       const loser = r1.status === 200 ? r2 : r1;
@@ -56,10 +60,7 @@ describe('last manager under concurrent changes', () => {
     const first = await ws.client('manager');
     expect((await first.patch(`/api/members/${ws.users.planner.id}`, { role: 'manager' })).status).toBe(200);
     const second = await ws.client('planner');
-    const [r1, r2] = await Promise.all([
-      first.del(`/api/members/${ws.users.planner.id}`),
-      second.del(`/api/members/${ws.users.manager.id}`),
-    ]);
+    const [r1, r2] = await Promise.all([first.del(`/api/members/${ws.users.planner.id}`), second.del(`/api/members/${ws.users.manager.id}`)]);
     expect([r1.status, r2.status].filter((s) => s === 200)).toHaveLength(1);
     expect([r1.status, r2.status].filter((s) => s !== 200).every((s) => s === 401 || s === 403 || s === 409)).toBe(true);
     expect(await managersOf(ws.workspaceId)).toHaveLength(1);

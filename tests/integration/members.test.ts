@@ -9,7 +9,12 @@ import { createTestWorkspace } from '../helpers/api';
 const MAILBOX = process.env.MAILBOX_DIR ?? '.data/mailbox';
 const unique = (p: string) => `${p}-${Date.now().toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}@test.example`;
 const roleOf = async (workspaceId: number, userId: number) =>
-  (await getDb().select({ role: t.memberships.role }).from(t.memberships).where(and(eq(t.memberships.workspaceId, workspaceId), eq(t.memberships.userId, userId))))[0]?.role ?? null;
+  (
+    await getDb()
+      .select({ role: t.memberships.role })
+      .from(t.memberships)
+      .where(and(eq(t.memberships.workspaceId, workspaceId), eq(t.memberships.userId, userId)))
+  )[0]?.role ?? null;
 
 describe('members', () => {
   it('the last manager can be neither demoted nor removed (409 with a clear message)', async () => {
@@ -68,7 +73,11 @@ describe('tenant isolation', () => {
     expect(inv!.revokedAt).toBeNull();
     // B's lists show only B.
     const listB = (await mgrB.get('/api/members')).json;
-    expect(listB.members.map((m: { userId: number }) => m.userId).sort()).toEqual(Object.values(b.users).map((u) => u.id).sort());
+    expect(listB.members.map((m: { userId: number }) => m.userId).sort()).toEqual(
+      Object.values(b.users)
+        .map((u) => u.id)
+        .sort(),
+    );
     expect(listB.invitations).toEqual([]);
     expect((await mgrB.get('/api/audit')).json.rows.every((r: { userId: number | null }) => Object.values(b.users).some((u) => u.id === r.userId))).toBe(true);
   });
@@ -80,7 +89,8 @@ describe('tenant isolation', () => {
     const emailB = unique('mail-b');
     await (await a.client('manager')).post('/api/members/invitations', { email: emailA, role: 'staff' });
     await (await b.client('manager')).post('/api/members/invitations', { email: emailB, role: 'staff' });
-    for (let i = 0; i < 80 && !(readMailbox(MAILBOX).some((m) => m.to.includes(emailA)) && readMailbox(MAILBOX).some((m) => m.to.includes(emailB))); i++) await new Promise((r) => setTimeout(r, 250));
+    for (let i = 0; i < 80 && !(readMailbox(MAILBOX).some((m) => m.to.includes(emailA)) && readMailbox(MAILBOX).some((m) => m.to.includes(emailB))); i++)
+      await new Promise((r) => setTimeout(r, 250));
     const page = await (await a.client('manager')).get('/settings/mailbox', { accept: 'text/html' });
     expect(page.status).toBe(200);
     expect(page.text).toContain(emailA);
@@ -90,7 +100,15 @@ describe('tenant isolation', () => {
 });
 
 describe('workspace settings and deletion', () => {
-  const settings = (name: string) => ({ name, timeZone: 'America/Chicago', units: 'us', calibrationTempC: 15.56, stableDays: 4, stableTolerance: 0.0015, wortCorrectionFactor: 1.03 });
+  const settings = (name: string) => ({
+    name,
+    timeZone: 'America/Chicago',
+    units: 'us',
+    calibrationTempC: 15.56,
+    stableDays: 4,
+    stableTolerance: 0.0015,
+    wortCorrectionFactor: 1.03,
+  });
 
   it('a manager saves settings (audited); invalid values are refused field by field', async () => {
     const ws = await createTestWorkspace('Settings');
@@ -132,7 +150,10 @@ describe('workspace settings and deletion', () => {
     expect(await db.select().from(t.workspaces).where(eq(t.workspaces.id, ws.workspaceId))).toHaveLength(0);
     expect(await db.select().from(t.fermenters).where(eq(t.fermenters.workspaceId, ws.workspaceId))).toHaveLength(0);
     expect(await db.select().from(t.memberships).where(eq(t.memberships.workspaceId, ws.workspaceId))).toHaveLength(0);
-    const [log] = await db.select().from(t.auditLog).where(and(eq(t.auditLog.action, 'workspace.deleted'), eq(t.auditLog.entityId, String(ws.workspaceId))));
+    const [log] = await db
+      .select()
+      .from(t.auditLog)
+      .where(and(eq(t.auditLog.action, 'workspace.deleted'), eq(t.auditLog.entityId, String(ws.workspaceId))));
     expect(log).toBeTruthy();
   });
 });

@@ -11,7 +11,10 @@ import { createTestWorkspace, type Client, type TestWorkspace } from '../helpers
 import { ALL_WEEK, DAY, HOUR, londonWhen } from '../helpers/time';
 
 async function mailSince(workspaceId: number, afterId: number) {
-  return getDb().select().from(t.mailOutbox).where(and(eq(t.mailOutbox.workspaceId, workspaceId), gt(t.mailOutbox.id, afterId)));
+  return getDb()
+    .select()
+    .from(t.mailOutbox)
+    .where(and(eq(t.mailOutbox.workspaceId, workspaceId), gt(t.mailOutbox.id, afterId)));
 }
 async function lastMailId(): Promise<number> {
   const rows = await getDb().select({ id: t.mailOutbox.id }).from(t.mailOutbox);
@@ -29,9 +32,21 @@ describe('notifications through the outbox', () => {
   beforeAll(async () => {
     ws = await createTestWorkspace('Notify Distillery');
     const db = getDb();
-    const mk = async (name: string) => (await db.insert(t.stills).values({
-      workspaceId: ws.workspaceId, name, kind: 'pot', capacityLitres: 3000, heatingKw: 60, operatingHours: ALL_WEEK, typicalMinutes: {},
-    }).$returningId())[0]!.id;
+    const mk = async (name: string) =>
+      (
+        await db
+          .insert(t.stills)
+          .values({
+            workspaceId: ws.workspaceId,
+            name,
+            kind: 'pot',
+            capacityLitres: 3000,
+            heatingKw: 60,
+            operatingHours: ALL_WEEK,
+            typicalMinutes: {},
+          })
+          .$returningId()
+      )[0]!.id;
     stillA = await mk('Wash Still 1');
     stillB = await mk('Wash Still 2');
     planner = await ws.client('planner');
@@ -77,7 +92,7 @@ describe('notifications through the outbox', () => {
     for (const m of mails) expect(m.subject).toBe(`Stripping run on Wash Still 1 moved to ${londonWhen(to)} (was ${londonWhen(at(6, 7))})`);
   });
 
-  it('respects a person\'s choice to stop run-change mail', async () => {
+  it("respects a person's choice to stop run-change mail", async () => {
     const off = await distiller.request('PUT', '/api/notifications', { run_changes: false });
     expect(off.status, off.text).toBe(200);
     expect(off.json.prefs.run_changes).toBe(false);
@@ -125,17 +140,50 @@ describe('notifications through the outbox', () => {
   it('a wash that stalls tells the managers and planners once, naming the run it endangers', async () => {
     const db = getDb();
     // Common practice: a grain wash that holds at 1.022 for days is stuck, not finished (its range is 1.002–1.008).
-    const [wt] = await db.insert(t.washTypes).values({ workspaceId: ws.workspaceId, name: 'Grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 }).$returningId();
+    const [wt] = await db
+      .insert(t.washTypes)
+      .values({ workspaceId: ws.workspaceId, name: 'Grain', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 })
+      .$returningId();
     const now = Date.now();
-    const [f] = await db.insert(t.ferments).values({ workspaceId: ws.workspaceId, code: 'G-7', washTypeId: wt!.id, volumeLitres: 2000, pitchedAt: new Date(now - 10 * DAY), og: 1.065 }).$returningId();
-    await db.insert(t.readings).values([[9.5, 1.055], [8.5, 1.040], [7.5, 1.030], [6.5, 1.024]].map(([d, sg]) => ({
-      workspaceId: ws.workspaceId, fermentId: f!.id, takenAt: new Date(now - d! * DAY), method: 'hydrometer' as const, rawValue: sg!, rawUnit: 'sg' as const, sampleTempC: 20, sampleTempUnit: 'C' as const, correctedSg: sg!,
-    })));
-    const r = await planner.post('/api/runs', { stillId: stillB, type: 'stripping', startsAt: at(12, 7).toISOString(), durationMinutes: 300, ferments: [{ fermentId: f!.id, litres: 2000 }] });
+    const [f] = await db
+      .insert(t.ferments)
+      .values({ workspaceId: ws.workspaceId, code: 'G-7', washTypeId: wt!.id, volumeLitres: 2000, pitchedAt: new Date(now - 10 * DAY), og: 1.065 })
+      .$returningId();
+    await db.insert(t.readings).values(
+      [
+        [9.5, 1.055],
+        [8.5, 1.04],
+        [7.5, 1.03],
+        [6.5, 1.024],
+      ].map(([d, sg]) => ({
+        workspaceId: ws.workspaceId,
+        fermentId: f!.id,
+        takenAt: new Date(now - d! * DAY),
+        method: 'hydrometer' as const,
+        rawValue: sg!,
+        rawUnit: 'sg' as const,
+        sampleTempC: 20,
+        sampleTempUnit: 'C' as const,
+        correctedSg: sg!,
+      })),
+    );
+    const r = await planner.post('/api/runs', {
+      stillId: stillB,
+      type: 'stripping',
+      startsAt: at(12, 7).toISOString(),
+      durationMinutes: 300,
+      ferments: [{ fermentId: f!.id, litres: 2000 }],
+    });
     expect(r.status, r.text).toBe(201);
     const mark = await lastMailId();
     for (const d of [4, 3, 2, 1, 0.1]) {
-      const res = await distiller.post(`/api/ferments/${f!.id}/readings`, { value: 1.022, unit: 'sg', method: 'hydrometer', sampleTemp: 20, takenAt: new Date(now - d * DAY).toISOString() });
+      const res = await distiller.post(`/api/ferments/${f!.id}/readings`, {
+        value: 1.022,
+        unit: 'sg',
+        method: 'hydrometer',
+        sampleTemp: 20,
+        takenAt: new Date(now - d * DAY).toISOString(),
+      });
       expect(res.status, res.text).toBe(201);
     }
     const forecast = await distiller.get(`/api/ferments/${f!.id}/forecast`);
@@ -146,20 +194,47 @@ describe('notifications through the outbox', () => {
     expect(mails[0]!.textBody).toContain(`Stripping run on Wash Still 2, ${londonWhen(at(12, 7))}`);
   });
 
-  it('a run moved before its wash\'s predicted ready time tells the planners', async () => {
+  it("a run moved before its wash's predicted ready time tells the planners", async () => {
     const db = getDb();
-    const [wt] = await db.insert(t.washTypes).values({ workspaceId: ws.workspaceId, name: 'Sugar', category: 'sugar', terminalMin: 0.990, terminalMax: 1.000 }).$returningId();
+    const [wt] = await db
+      .insert(t.washTypes)
+      .values({ workspaceId: ws.workspaceId, name: 'Sugar', category: 'sugar', terminalMin: 0.99, terminalMax: 1.0 })
+      .$returningId();
     const now = Date.now();
-    const [f] = await db.insert(t.ferments).values({ workspaceId: ws.workspaceId, code: 'S-3', washTypeId: wt!.id, volumeLitres: 1500, pitchedAt: new Date(now - 2 * DAY), og: 1.080 }).$returningId();
-    await db.insert(t.readings).values([[1.8, 1.076], [1.3, 1.068], [0.8, 1.058], [0.3, 1.049]].map(([d, sg]) => ({
-      workspaceId: ws.workspaceId, fermentId: f!.id, takenAt: new Date(now - d! * DAY), method: 'hydrometer' as const, rawValue: sg!, rawUnit: 'sg' as const, sampleTempC: 20, sampleTempUnit: 'C' as const, correctedSg: sg!,
-    })));
+    const [f] = await db
+      .insert(t.ferments)
+      .values({ workspaceId: ws.workspaceId, code: 'S-3', washTypeId: wt!.id, volumeLitres: 1500, pitchedAt: new Date(now - 2 * DAY), og: 1.08 })
+      .$returningId();
+    await db.insert(t.readings).values(
+      [
+        [1.8, 1.076],
+        [1.3, 1.068],
+        [0.8, 1.058],
+        [0.3, 1.049],
+      ].map(([d, sg]) => ({
+        workspaceId: ws.workspaceId,
+        fermentId: f!.id,
+        takenAt: new Date(now - d! * DAY),
+        method: 'hydrometer' as const,
+        rawValue: sg!,
+        rawUnit: 'sg' as const,
+        sampleTempC: 20,
+        sampleTempUnit: 'C' as const,
+        correctedSg: sg!,
+      })),
+    );
     const fc = (await planner.get(`/api/ferments/${f!.id}/forecast`)).json.forecast;
     expect(['active', 'lag', 'slowing']).toContain(fc.status);
     const readyAt = new Date(fc.readyAt);
     expect(readyAt.getTime()).toBeGreaterThan(now);
     const late = new Date(Math.max(new Date(fc.readyP90 ?? fc.readyAt).getTime(), readyAt.getTime()) + 2 * DAY);
-    const booked = await planner.post('/api/runs', { stillId: stillA, type: 'stripping', startsAt: new Date(Math.ceil(late.getTime() / HOUR) * HOUR).toISOString(), durationMinutes: 300, ferments: [{ fermentId: f!.id, litres: 1500 }] });
+    const booked = await planner.post('/api/runs', {
+      stillId: stillA,
+      type: 'stripping',
+      startsAt: new Date(Math.ceil(late.getTime() / HOUR) * HOUR).toISOString(),
+      durationMinutes: 300,
+      ferments: [{ fermentId: f!.id, litres: 1500 }],
+    });
     expect(booked.status, booked.text).toBe(201);
     const mark = await lastMailId();
     const early = new Date(Math.ceil((now + 3 * HOUR) / HOUR) * HOUR);

@@ -23,14 +23,27 @@ const later = (ms: number) => new Date(FUTURE.getTime() + ms);
 function freePort(): Promise<number> {
   return new Promise((resolve) => {
     const s = createServer();
-    s.listen(0, '127.0.0.1', () => { const p = (s.address() as { port: number }).port; s.close(() => resolve(p)); });
+    s.listen(0, '127.0.0.1', () => {
+      const p = (s.address() as { port: number }).port;
+      s.close(() => resolve(p));
+    });
   });
 }
 
 async function queue(workspaceId: number, n: number, tag: string): Promise<string[]> {
   const ids: string[] = [];
   await getDb().transaction(async (tx) => {
-    for (let i = 0; i < n; i++) ids.push(await enqueue(tx, { workspaceId, kind: 'test', to: `rcpt${i}-${tag}@test.example`, subject: `Outbox ${tag} ${i}`, text: `Message ${i}`, html: `<p>Message ${i}</p>` }));
+    for (let i = 0; i < n; i++)
+      ids.push(
+        await enqueue(tx, {
+          workspaceId,
+          kind: 'test',
+          to: `rcpt${i}-${tag}@test.example`,
+          subject: `Outbox ${tag} ${i}`,
+          text: `Message ${i}`,
+          html: `<p>Message ${i}</p>`,
+        }),
+      );
   });
   // Park the rows in the future: only calls with now >= FUTURE see them due.
   await getDb().update(t.mailOutbox).set({ nextAttemptAt: FUTURE }).where(eq(t.mailOutbox.workspaceId, workspaceId));
@@ -39,7 +52,9 @@ async function queue(workspaceId: number, n: number, tag: string): Promise<strin
 
 describe('mail outbox', () => {
   let dir: string;
-  beforeAll(() => { dir = mkdtempSync(path.join(os.tmpdir(), 'plateau-outbox-')); });
+  beforeAll(() => {
+    dir = mkdtempSync(path.join(os.tmpdir(), 'plateau-outbox-'));
+  });
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
   it('backs off exponentially, capped at 10 minutes', () => {
@@ -49,10 +64,12 @@ describe('mail outbox', () => {
 
   it('an enqueue rolled back with its transaction sends nothing', async () => {
     const ws = await createTestWorkspace('Outbox rollback');
-    await expect(getDb().transaction(async (tx) => {
-      await enqueue(tx, { workspaceId: ws.workspaceId, kind: 'test', to: 'x@test.example', subject: 's', text: 't', html: '<p>t</p>' });
-      throw new Error('rolled back');
-    })).rejects.toThrow('rolled back');
+    await expect(
+      getDb().transaction(async (tx) => {
+        await enqueue(tx, { workspaceId: ws.workspaceId, kind: 'test', to: 'x@test.example', subject: 's', text: 't', html: '<p>t</p>' });
+        throw new Error('rolled back');
+      }),
+    ).rejects.toThrow('rolled back');
     expect(await getDb().select().from(t.mailOutbox).where(eq(t.mailOutbox.workspaceId, ws.workspaceId))).toHaveLength(0);
   });
 
@@ -97,11 +114,15 @@ describe('mail outbox', () => {
           deliverDue({ smtpUrl, instanceId: 'node-2', now: FUTURE, workspaceId: ws.workspaceId, batch: 7 }),
         ]);
       }
-      while ((await deliverDue({ smtpUrl, instanceId: 'node-3', now: FUTURE, workspaceId: ws.workspaceId })).claimed > 0) { /* drain */ }
+      while ((await deliverDue({ smtpUrl, instanceId: 'node-3', now: FUTURE, workspaceId: ws.workspaceId })).claimed > 0) {
+        /* drain */
+      }
     } finally {
       await smtp.close();
     }
-    const got = readMailbox(dir).filter((m) => ids.includes(m.messageId ?? '')).map((m) => m.messageId);
+    const got = readMailbox(dir)
+      .filter((m) => ids.includes(m.messageId ?? ''))
+      .map((m) => m.messageId);
     expect(got).toHaveLength(30);
     expect(new Set(got).size).toBe(30);
   });
@@ -109,7 +130,10 @@ describe('mail outbox', () => {
   it('gives up after 12 attempts and marks the message failed', async () => {
     const ws = await createTestWorkspace('Outbox fail');
     await queue(ws.workspaceId, 1, 'fail');
-    await getDb().update(t.mailOutbox).set({ attempts: MAX_ATTEMPTS - 1 }).where(eq(t.mailOutbox.workspaceId, ws.workspaceId));
+    await getDb()
+      .update(t.mailOutbox)
+      .set({ attempts: MAX_ATTEMPTS - 1 })
+      .where(eq(t.mailOutbox.workspaceId, ws.workspaceId));
     const r = await deliverDue({ smtpUrl: `smtp://127.0.0.1:${await freePort()}`, instanceId: 'test-f', now: FUTURE, workspaceId: ws.workspaceId });
     expect(r.failed).toBe(1);
     const [row] = await getDb().select().from(t.mailOutbox).where(eq(t.mailOutbox.workspaceId, ws.workspaceId));

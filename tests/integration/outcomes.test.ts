@@ -16,26 +16,58 @@ let fermentId: number;
 async function makeRun(status: 'planned' | 'running' | 'done', type: 'stripping' | 'spirit' = 'stripping'): Promise<number> {
   const db = getDb();
   const startsAt = new Date(Date.now() - 3 * 3600_000);
-  const [run] = await db.insert(t.runs).values({
-    workspaceId: ws.workspaceId, stillId, type, status, startsAt, endsAt: new Date(startsAt.getTime() + 6 * 3600_000),
-    chargeLitres: 1000, chargeAbv: 8, startedAt: status === 'planned' ? null : startsAt, createdBy: ws.users.planner.id,
-  }).$returningId();
+  const [run] = await db
+    .insert(t.runs)
+    .values({
+      workspaceId: ws.workspaceId,
+      stillId,
+      type,
+      status,
+      startsAt,
+      endsAt: new Date(startsAt.getTime() + 6 * 3600_000),
+      chargeLitres: 1000,
+      chargeAbv: 8,
+      startedAt: status === 'planned' ? null : startsAt,
+      createdBy: ws.users.planner.id,
+    })
+    .$returningId();
   if (type === 'stripping') await db.insert(t.runFerments).values({ runId: run!.id, fermentId, workspaceId: ws.workspaceId, litres: 1000 });
   return run!.id;
 }
 
-const lowWines = (over: Record<string, unknown> = {}) => ({ fraction: 'low_wines', volumeLitres: 250, alcoholmeterReading: 30, readingTempC: 20, cutNote: 'Stopped at 2 % off the spout', ...over });
+const lowWines = (over: Record<string, unknown> = {}) => ({
+  fraction: 'low_wines',
+  volumeLitres: 250,
+  alcoholmeterReading: 30,
+  readingTempC: 20,
+  cutNote: 'Stopped at 2 % off the spout',
+  ...over,
+});
 
 beforeAll(async () => {
   ws = await createTestWorkspace('Outcomes');
   const db = getDb();
-  const [still] = await db.insert(t.stills).values({
-    workspaceId: ws.workspaceId, name: 'Wash Still', kind: 'pot', capacityLitres: 1200, heatingKw: 40,
-    operatingHours: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, open: '06:00', close: '20:00' })), typicalMinutes: { stripping: 300 },
-  }).$returningId();
+  const [still] = await db
+    .insert(t.stills)
+    .values({
+      workspaceId: ws.workspaceId,
+      name: 'Wash Still',
+      kind: 'pot',
+      capacityLitres: 1200,
+      heatingKw: 40,
+      operatingHours: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, open: '06:00', close: '20:00' })),
+      typicalMinutes: { stripping: 300 },
+    })
+    .$returningId();
   stillId = still!.id;
-  const [wt] = await db.insert(t.washTypes).values({ workspaceId: ws.workspaceId, name: 'Sugar wash', category: 'sugar', terminalMin: 0.99, terminalMax: 1.0 }).$returningId();
-  const [f] = await db.insert(t.ferments).values({ workspaceId: ws.workspaceId, code: 'OC-1', washTypeId: wt!.id, volumeLitres: 1000, pitchedAt: new Date(Date.now() - 10 * 86400_000), og: 1.08 }).$returningId();
+  const [wt] = await db
+    .insert(t.washTypes)
+    .values({ workspaceId: ws.workspaceId, name: 'Sugar wash', category: 'sugar', terminalMin: 0.99, terminalMax: 1.0 })
+    .$returningId();
+  const [f] = await db
+    .insert(t.ferments)
+    .values({ workspaceId: ws.workspaceId, code: 'OC-1', washTypeId: wt!.id, volumeLitres: 1000, pitchedAt: new Date(Date.now() - 10 * 86400_000), og: 1.08 })
+    .$returningId();
   fermentId = f!.id;
   distiller = await ws.client('distiller');
 });
@@ -60,7 +92,10 @@ describe('PUT /api/runs/:id/outcomes', () => {
 
   it('corrects a warm reading to 20 °C: 40.0 at 25 °C -> 37.99 % vol (OIML R 22 check value [computed])', async () => {
     const id = await makeRun('running');
-    const r = await distiller.put(`/api/runs/${id}/outcomes`, { version: 1, fractions: [lowWines({ volumeLitres: 100, alcoholmeterReading: 40, readingTempC: 25 })] });
+    const r = await distiller.put(`/api/runs/${id}/outcomes`, {
+      version: 1,
+      fractions: [lowWines({ volumeLitres: 100, alcoholmeterReading: 40, readingTempC: 25 })],
+    });
     expect(r.status, r.text).toBe(200);
     expect(Math.abs(r.json.record.fractions[0].abv20 - 37.99)).toBeLessThanOrEqual(0.006);
     expect(Math.abs(r.json.record.fractions[0].laa - 37.99)).toBeLessThanOrEqual(0.006);
@@ -76,7 +111,10 @@ describe('PUT /api/runs/:id/outcomes', () => {
     expect(after.finishedAt).not.toBeNull();
     expect(after.version).toBe(before.version + 1);
     expect(after.sequence).toBe(before.sequence + 1);
-    const log = await getDb().select().from(t.auditLog).where(and(eq(t.auditLog.workspaceId, ws.workspaceId), eq(t.auditLog.entityId, String(id))));
+    const log = await getDb()
+      .select()
+      .from(t.auditLog)
+      .where(and(eq(t.auditLog.workspaceId, ws.workspaceId), eq(t.auditLog.entityId, String(id))));
     expect(log.map((l) => l.action).sort()).toEqual(['run.finish', 'run.record']);
   });
 
@@ -106,7 +144,11 @@ describe('PUT /api/runs/:id/outcomes', () => {
   it('an invalid record changes nothing: the earlier fractions and charge stay (one transaction)', async () => {
     const id = await makeRun('running');
     expect((await distiller.put(`/api/runs/${id}/outcomes`, { version: 1, fractions: [lowWines()] })).status).toBe(200);
-    const bad = await distiller.put(`/api/runs/${id}/outcomes`, { version: 2, chargeLitres: 900, fractions: [lowWines({ volumeLitres: 100 }), lowWines({ readingTempC: 99 })] });
+    const bad = await distiller.put(`/api/runs/${id}/outcomes`, {
+      version: 2,
+      chargeLitres: 900,
+      fractions: [lowWines({ volumeLitres: 100 }), lowWines({ readingTempC: 99 })],
+    });
     expect(bad.status).toBe(400);
     const rows = await getDb().select().from(t.runOutcomes).where(eq(t.runOutcomes.runId, id));
     expect(rows.map((o) => o.volumeLitres)).toEqual([250]);

@@ -39,11 +39,23 @@ const ids: Record<string, number> = {};
 async function ferment(code: string, washTypeId: number, pitched: string, og: number, sgs: number[], emptiedAt: Date | null = null): Promise<number> {
   const db = getDb();
   const pitchedAt = utc(pitched);
-  const [f] = await db.insert(t.ferments).values({ workspaceId: ws.workspaceId, code, washTypeId, volumeLitres: 2000, pitchedAt, og, emptiedAt, emptiedReason: emptiedAt ? 'distilled' : null }).$returningId();
-  await db.insert(t.readings).values(sgs.map((sg, i) => ({
-    workspaceId: ws.workspaceId, fermentId: f!.id, takenAt: new Date(pitchedAt.getTime() + i * DAY), method: 'hydrometer' as const,
-    rawValue: sg, rawUnit: 'sg' as const, sampleTempC: 20, sampleTempUnit: 'C' as const, correctedSg: sg,
-  })));
+  const [f] = await db
+    .insert(t.ferments)
+    .values({ workspaceId: ws.workspaceId, code, washTypeId, volumeLitres: 2000, pitchedAt, og, emptiedAt, emptiedReason: emptiedAt ? 'distilled' : null })
+    .$returningId();
+  await db.insert(t.readings).values(
+    sgs.map((sg, i) => ({
+      workspaceId: ws.workspaceId,
+      fermentId: f!.id,
+      takenAt: new Date(pitchedAt.getTime() + i * DAY),
+      method: 'hydrometer' as const,
+      rawValue: sg,
+      rawUnit: 'sg' as const,
+      sampleTempC: 20,
+      sampleTempUnit: 'C' as const,
+      correctedSg: sg,
+    })),
+  );
   return f!.id;
 }
 
@@ -51,20 +63,47 @@ beforeAll(async () => {
   ws = await createTestWorkspace('Reports fixture', { timeZone: 'Europe/London' });
   const db = getDb();
   const w = ws.workspaceId;
-  const [still] = await db.insert(t.stills).values({
-    workspaceId: w, name: 'Wash Still A', kind: 'pot', capacityLitres: 2500, heatingKw: 60, cleaningAfterRunMinutes: 60,
-    operatingHours: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, open: '08:00', close: '18:00' })), typicalMinutes: { stripping: 300 },
-  }).$returningId();
+  const [still] = await db
+    .insert(t.stills)
+    .values({
+      workspaceId: w,
+      name: 'Wash Still A',
+      kind: 'pot',
+      capacityLitres: 2500,
+      heatingKw: 60,
+      cleaningAfterRunMinutes: 60,
+      operatingHours: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, open: '08:00', close: '18:00' })),
+      typicalMinutes: { stripping: 300 },
+    })
+    .$returningId();
   ids.still = still!.id;
   await db.insert(t.stillClosures).values({ workspaceId: w, stillId: still!.id, startsOn: '2025-01-08', endsOn: '2025-01-08', reason: 'Boiler inspection' });
-  const [sugar] = await db.insert(t.washTypes).values({ workspaceId: w, name: 'Sugar wash', category: 'sugar', terminalMin: 0.99, terminalMax: 1.0 }).$returningId();
-  const [grain] = await db.insert(t.washTypes).values({ workspaceId: w, name: 'Grain wash', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 }).$returningId();
+  const [sugar] = await db
+    .insert(t.washTypes)
+    .values({ workspaceId: w, name: 'Sugar wash', category: 'sugar', terminalMin: 0.99, terminalMax: 1.0 })
+    .$returningId();
+  const [grain] = await db
+    .insert(t.washTypes)
+    .values({ workspaceId: w, name: 'Grain wash', category: 'grain', terminalMin: 1.002, terminalMax: 1.008 })
+    .$returningId();
   ids.f1 = await ferment('RF-1', sugar!.id, '2024-12-30T08:00', 1.08, [1.08, 1.06, 1.035, 1.01, 0.995, 0.995, 0.995, 0.995], utc('2025-01-06T11:00'));
   ids.f2 = await ferment('RF-2', grain!.id, '2025-01-01T14:00', 1.06, [1.06, 1.04, 1.02, 1.005, 1.005, 1.005, 1.005]);
   ids.f3 = await ferment('RF-3', grain!.id, '2025-01-02T08:00', 1.06, [1.06, 1.045, 1.03, 1.015, 1.01, 1.005, 1.005, 1.005, 1.005]);
   await db.insert(t.fermentIngredients).values({ workspaceId: w, fermentId: ids.f1, name: 'Cane sugar', quantityKg: 480 });
   const run = async (type: RunType, status: RunStatus, from: string, to: string, extra: Partial<typeof t.runs.$inferInsert> = {}) => {
-    const [r] = await db.insert(t.runs).values({ workspaceId: w, stillId: still!.id, type, status, startsAt: utc(from), endsAt: utc(to), finishedAt: status === 'done' ? utc(to) : null, ...extra }).$returningId();
+    const [r] = await db
+      .insert(t.runs)
+      .values({
+        workspaceId: w,
+        stillId: still!.id,
+        type,
+        status,
+        startsAt: utc(from),
+        endsAt: utc(to),
+        finishedAt: status === 'done' ? utc(to) : null,
+        ...extra,
+      })
+      .$returningId();
     return r!.id;
   };
   ids.r1 = await run('stripping', 'done', '2025-01-06T12:00', '2025-01-06T16:00', { chargeLitres: 2000, chargeAbv: 7.5 });
@@ -77,12 +116,30 @@ beforeAll(async () => {
     { runId: ids.r2, fermentId: ids.f2, workspaceId: w, litres: 2000 },
   ]);
   // R1's low wines: 500 L at 28 % vol read at 20 °C = 140 LAA.
-  await db.insert(t.runOutcomes).values({ workspaceId: w, runId: ids.r1, fraction: 'low_wines', volumeLitres: 500, alcoholmeterReading: 28, readingTempC: 20, abv20: 28, laa: 140 });
+  await db
+    .insert(t.runOutcomes)
+    .values({ workspaceId: w, runId: ids.r1, fraction: 'low_wines', volumeLitres: 500, alcoholmeterReading: 28, readingTempC: 20, abv20: 28, laa: 140 });
   // What the forecasts said about three days before each finish (F2 confirmed Tue 7 Jan 14:00; F3 Fri 10 Jan 08:00).
   await db.insert(t.forecastHistory).values([
     { workspaceId: w, fermentId: ids.f2, asOf: utc('2025-01-02T14:00'), status: 'active', readyAt: utc('2025-01-12T14:00'), readyP10: null, readyP90: null }, // 5 days before: not "3 days ahead"
-    { workspaceId: w, fermentId: ids.f2, asOf: utc('2025-01-04T20:00'), status: 'slowing', readyAt: utc('2025-01-08T14:00'), readyP10: utc('2025-01-08T02:00'), readyP90: utc('2025-01-09T14:00') },
-    { workspaceId: w, fermentId: ids.f3, asOf: utc('2025-01-07T08:00'), status: 'slowing', readyAt: utc('2025-01-09T20:00'), readyP10: utc('2025-01-08T08:00'), readyP90: utc('2025-01-11T08:00') },
+    {
+      workspaceId: w,
+      fermentId: ids.f2,
+      asOf: utc('2025-01-04T20:00'),
+      status: 'slowing',
+      readyAt: utc('2025-01-08T14:00'),
+      readyP10: utc('2025-01-08T02:00'),
+      readyP90: utc('2025-01-09T14:00'),
+    },
+    {
+      workspaceId: w,
+      fermentId: ids.f3,
+      asOf: utc('2025-01-07T08:00'),
+      status: 'slowing',
+      readyAt: utc('2025-01-09T20:00'),
+      readyP10: utc('2025-01-08T08:00'),
+      readyP90: utc('2025-01-11T08:00'),
+    },
   ]);
   manager = await ws.client('manager');
   const r = await manager.get('/api/reports?from=2025-01-06&to=2025-01-12');
@@ -92,8 +149,10 @@ beforeAll(async () => {
 
 describe('reports on a hand-worked week', () => {
   it('precondition: the stability rule dates the confirmed finishes as worked out above', async () => {
-    const rows = await getDb().select({ id: t.fermentForecasts.fermentId, ruleMetAt: t.fermentForecasts.ruleMetAt, status: t.fermentForecasts.status })
-      .from(t.fermentForecasts).where(eq(t.fermentForecasts.workspaceId, ws.workspaceId));
+    const rows = await getDb()
+      .select({ id: t.fermentForecasts.fermentId, ruleMetAt: t.fermentForecasts.ruleMetAt, status: t.fermentForecasts.status })
+      .from(t.fermentForecasts)
+      .where(eq(t.fermentForecasts.workspaceId, ws.workspaceId));
     const at = (id: number) => rows.find((r) => r.id === id)?.ruleMetAt?.toISOString();
     expect(at(ids.f1)).toBe('2025-01-06T08:00:00.000Z');
     expect(at(ids.f2)).toBe('2025-01-07T14:00:00.000Z');

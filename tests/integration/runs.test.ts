@@ -24,7 +24,7 @@ describe('runs API', () => {
     [planner, distiller, staff, manager] = await Promise.all([fx.client('planner'), fx.client('distiller'), fx.client('staff'), fx.client('manager')]);
   });
 
-  it('books a run with the default length: heat-up of the charge plus the still\'s typical minutes', async () => {
+  it("books a run with the default length: heat-up of the charge plus the still's typical minutes", async () => {
     // REFERENCES §7 formula, worked by hand [computed]: 2400 L × 0.9982 kg/L = 2395.7 kg; bubble point of an
     // 8 % vol wash 94.0 °C (Perry's), so ΔT = 74 K; 2395.7 × 4.18 × 74 = 741 030 kJ over 60 kW × η 0.85 = 51 kW
     // -> 14 530 s = 242 min heat-up, plus the still's 240 typical minutes for a stripping run.
@@ -68,7 +68,10 @@ describe('runs API', () => {
     const noted = await planner.patch(`/api/runs/${run.id}`, { version: run.version + 1, notes: 'Check the condenser first.' });
     expect(noted.json.run.version).toBe(run.version + 2);
     expect(noted.json.run.sequence).toBe(run.sequence + 1);
-    const audits = await getDb().select().from(t.auditLog).where(and(eq(t.auditLog.workspaceId, fx.workspaceId), eq(t.auditLog.entityId, String(run.id))));
+    const audits = await getDb()
+      .select()
+      .from(t.auditLog)
+      .where(and(eq(t.auditLog.workspaceId, fx.workspaceId), eq(t.auditLog.entityId, String(run.id))));
     expect(audits.map((a) => a.action)).toEqual(expect.arrayContaining(['run.create', 'run.move', 'run.update']));
   });
 
@@ -80,11 +83,16 @@ describe('runs API', () => {
       const still = [fx.stills.ws1, fx.stills.ws2, fx.stills.small][i % 3]!;
       runs.push(await book(planner, { stillId: still, type: 'maintenance', startsAt: iso(at(11 + i, 0)), endsAt: iso(at(11 + i, 4)) }));
     }
-    const answers = await Promise.all(runs.map((r) => planner.patch(`/api/runs/${r.id}`, { version: r.version, stillId: fx.stills.ws2, startsAt: iso(target.start), endsAt: iso(target.end) })));
+    const answers = await Promise.all(
+      runs.map((r) => planner.patch(`/api/runs/${r.id}`, { version: r.version, stillId: fx.stills.ws2, startsAt: iso(target.start), endsAt: iso(target.end) })),
+    );
     const statuses = answers.map((a) => a.status);
     expect(statuses.filter((s) => s === 200)).toHaveLength(1);
     expect(statuses.filter((s) => s === 409)).toHaveLength(49);
-    const live = await getDb().select().from(t.runs).where(and(eq(t.runs.workspaceId, fx.workspaceId), eq(t.runs.stillId, fx.stills.ws2), ne(t.runs.status, 'cancelled')));
+    const live = await getDb()
+      .select()
+      .from(t.runs)
+      .where(and(eq(t.runs.workspaceId, fx.workspaceId), eq(t.runs.stillId, fx.stills.ws2), ne(t.runs.status, 'cancelled')));
     for (const a of live) {
       for (const b of live) {
         if (a.id >= b.id) continue;
@@ -120,7 +128,10 @@ describe('runs API', () => {
     const cancelled = await planner.post(`/api/runs/${other.id}/cancel`, { version: assigned.json.run.version });
     expect(cancelled.status).toBe(200);
     expect(cancelled.json.run.status).toBe('cancelled');
-    const audits = await getDb().select().from(t.auditLog).where(and(eq(t.auditLog.workspaceId, fx.workspaceId), eq(t.auditLog.entityId, String(other.id))));
+    const audits = await getDb()
+      .select()
+      .from(t.auditLog)
+      .where(and(eq(t.auditLog.workspaceId, fx.workspaceId), eq(t.auditLog.entityId, String(other.id))));
     expect(audits.map((a) => a.action)).toContain('run.cancel');
   });
 
@@ -133,9 +144,17 @@ describe('runs API', () => {
     expect((await outsider.post(`/api/runs/${run.id}/cancel`, { version: run.version })).status).toBe(404);
     expect((await outsider.get(`/api/board/suggestions?runId=${run.id}`)).status).toBe(404);
     // Booking on another distillery's still, or with its ferment, is refused too.
-    expect((await outsider.post('/api/runs', { stillId: fx.stills.ws2, type: 'stripping', startsAt: iso(at(31, 6)), endsAt: iso(at(31, 8)) })).status).toBe(404);
+    expect((await outsider.post('/api/runs', { stillId: fx.stills.ws2, type: 'stripping', startsAt: iso(at(31, 6)), endsAt: iso(at(31, 8)) })).status).toBe(
+      404,
+    );
     const theirFerment = await addFerment(fx, { code: 'XW-1', fermenter: 2, pitchedDaysAgo: 1, readings: false });
-    const r = await outsider.post('/api/runs', { stillId: other.stills.ws2, type: 'stripping', startsAt: iso(at(31, 6)), endsAt: iso(at(31, 8)), ferments: [{ fermentId: theirFerment, litres: 100 }] });
+    const r = await outsider.post('/api/runs', {
+      stillId: other.stills.ws2,
+      type: 'stripping',
+      startsAt: iso(at(31, 6)),
+      endsAt: iso(at(31, 8)),
+      ferments: [{ fermentId: theirFerment, litres: 100 }],
+    });
     expect(r.status).toBe(400);
     const [row] = await getDb().select().from(t.runs).where(eq(t.runs.id, run.id));
     expect(row!.version).toBe(run.version);
@@ -145,7 +164,13 @@ describe('runs API', () => {
     expect((await planner.post('/api/runs', { stillId: fx.stills.ws2, type: 'stripping', startsAt: iso(at(40, 6)), endsAt: iso(at(40, 5)) })).status).toBe(400);
     expect((await planner.post('/api/runs', { stillId: fx.stills.ws2, type: 'brewing', startsAt: iso(at(40, 6)) })).status).toBe(400);
     const clean = await book(planner, { stillId: fx.stills.ws2, type: 'cleaning', startsAt: iso(at(41, 6)), endsAt: iso(at(41, 7)) });
-    const r = await planner.post('/api/runs', { stillId: fx.stills.ws2, type: 'spirit', startsAt: iso(at(42, 6)), endsAt: iso(at(42, 12)), feeds: [{ runId: clean.id, litres: 300 }] });
+    const r = await planner.post('/api/runs', {
+      stillId: fx.stills.ws2,
+      type: 'spirit',
+      startsAt: iso(at(42, 6)),
+      endsAt: iso(at(42, 12)),
+      feeds: [{ runId: clean.id, litres: 300 }],
+    });
     expect(r.status).toBe(400);
     expect(r.json.error.fields.feeds).toBeDefined();
   });

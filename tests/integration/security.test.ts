@@ -41,7 +41,7 @@ beforeAll(clearThrottle);
 afterAll(clearThrottle);
 
 describe('1. the mailbox page leaks no account-opening link', () => {
-  it('a manager who invites another distillery\'s owner and asks for their reset never sees the link', async () => {
+  it("a manager who invites another distillery's owner and asks for their reset never sees the link", async () => {
     const attacker = await createTestWorkspace('Mailbox attacker');
     const victim = await createTestWorkspace('Mailbox victim');
     const mgr = await attacker.client('manager');
@@ -78,7 +78,9 @@ describe('2. defaults fail closed', () => {
     await loadDemo({ quiet: true, tokenFile: null });
     prod = await spawnApp({ PLATEAU_MODE: undefined });
   }, 60_000);
-  afterAll(async () => { await prod?.stop(); });
+  afterAll(async () => {
+    await prod?.stop();
+  });
 
   it('with PLATEAU_MODE unset the app is production: no demo sign-ins printed, no mailbox page', async () => {
     const page = await new Client(prod.url).get('/sign-in', { accept: 'text/html' });
@@ -95,7 +97,8 @@ describe('2. defaults fail closed', () => {
     expect(demo.status).toBe(400);
     const [mara] = await getDb().select().from(t.users).where(eq(t.users.email, 'mara@quillanridge.example'));
     const s = await createSession(mara!.id, null, 'test');
-    const c = new Client(prod.url); c.cookie = `plateau_session=${s.token}`;
+    const c = new Client(prod.url);
+    c.cookie = `plateau_session=${s.token}`;
     expect((await c.get('/api/account')).status).toBe(401);
     expect(prod.log()).toMatch(/SECURITY: this production database holds the demo distillery/);
     // The same database in test mode (the shared test server) still lets the demo in.
@@ -109,7 +112,15 @@ describe('2. defaults fail closed', () => {
     const out = execFileSync(process.execPath, ['--import', 'tsx', 'seed/load.ts'], { env, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
     expect(out).toBe('');
     let err = '';
-    try { execFileSync(process.execPath, ['--import', 'tsx', 'seed/load.ts'], { env: { ...env, PLATEAU_MODE: 'test' }, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] }); } catch (e) { err = String((e as { stderr?: string }).stderr); }
+    try {
+      execFileSync(process.execPath, ['--import', 'tsx', 'seed/load.ts'], {
+        env: { ...env, PLATEAU_MODE: 'test' },
+        encoding: 'utf8',
+        stdio: ['ignore', 'pipe', 'pipe'],
+      });
+    } catch (e) {
+      err = String((e as { stderr?: string }).stderr);
+    }
     expect(err).toContain('Not loading the demo distillery in test mode');
   });
 });
@@ -118,7 +129,12 @@ describe('3. sign-up cannot hand an account to a stranger', () => {
   it('the password is chosen after the address is proven; a bare confirmation creates nothing', async () => {
     const email = unique('owner');
     // A stranger signs up with someone else's address and tries to set the password.
-    const withPassword = await new Client().post('/api/auth/sign-up', { workspaceName: 'Hijack Still', name: 'Stranger', email, password: 'stranger knows this' });
+    const withPassword = await new Client().post('/api/auth/sign-up', {
+      workspaceName: 'Hijack Still',
+      name: 'Stranger',
+      email,
+      password: 'stranger knows this',
+    });
     expect(withPassword.status).toBe(400);
     expect(withPassword.json.error.fields).toHaveProperty('password');
     expect((await new Client().post('/api/auth/sign-up', { workspaceName: 'Hijack Still', name: 'Stranger', email })).status).toBe(202);
@@ -140,16 +156,30 @@ describe('3. sign-up cannot hand an account to a stranger', () => {
 
 describe('4. no open redirect after sign-in', () => {
   let email: string;
-  beforeAll(async () => { email = (await createTestWorkspace('Redirect')).users.staff.email; });
-  const formSignIn = (next: string) => fetch(`${BASE()}/api/auth/sign-in`, {
-    method: 'POST', redirect: 'manual',
-    headers: { origin: BASE(), 'content-type': 'application/x-www-form-urlencoded' },
-    body: new URLSearchParams({ email, password: TEST_PASSWORD, next }).toString(),
+  beforeAll(async () => {
+    email = (await createTestWorkspace('Redirect')).users.staff.email;
   });
+  const formSignIn = (next: string) =>
+    fetch(`${BASE()}/api/auth/sign-in`, {
+      method: 'POST',
+      redirect: 'manual',
+      headers: { origin: BASE(), 'content-type': 'application/x-www-form-urlencoded' },
+      body: new URLSearchParams({ email, password: TEST_PASSWORD, next }).toString(),
+    });
 
   it.each([
-    ['/\\evil.example'], ['/\tevil.example'], ['/%5Cevil.example'], ['/%5cevil.example'], ['//evil.example'], ['/\\/evil.example'],
-    ['https://evil.example/'], ['http:evil.example'], ['/%09/evil.example'], ['/api/account'], ['javascript:alert(1)'], ['/\n/evil.example'],
+    ['/\\evil.example'],
+    ['/\tevil.example'],
+    ['/%5Cevil.example'],
+    ['/%5cevil.example'],
+    ['//evil.example'],
+    ['/\\/evil.example'],
+    ['https://evil.example/'],
+    ['http:evil.example'],
+    ['/%09/evil.example'],
+    ['/api/account'],
+    ['javascript:alert(1)'],
+    ['/\n/evil.example'],
   ])('next=%j is sent to the board', async (next) => {
     const r = await formSignIn(next);
     expect(r.status).toBe(303);
@@ -178,7 +208,9 @@ describe('5. the client address cannot be forged, and guesses are counted before
   it('30 parallel guesses at one account cannot all slip under the limit', async () => {
     await clearThrottle();
     const ws = await createTestWorkspace('Parallel guesses');
-    const results = await Promise.all(Array.from({ length: 30 }, (_, i) => new Client().post('/api/auth/sign-in', { email: ws.users.staff.email, password: `wrong ${i}` })));
+    const results = await Promise.all(
+      Array.from({ length: 30 }, (_, i) => new Client().post('/api/auth/sign-in', { email: ws.users.staff.email, password: `wrong ${i}` })),
+    );
     const checked = results.filter((r) => r.status === 400).length;
     expect(results.filter((r) => r.status === 429).length).toBeGreaterThan(0);
     expect(checked).toBeLessThanOrEqual(10);
@@ -201,7 +233,8 @@ describe('5. the client address cannot be forged, and guesses are counted before
   it('sign-up is throttled per address', async () => {
     await clearThrottle();
     const statuses: number[] = [];
-    for (let i = 0; i < 25; i++) statuses.push((await new Client().post('/api/auth/sign-up', { workspaceName: 'Flood Still', name: 'Flood', email: unique(`signup${i}`) })).status);
+    for (let i = 0; i < 25; i++)
+      statuses.push((await new Client().post('/api/auth/sign-up', { workspaceName: 'Flood Still', name: 'Flood', email: unique(`signup${i}`) })).status);
     expect(statuses.slice(0, 3)).toEqual([202, 202, 202]);
     expect(statuses).toContain(429);
     await clearThrottle();
@@ -213,18 +246,32 @@ function streamBody(path: string, contentType: string, total: number): Promise<{
   const started = Date.now();
   return new Promise((resolve, reject) => {
     const u = new URL(BASE() + path);
-    const req = httpRequest({ host: u.hostname, port: u.port, path: u.pathname, method: 'POST', headers: { origin: BASE(), 'content-type': contentType, 'transfer-encoding': 'chunked' } }, (res) => {
-      res.resume();
-      resolve({ status: res.statusCode ?? 0, ms: Date.now() - started });
-      req.destroy();
+    const req = httpRequest(
+      {
+        host: u.hostname,
+        port: u.port,
+        path: u.pathname,
+        method: 'POST',
+        headers: { origin: BASE(), 'content-type': contentType, 'transfer-encoding': 'chunked' },
+      },
+      (res) => {
+        res.resume();
+        resolve({ status: res.statusCode ?? 0, ms: Date.now() - started });
+        req.destroy();
+      },
+    );
+    req.on('error', (err) => {
+      if (!req.destroyed) reject(err);
     });
-    req.on('error', (err) => { if (!req.destroyed) reject(err); });
     const chunk = Buffer.alloc(64 * 1024, 'a');
     let sent = 0;
     const pump = () => {
       while (sent < total) {
         sent += chunk.length;
-        if (!req.write(chunk)) { req.once('drain', pump); return; }
+        if (!req.write(chunk)) {
+          req.once('drain', pump);
+          return;
+        }
       }
       req.end();
     };
@@ -263,14 +310,27 @@ describe('7. sessions and cookies', () => {
     const token = c.cookie.replace('plateau_session=', '');
     expect(token).toMatch(/^[A-Za-z0-9_-]{43}$/);
     expect(await getDb().select().from(t.sessions).where(eq(t.sessions.id, token))).toHaveLength(0);
-    expect(await getDb().select().from(t.sessions).where(eq(t.sessions.id, hashToken(token)))).toHaveLength(1);
+    expect(
+      await getDb()
+        .select()
+        .from(t.sessions)
+        .where(eq(t.sessions.id, hashToken(token))),
+    ).toHaveLength(1);
     // A database read does not hand out a live session: the stored id is not a usable cookie.
-    const stolen = new Client(); stolen.cookie = `plateau_session=${hashToken(token)}`;
+    const stolen = new Client();
+    stolen.cookie = `plateau_session=${hashToken(token)}`;
     expect((await stolen.get('/api/account')).status).toBe(401);
   });
 
   it('every response carries the security headers, redirects and errors too', async () => {
-    for (const [path, status] of [['/', 303], ['/reports', 303], ['/api/account', 401], ['/api/no-such-route', 404], ['/sign-in', 200], ['/404', 404]] as const) {
+    for (const [path, status] of [
+      ['/', 303],
+      ['/reports', 303],
+      ['/api/account', 401],
+      ['/api/no-such-route', 404],
+      ['/sign-in', 200],
+      ['/404', 404],
+    ] as const) {
       const r = await fetch(BASE() + path, { redirect: 'manual' });
       expect(r.status, path).toBe(status);
       expect(r.headers.get('x-content-type-options'), path).toBe('nosniff');
@@ -288,11 +348,17 @@ describe('7. sessions and cookies', () => {
       origin = `https://127.0.0.1:${port}`;
       app = await spawnApp({ PUBLIC_URL: origin, PLATEAU_MODE: 'test' }, { port });
     }, 60_000);
-    afterAll(async () => { await app?.stop(); });
+    afterAll(async () => {
+      await app?.stop();
+    });
 
     it('sets a Secure __Host- cookie and HSTS, decided from PUBLIC_URL, never from X-Forwarded-Proto', async () => {
       const ws = await createTestWorkspace('Https cookie');
-      const r = await fetch(`${app.url}/api/auth/sign-in`, { method: 'POST', headers: { origin, 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify({ email: ws.users.staff.email, password: TEST_PASSWORD }) });
+      const r = await fetch(`${app.url}/api/auth/sign-in`, {
+        method: 'POST',
+        headers: { origin, 'content-type': 'application/json', accept: 'application/json' },
+        body: JSON.stringify({ email: ws.users.staff.email, password: TEST_PASSWORD }),
+      });
       expect(r.status).toBe(200);
       const cookie = r.headers.getSetCookie().find((c) => c.startsWith('__Host-plateau_session='));
       expect(cookie).toBeTruthy();

@@ -11,17 +11,31 @@ describe('workspace snapshot cache', () => {
   let stillId: number;
   beforeAll(async () => {
     ws = await createTestWorkspace('Snapshot Cache Distillery');
-    const [s] = await getDb().insert(t.stills).values({
-      workspaceId: ws.workspaceId, name: 'Cache Still', kind: 'pot', capacityLitres: 1000, heatingKw: 30,
-      operatingHours: [], cleaningAfterRunMinutes: 0, typicalMinutes: {}, position: 0,
-    }).$returningId();
+    const [s] = await getDb()
+      .insert(t.stills)
+      .values({
+        workspaceId: ws.workspaceId,
+        name: 'Cache Still',
+        kind: 'pot',
+        capacityLitres: 1000,
+        heatingKw: 30,
+        operatingHours: [],
+        cleaningAfterRunMinutes: 0,
+        typicalMinutes: {},
+        position: 0,
+      })
+      .$returningId();
     stillId = s!.id;
   });
 
   it('builds once for many concurrent requests of the same missing value', async () => {
     const cache = new SnapshotCache<number>(60_000);
     let builds = 0;
-    const build = async () => { builds++; await new Promise((r) => setTimeout(r, 50)); return 42; };
+    const build = async () => {
+      builds++;
+      await new Promise((r) => setTimeout(r, 50));
+      return 42;
+    };
     const now = new Date();
     const answers = await Promise.all(Array.from({ length: 20 }, () => cache.get(ws.workspaceId, 'k', now, build)));
     expect(answers).toEqual(Array(20).fill(42));
@@ -31,7 +45,7 @@ describe('workspace snapshot cache', () => {
     expect(builds).toBe(1);
   });
 
-  it('rebuilds after a change that this process announces, and after a fresh read sees another writer\'s change', async () => {
+  it("rebuilds after a change that this process announces, and after a fresh read sees another writer's change", async () => {
     const cache = new SnapshotCache<string>(60_000);
     const build = async () => {
       const [row] = await getDb().select({ name: t.stills.name }).from(t.stills).where(eq(t.stills.id, stillId));
@@ -53,7 +67,10 @@ describe('workspace snapshot cache', () => {
     forgetFingerprints();
     const t0 = Date.now();
     const first = await currentFingerprint(ws.workspaceId, t0);
-    await getDb().update(t.stills).set({ name: `Cache Still ${t0}` }).where(eq(t.stills.id, stillId));
+    await getDb()
+      .update(t.stills)
+      .set({ name: `Cache Still ${t0}` })
+      .where(eq(t.stills.id, stillId));
     // Within the TTL the remembered value stands; after it, the database is asked again.
     expect(await currentFingerprint(ws.workspaceId, t0 + 1)).toBe(first);
     const later = await currentFingerprint(ws.workspaceId, t0 + 60_000);

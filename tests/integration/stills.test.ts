@@ -63,6 +63,8 @@ describe('stills API', () => {
     const outsider = await other.client('manager');
     expect((await outsider.del(`/api/stills/closures/${c2.json.closure.id}`)).status).toBe(404);
     expect((await outsider.patch(`/api/stills/${fx.stills.ws1}`, { heatingKw: 1 })).status).toBe(404);
-    expect((await outsider.post('/api/stills/closures', { stillId: fx.stills.ws1, startsOn: '2031-01-01', endsOn: '2031-01-01', reason: 'x' })).status).toBe(404);
+    expect((await outsider.post('/api/stills/closures', { stillId: fx.stills.ws1, startsOn: '2031-01-01', endsOn: '2031-01-01', reason: 'x' })).status).toBe(
+      404,
+    );
   });
 });

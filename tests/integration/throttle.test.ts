@@ -5,7 +5,14 @@ import { getDb } from '../../src/db/client';
 import { signInThrottle } from '../../src/db/schema';
 import { HttpError } from '../../src/server/http';
 import {
-  takeAttempt, forgive, refund, pruneThrottle, storedThrottleKey, THROTTLE_RULES, LONGEST_THROTTLE_WINDOW_MS, type ThrottleBucket,
+  takeAttempt,
+  forgive,
+  refund,
+  pruneThrottle,
+  storedThrottleKey,
+  THROTTLE_RULES,
+  LONGEST_THROTTLE_WINDOW_MS,
+  type ThrottleBucket,
 } from '../../src/server/throttle';
 
 // The attempt counter on the real MariaDB: one atomic statement per key, so parallel callers
@@ -22,7 +29,10 @@ async function settle(bucket: ThrottleBucket, keys: string[], times: number, now
 }
 
 async function row(bucket: ThrottleBucket, key: string) {
-  const [r] = await getDb().select().from(signInThrottle).where(eq(signInThrottle.key, storedThrottleKey(bucket, key)));
+  const [r] = await getDb()
+    .select()
+    .from(signInThrottle)
+    .where(eq(signInThrottle.key, storedThrottleKey(bucket, key)));
   return r;
 }
 
@@ -89,7 +99,10 @@ describe('takeAttempt', () => {
     const t0 = new Date(Date.now() - 3 * rule.windowMs);
     for (let i = 0; i < rule.free + 1; i++) await takeAttempt('sign_in', [key], { now: t0 }).catch(() => undefined);
     const blockedUntil = new Date(t0.getTime() + rule.windowMs + 60_000);
-    await getDb().update(signInThrottle).set({ blockedUntil }).where(eq(signInThrottle.key, storedThrottleKey('sign_in', key)));
+    await getDb()
+      .update(signInThrottle)
+      .set({ blockedUntil })
+      .where(eq(signInThrottle.key, storedThrottleKey('sign_in', key)));
 
     const justAfterWindow = new Date(t0.getTime() + rule.windowMs + 1);
     await expect(takeAttempt('sign_in', [key], { now: justAfterWindow })).rejects.toMatchObject({ status: 429, extra: { retryAfter: 60 } });
@@ -127,8 +140,15 @@ describe('refund', () => {
     const { free } = THROTTLE_RULES.sign_in.default;
     let refused = 0;
     for (let i = 0; i < free + 1; i++) {
-      await takeAttempt('sign_in', [address]).catch(() => { refused++; }); // a wrong guess
-      await takeAttempt('sign_in', [address]).then(() => refund('sign_in', [address]), () => { refused++; }); // a success
+      await takeAttempt('sign_in', [address]).catch(() => {
+        refused++;
+      }); // a wrong guess
+      await takeAttempt('sign_in', [address]).then(
+        () => refund('sign_in', [address]),
+        () => {
+          refused++;
+        },
+      ); // a success
     }
     expect(refused).toBeGreaterThan(0);
     await expect(takeAttempt('sign_in', [address])).rejects.toMatchObject({ status: 429 });
@@ -146,14 +166,23 @@ describe('pruneThrottle', () => {
     await takeAttempt('sign_in', [live], { now });
     await settle('sign_in', [oldButBlocked], 30, old);
     // A block that outlives its window by far (as a long block would) must survive pruning.
-    await getDb().update(signInThrottle).set({ blockedUntil: new Date(now.getTime() + 60_000) })
+    await getDb()
+      .update(signInThrottle)
+      .set({ blockedUntil: new Date(now.getTime() + 60_000) })
       .where(eq(signInThrottle.key, storedThrottleKey('sign_in', oldButBlocked)));
 
     const removed = await pruneThrottle(now);
     expect(removed).toBeGreaterThanOrEqual(1);
-    const left = await getDb().select({ key: signInThrottle.key }).from(signInThrottle).where(inArray(signInThrottle.key, [
-      storedThrottleKey('forgot_password', expired), storedThrottleKey('sign_in', live), storedThrottleKey('sign_in', oldButBlocked),
-    ]));
+    const left = await getDb()
+      .select({ key: signInThrottle.key })
+      .from(signInThrottle)
+      .where(
+        inArray(signInThrottle.key, [
+          storedThrottleKey('forgot_password', expired),
+          storedThrottleKey('sign_in', live),
+          storedThrottleKey('sign_in', oldButBlocked),
+        ]),
+      );
     expect(left.map((r) => r.key).sort()).toEqual([storedThrottleKey('sign_in', live), storedThrottleKey('sign_in', oldButBlocked)].sort());
   });
 });

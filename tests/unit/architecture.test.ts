@@ -22,7 +22,12 @@ function walk(dir: string): string[] {
 export function importsOf(source: string): string[] {
   const code = source.replace(/\/\*[\s\S]*?\*\//g, '').replace(/^\s*\/\/.*$/gm, '');
   const specs = new Set<string>();
-  for (const re of [/\bimport\s+(?:type\s+)?[^'";]*?\s+from\s+['"]([^'"]+)['"]/g, /\bimport\s+['"]([^'"]+)['"]/g, /\bexport\s+(?:type\s+)?[^'";]*?\s+from\s+['"]([^'"]+)['"]/g, /\bimport\(\s*['"]([^'"]+)['"]\s*\)/g]) {
+  for (const re of [
+    /\bimport\s+(?:type\s+)?[^'";]*?\s+from\s+['"]([^'"]+)['"]/g,
+    /\bimport\s+['"]([^'"]+)['"]/g,
+    /\bexport\s+(?:type\s+)?[^'";]*?\s+from\s+['"]([^'"]+)['"]/g,
+    /\bimport\(\s*['"]([^'"]+)['"]\s*\)/g,
+  ]) {
     for (const m of code.matchAll(re)) specs.add(m[1]!);
   }
   return [...specs];
@@ -45,7 +50,10 @@ const rel = (f: string) => path.relative(process.cwd(), f);
 const graph = new Map<string, string[]>();
 for (const file of files) {
   const specs = importsOf(readFileSync(file, 'utf8'));
-  graph.set(file, specs.map((s) => resolveImport(file, s) ?? `pkg:${s}`));
+  graph.set(
+    file,
+    specs.map((s) => resolveImport(file, s) ?? `pkg:${s}`),
+  );
 }
 
 /** Every strongly connected group of more than one file (or a file importing itself): the import cycles. */
@@ -57,16 +65,26 @@ export function cyclesIn(g: Map<string, string[]>): string[][] {
   const on = new Set<string>();
   const out: string[][] = [];
   const visit = (v: string) => {
-    idx.set(v, index); low.set(v, index); index++; stack.push(v); on.add(v);
+    idx.set(v, index);
+    low.set(v, index);
+    index++;
+    stack.push(v);
+    on.add(v);
     for (const w of g.get(v) ?? []) {
       if (!g.has(w)) continue;
-      if (!idx.has(w)) { visit(w); low.set(v, Math.min(low.get(v)!, low.get(w)!)); }
-      else if (on.has(w)) low.set(v, Math.min(low.get(v)!, idx.get(w)!));
+      if (!idx.has(w)) {
+        visit(w);
+        low.set(v, Math.min(low.get(v)!, low.get(w)!));
+      } else if (on.has(w)) low.set(v, Math.min(low.get(v)!, idx.get(w)!));
     }
     if (low.get(v) === idx.get(v)) {
       const group: string[] = [];
       let w: string;
-      do { w = stack.pop()!; on.delete(w); group.push(w); } while (w !== v);
+      do {
+        w = stack.pop()!;
+        on.delete(w);
+        group.push(w);
+      } while (w !== v);
       if (group.length > 1 || (g.get(v) ?? []).includes(v)) out.push(group.sort());
     }
   };
@@ -87,7 +105,11 @@ describe('architecture', () => {
     for (const [file, deps] of graph) {
       if (!file.startsWith(path.join(ROOT, 'lib') + path.sep)) continue;
       for (const d of deps) {
-        const inner = d.startsWith(path.join(ROOT, 'server') + path.sep) || d.startsWith(path.join(ROOT, 'db') + path.sep) || d.startsWith(path.join(ROOT, 'pages') + path.sep) || d.startsWith(path.join(ROOT, 'components') + path.sep);
+        const inner =
+          d.startsWith(path.join(ROOT, 'server') + path.sep) ||
+          d.startsWith(path.join(ROOT, 'db') + path.sep) ||
+          d.startsWith(path.join(ROOT, 'pages') + path.sep) ||
+          d.startsWith(path.join(ROOT, 'components') + path.sep);
         if (inner || FORBIDDEN_IN_LIB.some((re) => re.test(d))) bad.push(`${rel(file)} -> ${d.startsWith('pkg:') ? d.slice(4) : rel(d)}`);
       }
     }
@@ -99,7 +121,12 @@ describe('architecture', () => {
     for (const [file, deps] of graph) {
       if (!file.startsWith(path.join(ROOT, 'components') + path.sep) || !/\.tsx?$/.test(file)) continue;
       for (const d of deps) {
-        if (d.startsWith(path.join(ROOT, 'server') + path.sep) || d.startsWith(path.join(ROOT, 'db') + path.sep) || /^pkg:(drizzle-orm|mysql2|nodemailer|lucia)/.test(d)) bad.push(`${rel(file)} -> ${d.startsWith('pkg:') ? d.slice(4) : rel(d)}`);
+        if (
+          d.startsWith(path.join(ROOT, 'server') + path.sep) ||
+          d.startsWith(path.join(ROOT, 'db') + path.sep) ||
+          /^pkg:(drizzle-orm|mysql2|nodemailer|lucia)/.test(d)
+        )
+          bad.push(`${rel(file)} -> ${d.startsWith('pkg:') ? d.slice(4) : rel(d)}`);
       }
     }
     expect(bad, `islands run in the browser:\n  ${bad.join('\n  ')}`).toEqual([]);
@@ -111,9 +138,33 @@ describe('architecture', () => {
   });
 
   it.each([
-    ['a two-file cycle', new Map([['a', ['b']], ['b', ['a']]]), 1],
-    ['a three-file cycle beside a tree', new Map([['a', ['b']], ['b', ['c']], ['c', ['a']], ['d', ['a']]]), 1],
-    ['a tree', new Map([['a', ['b', 'c']], ['b', ['c']], ['c', []]]), 0],
+    [
+      'a two-file cycle',
+      new Map([
+        ['a', ['b']],
+        ['b', ['a']],
+      ]),
+      1,
+    ],
+    [
+      'a three-file cycle beside a tree',
+      new Map([
+        ['a', ['b']],
+        ['b', ['c']],
+        ['c', ['a']],
+        ['d', ['a']],
+      ]),
+      1,
+    ],
+    [
+      'a tree',
+      new Map([
+        ['a', ['b', 'c']],
+        ['b', ['c']],
+        ['c', []],
+      ]),
+      0,
+    ],
     ['a file importing itself', new Map([['a', ['a']]]), 1],
   ])('the cycle finder sees %s', (_name, g, n) => {
     expect(cyclesIn(g as Map<string, string[]>)).toHaveLength(n);

@@ -1,9 +1,34 @@
 import { describe, it, expect } from 'vitest';
 import {
-  axisDayLabel, axisTicks, boardKeyboardCoordinates, boardWindow, canvasWidth, closedSpans, dayWidth, dropGhostBox, fermentBooking, fermentDraftRun,
-  firstBookableHour, firstHit, initialScrollLeft, initials, pageName, rangeLabel, readyWindowSpans, runBlockLayout, runsByStill, slotWidth,
-  vesselBarLayout, HEADER_HEIGHT, LABEL_WIDTH, ROW_HEIGHT, ZOOMS,
-  type BoardFerment, type BoardRun, type BoardStill, type VesselBar,
+  axisDayLabel,
+  axisTicks,
+  boardKeyboardCoordinates,
+  boardWindow,
+  canvasWidth,
+  closedSpans,
+  dayWidth,
+  dropGhostBox,
+  fermentBooking,
+  fermentDraftRun,
+  firstBookableHour,
+  firstHit,
+  initialScrollLeft,
+  initials,
+  pageName,
+  rangeLabel,
+  readyWindowSpans,
+  runBlockLayout,
+  runsByStill,
+  slotWidth,
+  vesselBarLayout,
+  HEADER_HEIGHT,
+  LABEL_WIDTH,
+  ROW_HEIGHT,
+  ZOOMS,
+  type BoardFerment,
+  type BoardRun,
+  type BoardStill,
+  type VesselBar,
 } from '../../src/lib/board';
 
 const H = 3_600_000;
@@ -13,17 +38,53 @@ const week = boardWindow('2026-12-03', 'week', TZ); // Mon 30 Nov 00:00 UTC to M
 const px = ZOOMS.week.pxPerHour; // 12 px an hour
 
 const still = (id: number, over: Partial<BoardStill> = {}): BoardStill => ({
-  id, name: `Still ${id}`, kind: 'pot', capacityLitres: 2500, heatingKw: 60, closures: [], cleaningAfterRunMinutes: 0, position: id,
+  id,
+  name: `Still ${id}`,
+  kind: 'pot',
+  capacityLitres: 2500,
+  heatingKw: 60,
+  closures: [],
+  cleaningAfterRunMinutes: 0,
+  position: id,
   operatingHours: [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday: weekday as 0, open: '00:00', close: '24:00' })),
-  typicalMinutes: { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 }, ...over,
+  typicalMinutes: { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 },
+  ...over,
 });
 const run = (id: number, over: Partial<BoardRun> = {}): BoardRun => ({
-  id, stillId: 1, type: 'stripping', status: 'planned', startsAt: utc('2026-12-03T06:00'), endsAt: utc('2026-12-03T12:00'), operatorId: null,
-  chargeLitres: null, chargeAbv: null, ferments: [], feeds: [], lowWinesLitres: null, version: 1, sequence: 0, notes: null, ...over,
+  id,
+  stillId: 1,
+  type: 'stripping',
+  status: 'planned',
+  startsAt: utc('2026-12-03T06:00'),
+  endsAt: utc('2026-12-03T12:00'),
+  operatorId: null,
+  chargeLitres: null,
+  chargeAbv: null,
+  ferments: [],
+  feeds: [],
+  lowWinesLitres: null,
+  version: 1,
+  sequence: 0,
+  notes: null,
+  ...over,
 });
 const ferment = (id: number, over: Partial<BoardFerment> = {}): BoardFerment => ({
-  id, code: `F-${id}`, volumeLitres: 2400, fermenterId: 1, washCategory: 'grain', pitchedAt: utc('2026-11-25T10:00'), emptiedAt: null, status: 'active', reason: '',
-  readyAt: utc('2026-12-02T12:00'), readyP10: utc('2026-12-01T12:00'), readyP90: utc('2026-12-04T12:00'), confirmedAt: null, lastSg: 1.02, predictedFg: 1.005, ...over,
+  id,
+  code: `F-${id}`,
+  volumeLitres: 2400,
+  fermenterId: 1,
+  washCategory: 'grain',
+  pitchedAt: utc('2026-11-25T10:00'),
+  emptiedAt: null,
+  status: 'active',
+  reason: '',
+  readyAt: utc('2026-12-02T12:00'),
+  readyP10: utc('2026-12-01T12:00'),
+  readyP90: utc('2026-12-04T12:00'),
+  confirmedAt: null,
+  lastSg: 1.02,
+  predictedFg: 1.005,
+  ...over,
 });
 
 describe('board sizes', () => {
@@ -42,16 +103,22 @@ describe('board sizes', () => {
     ['tomas', 'T'],
   ])('gives %s the initials %s', (name, expected) => expect(initials(name)).toBe(expected));
   it('puts the drop preview on its row, under the header, at least 8 px wide', () => {
-    expect(dropGhostBox({ startsAt: utc('2026-11-30T01:00'), endsAt: utc('2026-11-30T01:00') }, 2, week.start, px))
-      .toEqual({ left: LABEL_WIDTH + 12, top: HEADER_HEIGHT + 2 * ROW_HEIGHT + 4, width: 8, height: ROW_HEIGHT - 10 });
+    expect(dropGhostBox({ startsAt: utc('2026-11-30T01:00'), endsAt: utc('2026-11-30T01:00') }, 2, week.start, px)).toEqual({
+      left: LABEL_WIDTH + 12,
+      top: HEADER_HEIGHT + 2 * ROW_HEIGHT + 4,
+      width: 8,
+      height: ROW_HEIGHT - 10,
+    });
   });
 });
 
 describe('runsByStill', () => {
   it('lists every still and leaves out cancelled runs and runs outside the window', () => {
-    const m = runsByStill([still(1), still(2)], [
-      run(1), run(2, { status: 'cancelled' }), run(3, { startsAt: utc('2026-12-08T06:00'), endsAt: utc('2026-12-08T08:00') }), run(4, { stillId: 9 }),
-    ], week);
+    const m = runsByStill(
+      [still(1), still(2)],
+      [run(1), run(2, { status: 'cancelled' }), run(3, { startsAt: utc('2026-12-08T06:00'), endsAt: utc('2026-12-08T08:00') }), run(4, { stillId: 9 })],
+      week,
+    );
     expect([...m.keys()]).toEqual([1, 2]);
     expect(m.get(1)!.map((r) => r.id)).toEqual([1]);
     expect(m.get(2)).toEqual([]);
@@ -62,7 +129,10 @@ describe('closedSpans', () => {
   it('shades the hours a still is shut', () => {
     const daytime = still(1, { operatingHours: [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday: weekday as 0, open: '06:00', close: '18:00' })) });
     const spans = closedSpans([daytime], boardWindow('2026-12-03', 'day', TZ), TZ, 10).get(1)!;
-    expect(spans).toEqual([{ x: 0, w: 60 }, { x: 180, w: 60 }]);
+    expect(spans).toEqual([
+      { x: 0, w: 60 },
+      { x: 180, w: 60 },
+    ]);
   });
   it('shades nothing on a still open round the clock', () => expect(closedSpans([still(1)], week, TZ, px).get(1)).toEqual([]));
 });
@@ -70,22 +140,48 @@ describe('closedSpans', () => {
 describe('readyWindowSpans', () => {
   it('draws each wash once per row, from P10 to P90 with its most likely time marked, emptied washes left out', () => {
     const fermentById = new Map([ferment(1), ferment(2, { emptiedAt: utc('2026-12-02T00:00') })].map((f) => [f.id, f]));
-    const runs = new Map([[1, [run(1, { ferments: [{ fermentId: 1, litres: 1000 }, { fermentId: 2, litres: 100 }] }), run(2, { ferments: [{ fermentId: 1, litres: 1000 }] })]]]);
+    const runs = new Map([
+      [
+        1,
+        [
+          run(1, {
+            ferments: [
+              { fermentId: 1, litres: 1000 },
+              { fermentId: 2, litres: 100 },
+            ],
+          }),
+          run(2, { ferments: [{ fermentId: 1, litres: 1000 }] }),
+        ],
+      ],
+    ]);
     expect(readyWindowSpans(runs, fermentById, week.start, px).get(1)).toEqual([{ key: '1-1', x: 36 * px, w: 72 * px, mid: 24 * px, code: 'F-1' }]);
   });
 });
 
 describe('runBlockLayout', () => {
   const context = {
-    stillById: new Map([[1, still(1, { cleaningAfterRunMinutes: 60 })]]), fermentById: new Map([[1, ferment(1)]]),
-    personById: new Map([[7, { id: 7, name: 'Ines Okafor' }]]) as never, windowStart: week.start, pxPerHour: px, timeZone: TZ, units: 'metric' as const,
+    stillById: new Map([[1, still(1, { cleaningAfterRunMinutes: 60 })]]),
+    fermentById: new Map([[1, ferment(1)]]),
+    personById: new Map([[7, { id: 7, name: 'Ines Okafor' }]]) as never,
+    windowStart: week.start,
+    pxPerHour: px,
+    timeZone: TZ,
+    units: 'metric' as const,
   };
   it.each([
     ['week', 'IO'],
     ['day', 'Ines Okafor'],
   ] as const)('places a run and names its operator on a %s view as %s', (zoom, operatorText) => {
     const layout = runBlockLayout(run(1, { operatorId: 7, ferments: [{ fermentId: 1, litres: 2400 }] }), { ...context, zoom });
-    expect(layout).toMatchObject({ x: 78 * px, width: 6 * px, cleaningWidth: px, fermentCodes: 'F-1', operatorText, placement: 'inside', timeText: 'Thursday 06:00 to Thursday 12:00' });
+    expect(layout).toMatchObject({
+      x: 78 * px,
+      width: 6 * px,
+      cleaningWidth: px,
+      fermentCodes: 'F-1',
+      operatorText,
+      placement: 'inside',
+      timeText: 'Thursday 06:00 to Thursday 12:00',
+    });
     expect(layout.chargeText).toContain('2');
   });
   it('has no charge, operator or placement without washes', () => {
@@ -94,17 +190,28 @@ describe('runBlockLayout', () => {
 });
 
 describe('vesselBarLayout', () => {
-  const bar = (over: Partial<VesselBar>): VesselBar => ({
-    fermenterId: 1, fermentId: 1, code: 'F-1', status: 'active', pitchedAt: utc('2026-11-30T00:00'), readyP10: utc('2026-12-01T00:00'), readyP90: utc('2026-12-02T00:00'),
-    freeAt: null, freedBy: null, ...over,
-  } as VesselBar);
+  const bar = (over: Partial<VesselBar>): VesselBar =>
+    ({
+      fermenterId: 1,
+      fermentId: 1,
+      code: 'F-1',
+      status: 'active',
+      pitchedAt: utc('2026-11-30T00:00'),
+      readyP10: utc('2026-12-01T00:00'),
+      readyP90: utc('2026-12-02T00:00'),
+      freeAt: null,
+      freedBy: null,
+      ...over,
+    }) as VesselBar;
   it('runs to the end of the ready window when no run is booked', () => {
     const b = vesselBarLayout(bar({}), week, px, TZ)!;
     expect(b).toMatchObject({ x: 0, width: 48 * px, window: { x: 24 * px, w: 24 * px } });
     expect(b.label).toBe('F-1: pitched Monday 00:00, ready window Tuesday 00:00 to Wednesday 00:00, no run booked yet');
   });
   it('names the run that empties it', () => {
-    expect(vesselBarLayout(bar({ freeAt: utc('2026-12-03T06:00'), freedBy: 'run' } as Partial<VesselBar>), week, px, TZ)!.label).toContain('taken by a run Thursday 06:00');
+    expect(vesselBarLayout(bar({ freeAt: utc('2026-12-03T06:00'), freedBy: 'run' } as Partial<VesselBar>), week, px, TZ)!.label).toContain(
+      'taken by a run Thursday 06:00',
+    );
   });
   it('is not drawn outside the window', () => {
     expect(vesselBarLayout(bar({ pitchedAt: utc('2026-12-08T00:00'), readyP10: null, readyP90: null }), week, px, TZ)).toBeNull();
@@ -117,7 +224,11 @@ describe('axis', () => {
     ['week', '2026-12-03', 'Mon 30 Nov – Sun 6 Dec'],
     ['six-weeks', '2026-12-03', 'Mon 30 Nov – Sun 10 Jan'],
   ] as const)('heads a %s view of %s "%s"', (zoom, anchor, expected) => expect(rangeLabel(boardWindow(anchor, zoom, TZ))).toBe(expected));
-  it.each([['day', 'day'], ['week', 'week'], ['six-weeks', 'six weeks']] as const)('calls a %s page "%s"', (zoom, expected) => expect(pageName(zoom)).toBe(expected));
+  it.each([
+    ['day', 'day'],
+    ['week', 'week'],
+    ['six-weeks', 'six weeks'],
+  ] as const)('calls a %s page "%s"', (zoom, expected) => expect(pageName(zoom)).toBe(expected));
   it('drops the weekday on the six-week axis', () => {
     expect(axisDayLabel(week.days[0]!, 'six-weeks')).toBe('30 Nov');
     expect(axisDayLabel(week.days[0]!, 'week')).toBe('Mon 30 Nov');
@@ -139,7 +250,9 @@ describe('initialScrollLeft', () => {
     ['the current week at today, 20 px in', week, utc('2026-12-03T12:00'), 72 * px - 20],
     ['another week at its start', week, utc('2026-12-10T12:00'), 0],
     ['six weeks at their start', boardWindow('2026-12-03', 'six-weeks', TZ), utc('2026-12-03T12:00'), 0],
-  ])('scrolls %s', (_what, win, now, expected) => expect(initialScrollLeft(win, now, win.zoom === 'day' ? ZOOMS.day.pxPerHour : win.zoom === 'week' ? px : ZOOMS['six-weeks'].pxPerHour)).toBe(expected));
+  ])('scrolls %s', (_what, win, now, expected) =>
+    expect(initialScrollLeft(win, now, win.zoom === 'day' ? ZOOMS.day.pxPerHour : win.zoom === 'week' ? px : ZOOMS['six-weeks'].pxPerHour)).toBe(expected),
+  );
 });
 
 describe('boardKeyboardCoordinates', () => {
@@ -185,7 +298,13 @@ describe('firstHit', () => {
   });
   it('does not ask the fallback when the first detector hits', () => {
     let asked = false;
-    firstHit(() => ['row'], () => { asked = true; return []; })({});
+    firstHit(
+      () => ['row'],
+      () => {
+        asked = true;
+        return [];
+      },
+    )({});
     expect(asked).toBe(false);
   });
 });
@@ -207,7 +326,9 @@ describe('drafts', () => {
   it('books a wash on the first still that takes it, after its ready window', () => {
     const stills = [still(1, { capacityLitres: 1000 }), still(2)];
     expect(fermentBooking(ferment(1), stills, utc('2026-12-01T00:00'), week.start, px, TZ)).toEqual({
-      stillId: 2, startsAt: utc('2026-12-04T12:00'), ferments: [{ fermentId: 1, litres: 2400 }],
+      stillId: 2,
+      startsAt: utc('2026-12-04T12:00'),
+      ferments: [{ fermentId: 1, litres: 2400 }],
     });
     expect(fermentBooking(ferment(1, { volumeLitres: 9000 }), stills, utc('2026-12-01T00:00'), week.start, px, TZ)?.stillId).toBe(1);
     expect(fermentBooking(ferment(1), [], utc('2026-12-01T00:00'), week.start, px, TZ)).toBeNull();

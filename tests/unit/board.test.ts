@@ -1,8 +1,22 @@
 import { describe, it, expect } from 'vitest';
 import {
-  boardWindow, bookableFerments, defaultRunMinutes, describeChanges, moveTarget, movedMessage, notBeforeForRisk, resizeTarget, runsAtRisk,
-  slotAtX, vesselBars, windowPlacement, boardWarnings, mondayOf,
-  type BoardFerment, type BoardRun, type BoardStill,
+  boardWindow,
+  bookableFerments,
+  defaultRunMinutes,
+  describeChanges,
+  moveTarget,
+  movedMessage,
+  notBeforeForRisk,
+  resizeTarget,
+  runsAtRisk,
+  slotAtX,
+  vesselBars,
+  windowPlacement,
+  boardWarnings,
+  mondayOf,
+  type BoardFerment,
+  type BoardRun,
+  type BoardStill,
 } from '../../src/lib/board';
 import { utc } from '../helpers/time';
 
@@ -11,17 +25,53 @@ const D = 24 * H;
 const TZ = 'Europe/London';
 
 const still = (id: number, over: Partial<BoardStill> = {}): BoardStill => ({
-  id, name: `Still ${id}`, kind: 'pot', capacityLitres: 2500, heatingKw: 60, closures: [], cleaningAfterRunMinutes: 0, position: id,
+  id,
+  name: `Still ${id}`,
+  kind: 'pot',
+  capacityLitres: 2500,
+  heatingKw: 60,
+  closures: [],
+  cleaningAfterRunMinutes: 0,
+  position: id,
   operatingHours: [0, 1, 2, 3, 4, 5, 6].map((weekday) => ({ weekday: weekday as 0, open: '00:00', close: '24:00' })),
-  typicalMinutes: { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 }, ...over,
+  typicalMinutes: { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 },
+  ...over,
 });
 const run = (id: number, over: Partial<BoardRun> = {}): BoardRun => ({
-  id, stillId: 1, type: 'stripping', status: 'planned', startsAt: utc('2026-12-03T06:00'), endsAt: utc('2026-12-03T12:00'), operatorId: null,
-  chargeLitres: null, chargeAbv: null, ferments: [], feeds: [], lowWinesLitres: null, version: 1, sequence: 0, notes: null, ...over,
+  id,
+  stillId: 1,
+  type: 'stripping',
+  status: 'planned',
+  startsAt: utc('2026-12-03T06:00'),
+  endsAt: utc('2026-12-03T12:00'),
+  operatorId: null,
+  chargeLitres: null,
+  chargeAbv: null,
+  ferments: [],
+  feeds: [],
+  lowWinesLitres: null,
+  version: 1,
+  sequence: 0,
+  notes: null,
+  ...over,
 });
 const ferment = (id: number, over: Partial<BoardFerment> = {}): BoardFerment => ({
-  id, code: `F-${id}`, volumeLitres: 2400, fermenterId: 1, washCategory: 'grain', pitchedAt: utc('2026-11-25T10:00'), emptiedAt: null, status: 'active', reason: '',
-  readyAt: utc('2026-12-02T12:00'), readyP10: utc('2026-12-01T12:00'), readyP90: utc('2026-12-04T12:00'), confirmedAt: null, lastSg: 1.02, predictedFg: 1.005, ...over,
+  id,
+  code: `F-${id}`,
+  volumeLitres: 2400,
+  fermenterId: 1,
+  washCategory: 'grain',
+  pitchedAt: utc('2026-11-25T10:00'),
+  emptiedAt: null,
+  status: 'active',
+  reason: '',
+  readyAt: utc('2026-12-02T12:00'),
+  readyP10: utc('2026-12-01T12:00'),
+  readyP90: utc('2026-12-04T12:00'),
+  confirmedAt: null,
+  lastSg: 1.02,
+  predictedFg: 1.005,
+  ...over,
 });
 
 describe('boardWindow', () => {
@@ -114,7 +164,10 @@ describe('washes to book and runs at risk', () => {
   });
   it('flags runs on a stalled wash or before the late edge of the window, soonest first', () => {
     const risk = runsAtRisk(runs, fs, now);
-    expect(risk.map((r) => [r.run.id, r.reasons.map((x) => x.why)])).toEqual([[11, ['stalled']], [12, ['late']]]);
+    expect(risk.map((r) => [r.run.id, r.reasons.map((x) => x.why)])).toEqual([
+      [11, ['stalled']],
+      [12, ['late']],
+    ]);
   });
   it.each([
     ['a stalled wash waits a fresh stable period from now (3 days, the product default)', [{ fermentId: 3, litres: 1 }], now.getTime() + 3 * D],
@@ -127,7 +180,11 @@ describe('washes to book and runs at risk', () => {
 
 describe('vessel occupancy', () => {
   it('runs each ferment from pitching to the earliest live run that takes it, or to its emptying', () => {
-    const fs = [ferment(1, { fermenterId: 7 }), ferment(2, { fermenterId: 7, pitchedAt: utc('2026-11-01T00:00'), emptiedAt: utc('2026-11-10T00:00') }), ferment(3, { fermenterId: 8 })];
+    const fs = [
+      ferment(1, { fermenterId: 7 }),
+      ferment(2, { fermenterId: 7, pitchedAt: utc('2026-11-01T00:00'), emptiedAt: utc('2026-11-10T00:00') }),
+      ferment(3, { fermenterId: 8 }),
+    ];
     const runs = [
       run(1, { ferments: [{ fermentId: 1, litres: 1000 }], startsAt: utc('2026-12-06T06:00') }),
       run(2, { ferments: [{ fermentId: 1, litres: 1000 }], startsAt: utc('2026-12-05T06:00') }),
@@ -146,7 +203,12 @@ describe('defaultRunMinutes', () => {
   // REFERENCES §7 check value: 100 L of an 8 % vol wash from 20 °C on 10 kW at η = 1 heats in 51.2 min [computed];
   // at the default η = 0.85 that is 51.2 / 0.85 ≈ 60.2 min (SG taken as 1.000 here, +0.5 % over FG 0.995).
   it('adds the heat-up of the charge to the typical minutes', () => {
-    const minutes = defaultRunMinutes(still(1, { heatingKw: 10, typicalMinutes: { stripping: 100, spirit: 0, redistillation: 0, cleaning: 60, maintenance: 60 } }), 'stripping', 100, 8);
+    const minutes = defaultRunMinutes(
+      still(1, { heatingKw: 10, typicalMinutes: { stripping: 100, spirit: 0, redistillation: 0, cleaning: 60, maintenance: 60 } }),
+      'stripping',
+      100,
+      8,
+    );
     expect(minutes).toBeGreaterThanOrEqual(160);
     expect(minutes).toBeLessThanOrEqual(162);
   });
@@ -159,7 +221,7 @@ describe('defaultRunMinutes', () => {
 });
 
 describe('words', () => {
-  it('announces a move in the product\'s own words, on the distillery\'s clock', () => {
+  it("announces a move in the product's own words, on the distillery's clock", () => {
     expect(movedMessage('stripping', 'Wash Still 2', utc('2026-12-01T06:00'), TZ)).toBe('Stripping run moved to Wash Still 2, Tuesday 06:00');
     // 06:00 BST on Tuesday 2 June 2026 is 05:00 UTC.
     expect(movedMessage('spirit', 'Spirit Still', utc('2026-06-02T05:00'), TZ)).toBe('Spirit run moved to Spirit Still, Tuesday 06:00');
@@ -167,8 +229,11 @@ describe('words', () => {
   it('says what another person changed', () => {
     const mine = run(1);
     const theirs = run(1, { stillId: 2, startsAt: utc('2026-12-03T08:00'), operatorId: 5 });
-    expect(describeChanges(mine, theirs, { still: (id) => `Still ${id}`, person: (id) => (id === 5 ? 'Ines' : 'nobody') }, TZ))
-      .toEqual(['still is now Still 2', 'starts Thursday 08:00', 'operator is now Ines']);
+    expect(describeChanges(mine, theirs, { still: (id) => `Still ${id}`, person: (id) => (id === 5 ? 'Ines' : 'nobody') }, TZ)).toEqual([
+      'still is now Still 2',
+      'starts Thursday 08:00',
+      'operator is now Ines',
+    ]);
   });
 });
 

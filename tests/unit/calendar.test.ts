@@ -2,14 +2,7 @@ import { describe, expect, it } from 'vitest';
 import ICAL from 'ical.js';
 import nodeIcal from 'node-ical';
 import { createEvents } from 'ics';
-import {
-  buildFeed,
-  describeRunEvent,
-  foldLine,
-  runEventStatus,
-  uidForRun,
-  type FeedEvent,
-} from '../../src/lib/calendar';
+import { buildFeed, describeRunEvent, foldLine, runEventStatus, uidForRun, type FeedEvent } from '../../src/lib/calendar';
 import { utc } from '../helpers/time';
 
 const now = utc('2026-12-01T08:00:05');
@@ -115,7 +108,10 @@ describe('buildFeed: RFC 5545 / RFC 7986 shape (REFERENCES §8)', () => {
 
   it('unfolds back to the original multi-byte text', () => {
     const line = logicalLines.find((l) => l.startsWith('DESCRIPTION:Wash F-12'));
-    const value = line!.slice('DESCRIPTION:'.length).replace(/\\([\\;,])/g, '$1').replace(/\\n/g, '\n');
+    const value = line!
+      .slice('DESCRIPTION:'.length)
+      .replace(/\\([\\;,])/g, '$1')
+      .replace(/\\n/g, '\n');
     expect(value).toBe(longText);
   });
 
@@ -123,10 +119,19 @@ describe('buildFeed: RFC 5545 / RFC 7986 shape (REFERENCES §8)', () => {
     const { error, value } = createEvents(
       events.map((e) => ({
         uid: e.uid,
-        start: e.start.getTime(), startInputType: 'utc' as const, startOutputType: 'utc' as const,
-        end: e.end.getTime(), endInputType: 'utc' as const, endOutputType: 'utc' as const,
-        title: e.title, description: e.description, location: e.location, url: e.url,
-        status: e.status, sequence: e.sequence, lastModified: e.lastModified?.getTime(),
+        start: e.start.getTime(),
+        startInputType: 'utc' as const,
+        startOutputType: 'utc' as const,
+        end: e.end.getTime(),
+        endInputType: 'utc' as const,
+        endOutputType: 'utc' as const,
+        title: e.title,
+        description: e.description,
+        location: e.location,
+        url: e.url,
+        status: e.status,
+        sequence: e.sequence,
+        lastModified: e.lastModified?.getTime(),
         timestamp: (e.lastModified ?? now).getTime(),
       })) as Parameters<typeof createEvents>[0],
     );
@@ -214,14 +219,42 @@ describe('runEventStatus', () => {
     { what: 'cancelled run', input: { runType: 'stripping', runStatus: 'cancelled', ferments: [finished], feeds: [] }, expected: 'CANCELLED' },
     { what: 'cleaning', input: { runType: 'cleaning', runStatus: 'planned', ferments: [], feeds: [] }, expected: 'CONFIRMED' },
     { what: 'maintenance', input: { runType: 'maintenance', runStatus: 'planned', ferments: [], feeds: [] }, expected: 'CONFIRMED' },
-    { what: 'stripping run on a wash not yet confirmed', input: { runType: 'stripping', runStatus: 'confirmed', ferments: [finished, slowing], feeds: [] }, expected: 'TENTATIVE' },
-    { what: 'stripping run once every wash is confirmed stable', input: { runType: 'stripping', runStatus: 'planned', ferments: [finished, finished], feeds: [] }, expected: 'CONFIRMED' },
-    { what: '"finished" without confirmation is not enough', input: { runType: 'stripping', runStatus: 'planned', ferments: [{ status: 'finished', confirmedAt: null }], feeds: [] }, expected: 'TENTATIVE' },
+    {
+      what: 'stripping run on a wash not yet confirmed',
+      input: { runType: 'stripping', runStatus: 'confirmed', ferments: [finished, slowing], feeds: [] },
+      expected: 'TENTATIVE',
+    },
+    {
+      what: 'stripping run once every wash is confirmed stable',
+      input: { runType: 'stripping', runStatus: 'planned', ferments: [finished, finished], feeds: [] },
+      expected: 'CONFIRMED',
+    },
+    {
+      what: '"finished" without confirmation is not enough',
+      input: { runType: 'stripping', runStatus: 'planned', ferments: [{ status: 'finished', confirmedAt: null }], feeds: [] },
+      expected: 'TENTATIVE',
+    },
     { what: 'stripping run with no wash linked', input: { runType: 'stripping', runStatus: 'planned', ferments: [], feeds: [] }, expected: 'TENTATIVE' },
-    { what: 'spirit run while a feed is tentative', input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'done' }, { runStatus: 'planned', eventStatus: 'TENTATIVE' }] }, expected: 'TENTATIVE' },
-    { what: 'spirit run once feeds are done or confirmed', input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'done' }, { runStatus: 'planned', eventStatus: 'CONFIRMED' }] }, expected: 'CONFIRMED' },
-    { what: 'spirit run with a cancelled feed', input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'cancelled', eventStatus: 'CANCELLED' }] }, expected: 'TENTATIVE' },
-    { what: 'spirit run whose planned feed has no known status', input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'planned' }] }, expected: 'TENTATIVE' },
+    {
+      what: 'spirit run while a feed is tentative',
+      input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'done' }, { runStatus: 'planned', eventStatus: 'TENTATIVE' }] },
+      expected: 'TENTATIVE',
+    },
+    {
+      what: 'spirit run once feeds are done or confirmed',
+      input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'done' }, { runStatus: 'planned', eventStatus: 'CONFIRMED' }] },
+      expected: 'CONFIRMED',
+    },
+    {
+      what: 'spirit run with a cancelled feed',
+      input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'cancelled', eventStatus: 'CANCELLED' }] },
+      expected: 'TENTATIVE',
+    },
+    {
+      what: 'spirit run whose planned feed has no known status',
+      input: { runType: 'spirit', runStatus: 'planned', ferments: [], feeds: [{ runStatus: 'planned' }] },
+      expected: 'TENTATIVE',
+    },
     { what: 'a run already running', input: { runType: 'stripping', runStatus: 'running', ferments: [slowing], feeds: [] }, expected: 'CONFIRMED' },
   ] as const)('$what -> $expected', ({ input, expected }) => {
     expect(runEventStatus({ ...input, ferments: [...input.ferments], feeds: [...input.feeds] })).toBe(expected);
@@ -235,7 +268,12 @@ describe('uidForRun', () => {
     expect(uidForRun(42, 7, 'Feeds.Example.com')).toBe('run-7-42@feeds.example.com');
     expect(uidForRun(42, 8)).not.toBe(uidForRun(42, 7));
   });
-  it.each([[1.5, 7, 'x.y'], [-1, 7, 'x.y'], [1, 7, 'not a host'], [1, 7, 'a@b']])('rejects %s, %s, %s', (run, ws, host) => {
+  it.each([
+    [1.5, 7, 'x.y'],
+    [-1, 7, 'x.y'],
+    [1, 7, 'not a host'],
+    [1, 7, 'a@b'],
+  ])('rejects %s, %s, %s', (run, ws, host) => {
     expect(() => uidForRun(run, ws, host)).toThrow(RangeError);
   });
 });
@@ -246,7 +284,15 @@ describe('describeRunEvent', () => {
     stillName: 'Still 1',
     ferments: [
       { code: 'F-12', status: 'finished', litres: 900, readyAt: null, readyP10: null, readyP90: null, confirmedAt: utc('2026-11-30T12:00') },
-      { code: 'F-13', status: 'slowing', litres: 300, readyAt: utc('2026-12-03T12:00'), readyP10: utc('2026-12-03T06:00'), readyP90: utc('2026-12-04T18:00'), confirmedAt: null },
+      {
+        code: 'F-13',
+        status: 'slowing',
+        litres: 300,
+        readyAt: utc('2026-12-03T12:00'),
+        readyP10: utc('2026-12-03T06:00'),
+        readyP90: utc('2026-12-04T18:00'),
+        confirmedAt: null,
+      },
       { code: 'F-9', status: 'slowing', litres: 100, readyAt: null, readyP10: null, readyP90: null, confirmedAt: null, emptiedAt: utc('2026-11-28T09:30') },
     ],
     chargeLitres: 1200,

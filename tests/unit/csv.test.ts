@@ -2,17 +2,9 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import Papa from 'papaparse';
 import { afterEach, describe, expect, it } from 'vitest';
-import {
-  LOGGER_CSV_FORMAT_DOC,
-  MAX_UPLOAD_BYTES,
-  MAX_UPLOAD_ROWS,
-  parseLoggerCsv,
-  toCsv,
-  type LoggerCsvOptions,
-} from '../../src/lib/csv';
+import { LOGGER_CSV_FORMAT_DOC, MAX_UPLOAD_BYTES, MAX_UPLOAD_ROWS, parseLoggerCsv, toCsv, type LoggerCsvOptions } from '../../src/lib/csv';
 
-const fixture = (name: string): string =>
-  readFileSync(fileURLToPath(new URL(`../fixtures/csv/${name}`, import.meta.url)), 'utf8');
+const fixture = (name: string): string => readFileSync(fileURLToPath(new URL(`../fixtures/csv/${name}`, import.meta.url)), 'utf8');
 
 const london: LoggerCsvOptions = { timeZone: 'Europe/London', defaultTempUnit: 'C' };
 const iso = (d: Date): string => d.toISOString();
@@ -24,7 +16,23 @@ describe('limits', () => {
   });
 
   it('the format document names every column spelling and the limits', () => {
-    for (const word of ['time', 'timestamp', 'taken_at', 'value', 'reading', 'gravity', 'unit', 'method', 'instrument', 'temp_c', 'temp_f', 'sample_temp', '50,000', '5 MB', 'first occurrence']) {
+    for (const word of [
+      'time',
+      'timestamp',
+      'taken_at',
+      'value',
+      'reading',
+      'gravity',
+      'unit',
+      'method',
+      'instrument',
+      'temp_c',
+      'temp_f',
+      'sample_temp',
+      '50,000',
+      '5 MB',
+      'first occurrence',
+    ]) {
       expect(LOGGER_CSV_FORMAT_DOC).toContain(word);
     }
   });
@@ -224,9 +232,7 @@ describe('parseLoggerCsv: rejected lines', () => {
   it('object-property names are not units, methods or columns', () => {
     const result = parseLoggerCsv('time,value,unit,method,constructor\n2026-11-03T08:00Z,1.05,constructor,__proto__,x\n', london);
     expect(result.rows).toEqual([]);
-    expect(result.rejected[0].reason).toBe(
-      'unit "constructor" is not sg, brix or plato; method "__proto__" is not hydrometer, refractometer or digital',
-    );
+    expect(result.rejected[0].reason).toBe('unit "constructor" is not sg, brix or plato; method "__proto__" is not hydrometer, refractometer or digital');
   });
 
   it('keeps raw to 200 characters', () => {

@@ -9,13 +9,19 @@ import { isDbUnavailable } from '../../src/server/db-errors';
 describe('database-unavailable classification', () => {
   it('a Unix socket that is not there (the local instance stopped)', async () => {
     const socketPath = join(mkdtempSync(join(tmpdir(), 'plateau-sock-')), 'gone.sock');
-    const err = await mysql.createConnection({ socketPath, user: 'nobody', connectTimeout: 1000 }).then(() => null, (e: unknown) => e);
+    const err = await mysql.createConnection({ socketPath, user: 'nobody', connectTimeout: 1000 }).then(
+      () => null,
+      (e: unknown) => e,
+    );
     expect(err).not.toBeNull();
     expect(isDbUnavailable(err)).toBe(true);
   });
 
   it('a TCP port nobody listens on', async () => {
-    const err = await mysql.createConnection({ host: '127.0.0.1', port: 9, user: 'nobody', connectTimeout: 1000 }).then(() => null, (e: unknown) => e);
+    const err = await mysql.createConnection({ host: '127.0.0.1', port: 9, user: 'nobody', connectTimeout: 1000 }).then(
+      () => null,
+      (e: unknown) => e,
+    );
     expect(err).not.toBeNull();
     expect(isDbUnavailable(err)).toBe(true);
   });

@@ -64,10 +64,7 @@ describe('first-order decay to a residual with lag (common empirical model; chec
 
 describe('laboratory series (Valle et al., BEER 2024, BSD-2-Clause; data and licence in tests/fixtures/ferments/valle2024-mezcal/)', () => {
   // Mean total sugar (glucose + fructose) of the three replicates, g/L, every 8 h.
-  const csv = readFileSync(
-    fileURLToPath(new URL('../fixtures/ferments/valle2024-mezcal/data.csv', import.meta.url)),
-    'utf8',
-  );
+  const csv = readFileSync(fileURLToPath(new URL('../fixtures/ferments/valle2024-mezcal/data.csv', import.meta.url)), 'utf8');
   const rows = csv
     .trim()
     .split(/\r?\n/)

@@ -33,9 +33,30 @@ function input(sgs: number[], range: { min: number; max: number }, extra: Partia
 // rule: readings spanning >= 72 h, >= 3 of them, spread <= 0.001.
 const VECTORS: Array<{ name: string; sgs: number[]; range: { min: number; max: number }; steady3: number | null; steady2: number | null; status: string }> = [
   { name: 'sugar wash', sgs: [1.08, 1.05, 1.025, 1.01, 1.0, 0.996, 0.995, 0.995, 0.995], range: RANGES.sugar, steady3: 192, steady2: 168, status: 'finished' },
-  { name: 'grain wash', sgs: [1.06, 1.04, 1.022, 1.012, 1.008, 1.007, 1.006, 1.006, 1.006], range: RANGES.grain, steady3: 192, steady2: 168, status: 'finished' },
-  { name: 'molasses stuck at 1.030', sgs: [1.09, 1.07, 1.045, 1.031, 1.03, 1.03, 1.03, 1.03], range: RANGES.molasses, steady3: 144, steady2: 120, status: 'stalled' },
-  { name: 'molasses still creeping', sgs: [1.09, 1.07, 1.045, 1.03, 1.03, 1.03, 1.028, 1.027], range: RANGES.molasses, steady3: null, steady2: null, status: 'slowing' },
+  {
+    name: 'grain wash',
+    sgs: [1.06, 1.04, 1.022, 1.012, 1.008, 1.007, 1.006, 1.006, 1.006],
+    range: RANGES.grain,
+    steady3: 192,
+    steady2: 168,
+    status: 'finished',
+  },
+  {
+    name: 'molasses stuck at 1.030',
+    sgs: [1.09, 1.07, 1.045, 1.031, 1.03, 1.03, 1.03, 1.03],
+    range: RANGES.molasses,
+    steady3: 144,
+    steady2: 120,
+    status: 'stalled',
+  },
+  {
+    name: 'molasses still creeping',
+    sgs: [1.09, 1.07, 1.045, 1.03, 1.03, 1.03, 1.028, 1.027],
+    range: RANGES.molasses,
+    steady3: null,
+    steady2: null,
+    status: 'slowing',
+  },
 ];
 
 describe.each(VECTORS)('stability vector (REFERENCES §6): $name', ({ sgs, range, steady3, steady2, status }) => {

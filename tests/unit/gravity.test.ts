@@ -296,8 +296,7 @@ describe('correctReading', () => {
     const og = 1.08;
     const i = ((182.4601 * og - 775.6821) * og + 1262.7794) * og - 669.5622;
     const f = 10 / 1.04;
-    const terrill =
-      1 - 0.0044993 * i + 0.011774 * f + 0.00027581 * i ** 2 - 0.0012717 * f ** 2 - 0.00000728 * i ** 3 + 0.000063293 * f ** 3;
+    const terrill = 1 - 0.0044993 * i + 0.011774 * f + 0.00027581 * i ** 2 - 0.0012717 * f ** 2 - 0.00000728 * i ** 3 + 0.000063293 * f ** 3;
     const result = correctReading({
       ...base,
       method: 'refractometer',
@@ -331,16 +330,8 @@ describe('correctReading', () => {
     ['not a number', { value: Number.NaN }, 'value'],
     ['refractometer in SG', { method: 'refractometer', value: 1.05 }, 'unit'],
     ['refractometer WCF out of range', { method: 'refractometer', unit: 'brix', value: 10, wcf: 2 }, 'wcf'],
-    [
-      'refractometer during fermentation without OG',
-      { method: 'refractometer', unit: 'brix', value: 10, fermentationStarted: true },
-      'originalGravity',
-    ],
-    [
-      'refractometer reading above the OG',
-      { method: 'refractometer', unit: 'brix', value: 25, fermentationStarted: true, originalGravity: 1.06 },
-      'value',
-    ],
+    ['refractometer during fermentation without OG', { method: 'refractometer', unit: 'brix', value: 10, fermentationStarted: true }, 'originalGravity'],
+    ['refractometer reading above the OG', { method: 'refractometer', unit: 'brix', value: 25, fermentationStarted: true, originalGravity: 1.06 }, 'value'],
   ] as const)('rejects %s', (_case, overrides, field) => {
     expectGravityError(() => correctReading({ ...base, ...overrides } as RawReading), field);
   });

@@ -18,7 +18,7 @@ describe('password hashing', () => {
     const salt = 'c2FsdHNhbHRzYWx0c2FsdA';
     const tail = `${salt}$aGFzaGhhc2hoYXNoaGFzaGhhc2hoYXNoaGFzaGhhc2g`;
     it.each([
-      ['today\'s parameters', `$argon2id$v=19$m=${ARGON2_PARAMS.memoryCost},t=${ARGON2_PARAMS.timeCost},p=${ARGON2_PARAMS.parallelism}$${tail}`, false],
+      ["today's parameters", `$argon2id$v=19$m=${ARGON2_PARAMS.memoryCost},t=${ARGON2_PARAMS.timeCost},p=${ARGON2_PARAMS.parallelism}$${tail}`, false],
       ['stronger memory', `$argon2id$v=19$m=65536,t=2,p=1$${tail}`, false],
       ['less memory', `$argon2id$v=19$m=4096,t=2,p=1$${tail}`, true],
       ['fewer passes', `$argon2id$v=19$m=19456,t=1,p=1$${tail}`, true],

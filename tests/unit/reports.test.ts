@@ -73,16 +73,25 @@ describe('recovery arithmetic (REFERENCES §5: LAA = litres × ABV / 100, all at
     // 2400 × 11.386 / 100 = 273.264 (11.386 is given to 3 decimals: ± 0.012 LAA)
     expect(Math.abs(expectedLaaFromFerments([{ litres: 2400, og: 1.08, fg: 0.995 }])! - 273.264)).toBeLessThanOrEqual(0.015);
     // Two lines add: 1200 L + 1200 L of the same wash give the same total.
-    expect(Math.abs(expectedLaaFromFerments([{ litres: 1200, og: 1.08, fg: 0.995 }, { litres: 1200, og: 1.08, fg: 0.995 }])! - 273.264)).toBeLessThanOrEqual(0.015);
+    expect(
+      Math.abs(
+        expectedLaaFromFerments([
+          { litres: 1200, og: 1.08, fg: 0.995 },
+          { litres: 1200, og: 1.08, fg: 0.995 },
+        ])! - 273.264,
+      ),
+    ).toBeLessThanOrEqual(0.015);
     expect(expectedLaaFromFerments([{ litres: 2400, og: 1.08, fg: null }])).toBeNull();
   });
-  it('expected LAA of a spirit run by share of each feeding run\'s low wines (hand arithmetic)', () => {
+  it("expected LAA of a spirit run by share of each feeding run's low wines (hand arithmetic)", () => {
     // Took 640 of 640 L from a run expected to give 180 LAA, and 480 of 900 L from one expected to give 270:
     // 180 + 480/900 × 270 = 180 + 144 = 324
-    expect(expectedLaaFromFeeds([
-      { litres: 640, lowWinesLitres: 640, expectedLaa: 180 },
-      { litres: 480, lowWinesLitres: 900, expectedLaa: 270 },
-    ])).toBeCloseTo(324, 9);
+    expect(
+      expectedLaaFromFeeds([
+        { litres: 640, lowWinesLitres: 640, expectedLaa: 180 },
+        { litres: 480, lowWinesLitres: 900, expectedLaa: 270 },
+      ]),
+    ).toBeCloseTo(324, 9);
     expect(expectedLaaFromFeeds([{ litres: 480, lowWinesLitres: null, expectedLaa: 270 }])).toBeNull();
   });
 });
@@ -140,7 +149,7 @@ describe('median and interquartile spread (linear interpolation, Hyndman & Fan t
   });
 });
 
-describe('ISO 8601 weeks (ISO 8601: week 1 holds the year\'s first Thursday)', () => {
+describe("ISO 8601 weeks (ISO 8601: week 1 holds the year's first Thursday)", () => {
   it.each([
     ['2025-01-01', '2025-W01'],
     ['2024-12-30', '2025-W01'],
@@ -206,7 +215,9 @@ describe('forecast accuracy three days ahead (hand-worked)', () => {
   const actual = utc('2025-03-10T12:00');
   const points = accuracyPoints([
     {
-      fermentId: 1, code: 'F1', ruleMetAt: actual,
+      fermentId: 1,
+      code: 'F1',
+      ruleMetAt: actual,
       history: [
         // 5 days before: too early to stand for "3 days ahead"
         { asOf: utc('2025-03-05T12:00'), readyAt: utc('2025-03-13T12:00'), readyP10: null, readyP90: null },
@@ -217,11 +228,18 @@ describe('forecast accuracy three days ahead (hand-worked)', () => {
       ],
     },
     {
-      fermentId: 2, code: 'F2', ruleMetAt: utc('2025-03-20T00:00'),
+      fermentId: 2,
+      code: 'F2',
+      ruleMetAt: utc('2025-03-20T00:00'),
       // 72 h before exactly; predicted 2 days early; window 16..18 Mar misses the actual
       history: [{ asOf: utc('2025-03-17T00:00'), readyAt: utc('2025-03-18T00:00'), readyP10: utc('2025-03-16T00:00'), readyP90: utc('2025-03-18T00:00') }],
     },
-    { fermentId: 3, code: 'F3', ruleMetAt: utc('2025-03-20T00:00'), history: [{ asOf: utc('2025-03-19T00:00'), readyAt: utc('2025-03-20T00:00'), readyP10: null, readyP90: null }] },
+    {
+      fermentId: 3,
+      code: 'F3',
+      ruleMetAt: utc('2025-03-20T00:00'),
+      history: [{ asOf: utc('2025-03-19T00:00'), readyAt: utc('2025-03-20T00:00'), readyP10: null, readyP90: null }],
+    },
   ]);
   it('picks the forecast nearest 72 h before the finish, within ± 24 h', () => {
     expect(points.map((p) => p.code)).toEqual(['F1', 'F2']);
@@ -235,12 +253,24 @@ describe('forecast accuracy three days ahead (hand-worked)', () => {
 
 describe('throughput and yield per tonne (hand-worked)', () => {
   it('wash litres and LAA by ISO week of finish', () => {
-    const rows = throughputByWeek([
-      { type: 'stripping', finishedAt: utc('2025-03-04T13:00'), washLitres: 2400, fractions: [{ fraction: 'low_wines', laa: 176 }] },
-      { type: 'stripping', finishedAt: utc('2025-03-06T13:00'), washLitres: 1800, fractions: [{ fraction: 'low_wines', laa: 150 }] },
-      { type: 'spirit', finishedAt: utc('2025-03-07T16:00'), washLitres: 0, fractions: [{ fraction: 'heads', laa: 14 }, { fraction: 'hearts', laa: 200 }] },
-      { type: 'stripping', finishedAt: utc('2025-03-12T13:00'), washLitres: 2000, fractions: [] },
-    ], ['2025-W10', '2025-W11'], TZ);
+    const rows = throughputByWeek(
+      [
+        { type: 'stripping', finishedAt: utc('2025-03-04T13:00'), washLitres: 2400, fractions: [{ fraction: 'low_wines', laa: 176 }] },
+        { type: 'stripping', finishedAt: utc('2025-03-06T13:00'), washLitres: 1800, fractions: [{ fraction: 'low_wines', laa: 150 }] },
+        {
+          type: 'spirit',
+          finishedAt: utc('2025-03-07T16:00'),
+          washLitres: 0,
+          fractions: [
+            { fraction: 'heads', laa: 14 },
+            { fraction: 'hearts', laa: 200 },
+          ],
+        },
+        { type: 'stripping', finishedAt: utc('2025-03-12T13:00'), washLitres: 2000, fractions: [] },
+      ],
+      ['2025-W10', '2025-W11'],
+      TZ,
+    );
     // W10 (3–9 Mar): 2400 + 1800 = 4200 L; low wines 176 + 150 = 326 LAA; hearts 200 LAA; 3 runs. W11: 2000 L, 1 run.
     expect(rows).toEqual([
       { week: '2025-W10', washLitres: 4200, lowWinesLaa: 326, heartsLaa: 200, runs: 3 },
@@ -264,14 +294,27 @@ describe('throughput and yield per tonne (hand-worked)', () => {
 describe('utilisation per still and week (hand-worked)', () => {
   // Mon–Fri 08:00–18:00 (10 h a day), London in January = UTC. Two weeks: 5–11 and 12–18 Jan 2026.
   const still: Still = {
-    id: 1, name: 'Wash Still 1', capacityLitres: 2500, heatingKw: 60,
+    id: 1,
+    name: 'Wash Still 1',
+    capacityLitres: 2500,
+    heatingKw: 60,
     operatingHours: ([1, 2, 3, 4, 5] as const).map((weekday) => ({ weekday, open: '08:00', close: '18:00' })),
     closures: [{ startsOn: '2026-01-14', endsOn: '2026-01-14', reason: 'Inspection' }],
     cleaningAfterRunMinutes: 0,
     typicalMinutes: { stripping: 360, spirit: 540, redistillation: 420, cleaning: 120, maintenance: 240 },
   };
   const run = (id: number, start: string, end: string, over: Partial<Run> = {}): Run => ({
-    id, stillId: 1, type: 'stripping', status: 'done', startsAt: utc(start), endsAt: utc(end), operatorId: null, chargeLitres: null, ferments: [], feeds: [], ...over,
+    id,
+    stillId: 1,
+    type: 'stripping',
+    status: 'done',
+    startsAt: utc(start),
+    endsAt: utc(end),
+    operatorId: null,
+    chargeLitres: null,
+    ferments: [],
+    feeds: [],
+    ...over,
   });
   const runs = [
     run(1, '2026-01-05T08:00', '2026-01-05T14:00', { ferments: [{ fermentId: 1, litres: 2400 }] }), // 6 h done
@@ -279,12 +322,29 @@ describe('utilisation per still and week (hand-worked)', () => {
     run(3, '2026-01-13T08:00', '2026-01-13T12:00', { status: 'cancelled' }),
   ];
   const ferment = (id: number, confirmed: string): FermentState => ({
-    id, code: `F${id}`, volumeLitres: 2400, pitchedAt: null, emptiedAt: null, status: 'finished', readyAt: null, readyP10: null, readyP90: null, confirmedAt: utc(confirmed),
+    id,
+    code: `F${id}`,
+    volumeLitres: 2400,
+    pitchedAt: null,
+    emptiedAt: null,
+    status: 'finished',
+    readyAt: null,
+    readyP10: null,
+    readyP90: null,
+    confirmedAt: utc(confirmed),
   });
   // F1 confirmed before the week: no wait. F2 confirmed Wed 10:00; the still was free since Mon 14:00 (end of run 1):
   // waiting [Mon 14:00, Wed 10:00) inside hours = Mon 14–18 (4) + Tue 8–18 (10) + Wed 8–10 (2) = 16 h.
-  const rows = utilisationByStillWeek([still], runs, new Map([[1, ferment(1, '2026-01-02T00:00')], [2, ferment(2, '2026-01-07T10:00')]]),
-    { start: utc('2026-01-05T00:00'), end: utc('2026-01-19T00:00') }, TZ);
+  const rows = utilisationByStillWeek(
+    [still],
+    runs,
+    new Map([
+      [1, ferment(1, '2026-01-02T00:00')],
+      [2, ferment(2, '2026-01-07T10:00')],
+    ]),
+    { start: utc('2026-01-05T00:00'), end: utc('2026-01-19T00:00') },
+    TZ,
+  );
   it('week 2026-W02: 50 h open, 12 h booked (24 %), 6 h done, 16 h idle waiting', () => {
     expect(rows[0]).toMatchObject({ week: '2026-W02', availableHours: 50, bookedHours: 12, doneHours: 6, idleWaitingHours: 16 });
     expect(rows[0]!.utilisation).toBeCloseTo(0.24, 12);

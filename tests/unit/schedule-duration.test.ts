@@ -35,21 +35,15 @@ describe('estimateDurationMinutes (heat-up: t = m·cp·(T_boil − T0)/(P·η))'
     expect(estimateDurationMinutes({ ...check, startTempC: 95, typicalMinutes: 30 })).toMatchObject({ heatUpMinutes: 0, totalMinutes: 30 });
   });
 
-  it.each([
-    { chargeLitres: -1 },
-    { heatingKw: 0 },
-    { efficiency: 0 },
-    { efficiency: 1.2 },
-    { washSg: 0 },
-  ])('rejects %o', (bad) => {
+  it.each([{ chargeLitres: -1 }, { heatingKw: 0 }, { efficiency: 0 }, { efficiency: 1.2 }, { washSg: 0 }])('rejects %o', (bad) => {
     expect(() => estimateDurationMinutes({ ...check, ...bad })).toThrow(RangeError);
   });
 });
 
 describe('bubblePointC (ethanol–water at 1 atm)', () => {
   it.each([
-    { abv: 8, celsius: 94.0, source: 'Perry\'s tables, REFERENCES §7' },
-    { abv: 10, celsius: 92.9, source: 'Perry\'s tables, REFERENCES §7' },
+    { abv: 8, celsius: 94.0, source: "Perry's tables, REFERENCES §7" },
+    { abv: 10, celsius: 92.9, source: "Perry's tables, REFERENCES §7" },
     { abv: 0, celsius: 100, source: 'water boils at 100 °C at 1 atm (from memory)' },
     { abv: 100, celsius: 78.3, source: 'ethanol boils at about 78.3 °C (from memory), the clamp floor' },
     { abv: -5, celsius: 100, source: 'clamped' },

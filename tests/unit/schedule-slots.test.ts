@@ -9,12 +9,39 @@ const iso = (d: Date) => d.toISOString().slice(0, 16);
 
 const weekdays = ([1, 2, 3, 4, 5] as const).map((weekday) => ({ weekday, open: '08:00', close: '18:00' }));
 const typicalMinutes = { stripping: 240, spirit: 360, redistillation: 300, cleaning: 60, maintenance: 120 };
-const still1: Still = { id: 1, name: 'Still 1', capacityLitres: 1000, heatingKw: 30, operatingHours: weekdays, closures: [], cleaningAfterRunMinutes: 60, typicalMinutes };
-const still2: Still = { id: 2, name: 'Still 2', capacityLitres: 2000, heatingKw: 45, operatingHours: weekdays, closures: [], cleaningAfterRunMinutes: 0, typicalMinutes };
+const still1: Still = {
+  id: 1,
+  name: 'Still 1',
+  capacityLitres: 1000,
+  heatingKw: 30,
+  operatingHours: weekdays,
+  closures: [],
+  cleaningAfterRunMinutes: 60,
+  typicalMinutes,
+};
+const still2: Still = {
+  id: 2,
+  name: 'Still 2',
+  capacityLitres: 2000,
+  heatingKw: 45,
+  operatingHours: weekdays,
+  closures: [],
+  cleaningAfterRunMinutes: 0,
+  typicalMinutes,
+};
 
 const booked = (id: number, stillId: number, start: string, end: string, over: Partial<Run> = {}): Run => ({
-  id, stillId, type: 'stripping', status: 'planned', startsAt: utc(start), endsAt: utc(end),
-  operatorId: null, chargeLitres: null, ferments: [], feeds: [], ...over,
+  id,
+  stillId,
+  type: 'stripping',
+  status: 'planned',
+  startsAt: utc(start),
+  endsAt: utc(end),
+  operatorId: null,
+  chargeLitres: null,
+  ferments: [],
+  feeds: [],
+  ...over,
 });
 
 // Still 1: 10:00–13:00 on Tue 1 Dec, then cleaning until 14:00. Still 2: 08:00–16:00 the same day.
@@ -42,7 +69,7 @@ describe('findEarliestSlots', () => {
       expected: ['2 2026-12-03T08:00–12:00', '2 2026-12-03T12:00–16:00', '2 2026-12-04T08:00–12:00'],
     },
     {
-      what: 'moving Still 2\'s own run: it does not block itself',
+      what: "moving Still 2's own run: it does not block itself",
       over: { chargeLitres: 1500, excludeRunId: 2, limit: 1 },
       expected: ['2 2026-12-01T09:30–13:30'],
     },
@@ -90,7 +117,14 @@ describe('findEarliestSlots', () => {
 
   it('lets a run span midnight on a still open round the clock', () => {
     const allDay = ([0, 1, 2, 3, 4, 5, 6] as const).map((weekday) => ({ weekday, open: '00:00', close: '24:00' }));
-    const [first] = findEarliestSlots({ ...base, stills: [{ ...still2, operatingHours: allDay }], runs: [], durationMinutes: 30 * 60, notBefore: utc('2026-12-01T20:05'), limit: 1 });
+    const [first] = findEarliestSlots({
+      ...base,
+      stills: [{ ...still2, operatingHours: allDay }],
+      runs: [],
+      durationMinutes: 30 * 60,
+      notBefore: utc('2026-12-01T20:05'),
+      limit: 1,
+    });
     expect(iso(first.startsAt)).toBe('2026-12-01T20:30');
     expect(iso(first.endsAt)).toBe('2026-12-03T02:30');
   });

@@ -1,13 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  findOverlap,
-  moveRunPreservingWallClock,
-  shiftRun,
-  snapToSlot,
-  wallClock,
-  zonedDateTime,
-  type Run,
-} from '../../src/lib/schedule';
+import { findOverlap, moveRunPreservingWallClock, shiftRun, snapToSlot, wallClock, zonedDateTime, type Run } from '../../src/lib/schedule';
 import { utc } from '../helpers/time';
 
 const HOUR = 3_600_000;
@@ -54,8 +46,16 @@ describe('zonedDateTime / wallClock', () => {
 
 describe('moving runs across daylight-saving changes', () => {
   const run = (startsAt: Date, endsAt: Date): Run => ({
-    id: 1, stillId: 1, type: 'stripping', status: 'planned', startsAt, endsAt,
-    operatorId: null, chargeLitres: null, ferments: [], feeds: [],
+    id: 1,
+    stillId: 1,
+    type: 'stripping',
+    status: 'planned',
+    startsAt,
+    endsAt,
+    operatorId: null,
+    chargeLitres: null,
+    ferments: [],
+    feeds: [],
   });
 
   it('Europe/London, 25 Oct 2026: an overnight run keeps its 22:00 start and its 9 true hours', () => {
@@ -122,12 +122,24 @@ describe('findOverlap with cleaning slots', () => {
   // Still with a 60-minute cleaning slot after each distillation run.
   const still = { cleaningAfterRunMinutes: 60 };
   const existing: Run = {
-    id: 1, stillId: 1, type: 'stripping', status: 'planned',
-    startsAt: utc('2026-12-03T08:00'), endsAt: utc('2026-12-03T14:00'),
-    operatorId: null, chargeLitres: null, ferments: [], feeds: [],
+    id: 1,
+    stillId: 1,
+    type: 'stripping',
+    status: 'planned',
+    startsAt: utc('2026-12-03T08:00'),
+    endsAt: utc('2026-12-03T14:00'),
+    operatorId: null,
+    chargeLitres: null,
+    ferments: [],
+    feeds: [],
   };
   const candidate = (start: string, end: string, over: Partial<Run> = {}) => ({
-    id: 2, stillId: 1, type: 'stripping' as const, startsAt: utc(start), endsAt: utc(end), ...over,
+    id: 2,
+    stillId: 1,
+    type: 'stripping' as const,
+    startsAt: utc(start),
+    endsAt: utc(end),
+    ...over,
   });
 
   it.each([
@@ -136,7 +148,11 @@ describe('findOverlap with cleaning slots', () => {
     { what: 'starts when the cleaning ends', c: candidate('2026-12-03T15:00', '2026-12-03T18:00'), overlaps: false },
     { what: 'its own cleaning runs into the run', c: candidate('2026-12-03T06:00', '2026-12-03T07:30'), overlaps: true },
     { what: 'its own cleaning ends as the run starts', c: candidate('2026-12-03T06:00', '2026-12-03T07:00'), overlaps: false },
-    { what: 'is a cleaning run just before (no cleaning after cleaning)', c: candidate('2026-12-03T07:00', '2026-12-03T08:00', { type: 'cleaning' }), overlaps: false },
+    {
+      what: 'is a cleaning run just before (no cleaning after cleaning)',
+      c: candidate('2026-12-03T07:00', '2026-12-03T08:00', { type: 'cleaning' }),
+      overlaps: false,
+    },
     { what: 'is on another still', c: candidate('2026-12-03T09:00', '2026-12-03T10:00', { stillId: 2 }), overlaps: false },
     { what: 'is the same run moved a little', c: candidate('2026-12-03T09:00', '2026-12-03T15:00', { id: 1 }), overlaps: false },
   ])('a candidate that $what: overlap $overlaps', ({ c, overlaps }) => {

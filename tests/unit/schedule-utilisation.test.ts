@@ -18,13 +18,29 @@ const still: Still = {
 };
 
 const run = (id: number, start: string, end: string, over: Partial<Run> = {}): Run => ({
-  id, stillId: 1, type: 'stripping', status: 'done', startsAt: utc(start), endsAt: utc(end),
-  operatorId: null, chargeLitres: null, ferments: [], feeds: [], ...over,
+  id,
+  stillId: 1,
+  type: 'stripping',
+  status: 'done',
+  startsAt: utc(start),
+  endsAt: utc(end),
+  operatorId: null,
+  chargeLitres: null,
+  ferments: [],
+  feeds: [],
+  ...over,
 });
 
 const wash = (id: number, confirmedAt: string | null): FermentState => ({
-  id, code: `F-${id}`, volumeLitres: 1000, pitchedAt: utc('2026-01-01T08:00'), emptiedAt: null,
-  status: confirmedAt ? 'finished' : 'slowing', readyAt: null, readyP10: null, readyP90: null,
+  id,
+  code: `F-${id}`,
+  volumeLitres: 1000,
+  pitchedAt: utc('2026-01-01T08:00'),
+  emptiedAt: null,
+  status: confirmedAt ? 'finished' : 'slowing',
+  readyAt: null,
+  readyP10: null,
+  readyP90: null,
   confirmedAt: confirmedAt ? utc(confirmedAt) : null,
 });
 

@@ -169,7 +169,10 @@ const cases: Array<{ code: WarningCode; severity: string; fires: Scenario; nearM
     severity: 'danger',
     why: 'overlap with a live run vs with a cancelled one',
     fires: { run: run(), others: [run({ id: 101, stillId: 2, ferments: [], startsAt: at('2026-12-03T15:00'), endsAt: at('2026-12-03T16:00') })] },
-    nearMiss: { run: run(), others: [run({ id: 101, stillId: 2, ferments: [], status: 'cancelled', startsAt: at('2026-12-03T15:00'), endsAt: at('2026-12-03T16:00') })] },
+    nearMiss: {
+      run: run(),
+      others: [run({ id: 101, stillId: 2, ferments: [], status: 'cancelled', startsAt: at('2026-12-03T15:00'), endsAt: at('2026-12-03T16:00') })],
+    },
   },
   {
     code: 'ferment_not_pitched',
@@ -204,7 +207,10 @@ const cases: Array<{ code: WarningCode; severity: string; fires: Scenario; nearM
     severity: 'warning',
     why: '250 L here + 100 L in another spirit run from 300 L of low wines vs 200 + 100',
     fires: { run: spirit(), others: [feeder(), spirit({ id: 102, stillId: 3, operatorId: 9, feeds: [{ runId: 90, litres: 100 }] })] },
-    nearMiss: { run: spirit({ feeds: [{ runId: 90, litres: 200 }] }), others: [feeder(), spirit({ id: 102, stillId: 3, operatorId: 9, feeds: [{ runId: 90, litres: 100 }] })] },
+    nearMiss: {
+      run: spirit({ feeds: [{ runId: 90, litres: 200 }] }),
+      others: [feeder(), spirit({ id: 102, stillId: 3, operatorId: 9, feeds: [{ runId: 90, litres: 100 }] })],
+    },
   },
   {
     code: 'spirit_over_feed',
@@ -239,7 +245,7 @@ describe('computeRunWarnings: readiness ladder against the forecast window', () 
     expect(readiness).toEqual([expect.objectContaining({ code, severity, fermentId: 12 })]);
   });
 
-  it('says why in the product\'s words', () => {
+  it("says why in the product's words", () => {
     const [w] = warningsFor({ run: run(), ferment: fermenting() });
     expect(w.message).toBe('Wash F-12 is not confirmed stable: ready window 3 Dec 06:00 – 4 Dec 18:00');
   });

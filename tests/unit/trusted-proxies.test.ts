@@ -94,7 +94,10 @@ describe('forwardedHops', () => {
     ['', []],
     ['203.0.113.7', ['203.0.113.7']],
     ['203.0.113.7, 10.0.0.2 ,10.0.0.3', ['203.0.113.7', '10.0.0.2', '10.0.0.3']],
-    [['203.0.113.7, 10.0.0.2', '10.0.0.3'], ['203.0.113.7', '10.0.0.2', '10.0.0.3']],
+    [
+      ['203.0.113.7, 10.0.0.2', '10.0.0.3'],
+      ['203.0.113.7', '10.0.0.2', '10.0.0.3'],
+    ],
     ['a,,b', ['a', 'b']],
   ])('%j -> %j', (header, expected) => {
     expect(forwardedHops(header as string | string[] | undefined)).toEqual(expected);
@@ -143,9 +146,19 @@ describe('expectedOrigins and isSameOrigin (CSRF)', () => {
     ['the public origin', 'https://plateau.example', { host: 'plateau.example', origin: 'https://plateau.example' }, true],
     ['the public origin, whatever Host the proxy sends', 'https://plateau.example', { host: '10.0.0.7:4321', origin: 'https://plateau.example' }, true],
     ['a foreign origin', 'https://plateau.example', { host: 'plateau.example', origin: 'https://evil.example' }, false],
-    ['a foreign origin matching a forged X-Forwarded-Host', 'https://plateau.example', { host: 'plateau.example', 'x-forwarded-host': 'evil.example', origin: 'https://evil.example' }, false],
+    [
+      'a foreign origin matching a forged X-Forwarded-Host',
+      'https://plateau.example',
+      { host: 'plateau.example', 'x-forwarded-host': 'evil.example', origin: 'https://evil.example' },
+      false,
+    ],
     ['plain http to an https site', 'https://plateau.example', { host: 'plateau.example', origin: 'http://plateau.example' }, false],
-    ['DNS rebinding: Host and Origin agree on a foreign name', 'http://127.0.0.1:4321', { host: 'rebind.example:4321', origin: 'http://rebind.example:4321' }, false],
+    [
+      'DNS rebinding: Host and Origin agree on a foreign name',
+      'http://127.0.0.1:4321',
+      { host: 'rebind.example:4321', origin: 'http://rebind.example:4321' },
+      false,
+    ],
     ['the same host name on another port (a dev server)', 'http://127.0.0.1:4321', { host: '127.0.0.1:4500', origin: 'http://127.0.0.1:4500' }, true],
     ['the same host name, but Origin names a third port', 'http://127.0.0.1:4321', { host: '127.0.0.1:4500', origin: 'http://127.0.0.1:9999' }, false],
     ['loopback spelled localhost', 'http://127.0.0.1:4321', { host: 'localhost:4321', origin: 'http://localhost:4321' }, true],

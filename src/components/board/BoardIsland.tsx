@@ -41,7 +41,10 @@ export default function BoardIsland(props: BoardIslandProps) {
   const [live, setLive] = useState('');
   const dragging = useRef(false);
   const data = useBoardData({
-    initial: props.initial, zoom: props.zoom, anchor: props.anchor, paused: dragging,
+    initial: props.initial,
+    zoom: props.zoom,
+    anchor: props.anchor,
+    paused: dragging,
     onError: (text) => setNotice({ tone: 'error', text }),
   });
   const editing = useRunEditing(data, { setNotice, setLive });
@@ -53,33 +56,81 @@ export default function BoardIsland(props: BoardIslandProps) {
 
   return (
     <div className="board-root">
-      <BoardToolbar zoom={zoom} rangeLabel={rangeLabel(data.win)} canBook={props.canBook} noStills={board.stills.length === 0}
-        onShift={(direction) => data.setAnchor(shiftAnchor(anchor, zoom, direction))} onToday={() => data.setAnchor(props.today)}
-        onZoom={data.setZoom} onBook={editing.bookRun} />
-      <p className="board-tz">Times are {tz}. {props.canMove ? 'Drag a run, or focus it and press space, then the arrow keys (shift + arrow moves a day), then space to drop.' : 'You can read the board; planners and distillers move runs.'}</p>
+      <BoardToolbar
+        zoom={zoom}
+        rangeLabel={rangeLabel(data.win)}
+        canBook={props.canBook}
+        noStills={board.stills.length === 0}
+        onShift={(direction) => data.setAnchor(shiftAnchor(anchor, zoom, direction))}
+        onToday={() => data.setAnchor(props.today)}
+        onZoom={data.setZoom}
+        onBook={editing.bookRun}
+      />
+      <p className="board-tz">
+        Times are {tz}.{' '}
+        {props.canMove
+          ? 'Drag a run, or focus it and press space, then the arrow keys (shift + arrow moves a day), then space to drop.'
+          : 'You can read the board; planners and distillers move runs.'}
+      </p>
       {notice && (
-        <div className={`board-notice ${notice.tone === 'error' ? 'is-error' : ''}`} role={notice.tone === 'error' ? 'alert' : 'status'} data-testid="board-notice">
+        <div
+          className={`board-notice ${notice.tone === 'error' ? 'is-error' : ''}`}
+          role={notice.tone === 'error' ? 'alert' : 'status'}
+          data-testid="board-notice"
+        >
           <span>{notice.text}</span>
-          <button type="button" className="btn-quiet notice-close" onClick={() => setNotice(null)} aria-label="Dismiss">✕</button>
+          <button type="button" className="btn-quiet notice-close" onClick={() => setNotice(null)} aria-label="Dismiss">
+            ✕
+          </button>
         </div>
       )}
-      <div aria-live="assertive" className="sr-only" data-testid="board-live">{live}</div>
+      <div aria-live="assertive" className="sr-only" data-testid="board-live">
+        {live}
+      </div>
 
       <div className="board-layout">
         {/* A fixed id: React 19 renders the island on the server, and dnd-kit's generated ids must match on hydration. */}
         <DndContext id="plateau-board" {...drag.contextProps}>
-          <BoardTimeline data={data} editing={editing} preview={drag.preview} today={props.today} units={props.units} canBook={props.canBook} canMove={props.canMove} />
+          <BoardTimeline
+            data={data}
+            editing={editing}
+            preview={drag.preview}
+            today={props.today}
+            units={props.units}
+            canBook={props.canBook}
+            canMove={props.canMove}
+          />
           <aside className="board-side" aria-label="Planning">
-            <RisksPanel atRisk={atRisk} suggestions={suggestions} fermentById={data.fermentById} stillName={data.names.still} stableDays={board.stableDays}
-              timeZone={tz} canMove={props.canMove} onOpen={editing.openRun} onFindSlots={findSlots} onMoveHere={moveHere} />
+            <RisksPanel
+              atRisk={atRisk}
+              suggestions={suggestions}
+              fermentById={data.fermentById}
+              stillName={data.names.still}
+              stableDays={board.stableDays}
+              timeZone={tz}
+              canMove={props.canMove}
+              onOpen={editing.openRun}
+              onFindSlots={findSlots}
+              onMoveHere={moveHere}
+            />
             <WashesPanel bookable={bookable} units={props.units} timeZone={tz} canBook={props.canBook} onBook={editing.bookFerment} />
             <BoardLegend />
           </aside>
         </DndContext>
       </div>
       {editing.dialog && (
-        <RunDialog board={board} draft={editing.dialog} units={props.units} canBook={props.canBook} canOperate={props.canOperate} busy={editing.busy}
-          error={editing.dialogError} onClose={editing.closeDialog} onSave={editing.onSave} onAction={editing.onAction} />
+        <RunDialog
+          board={board}
+          draft={editing.dialog}
+          units={props.units}
+          canBook={props.canBook}
+          canOperate={props.canOperate}
+          busy={editing.busy}
+          error={editing.dialogError}
+          onClose={editing.closeDialog}
+          onSave={editing.onSave}
+          onAction={editing.onAction}
+        />
       )}
     </div>
   );

@@ -4,7 +4,16 @@
  */
 import { useEffect, useMemo, useRef, type ReactNode } from 'react';
 import {
-  canvasWidth, closedSpans, initialScrollLeft, readyWindowSpans, runBlockLayout, runsByStill, xOf, HEADER_HEIGHT, LABEL_WIDTH, ROW_HEIGHT,
+  canvasWidth,
+  closedSpans,
+  initialScrollLeft,
+  readyWindowSpans,
+  runBlockLayout,
+  runsByStill,
+  xOf,
+  HEADER_HEIGHT,
+  LABEL_WIDTH,
+  ROW_HEIGHT,
 } from '../../lib/board';
 import type { Warning } from '../../lib/schedule';
 import type { UnitSystem } from '../../lib/units';
@@ -51,10 +60,23 @@ export function BoardTimeline(p: {
     const context = { stillById, fermentById, personById, windowStart: win.start, pxPerHour: spec.pxPerHour, timeZone: tz, zoom, units: p.units };
     const out = new Map<number, ReactNode[]>();
     for (const [stillId, list] of runs) {
-      out.set(stillId, list.map((r) => (
-        <RunBlock key={r.id} run={r} {...runBlockLayout(r, context)} rowHeight={ROW_HEIGHT} warnings={warnings.get(r.id) ?? NO_WARNINGS}
-          canMove={p.canMove} compact={compact} onOpen={openRun} onResize={onResize} onResizeKey={onResizeKey} />
-      )));
+      out.set(
+        stillId,
+        list.map((r) => (
+          <RunBlock
+            key={r.id}
+            run={r}
+            {...runBlockLayout(r, context)}
+            rowHeight={ROW_HEIGHT}
+            warnings={warnings.get(r.id) ?? NO_WARNINGS}
+            canMove={p.canMove}
+            compact={compact}
+            onOpen={openRun}
+            onResize={onResize}
+            onResizeKey={onResizeKey}
+          />
+        )),
+      );
     }
     return out;
   }, [runs, stillById, fermentById, personById, win.start, spec.pxPerHour, tz, zoom, p.units, warnings, p.canMove, compact, openRun, onResize, onResizeKey]);
@@ -62,21 +84,47 @@ export function BoardTimeline(p: {
   const previewRow = p.preview ? stillIds.indexOf(p.preview.stillId) : -1;
 
   return (
-    <div className="board-scroll" ref={scrollRef} data-testid="board-scroll" tabIndex={0} role="region" aria-label="Still board timeline (scroll sideways with the arrow keys)">
+    <div
+      className="board-scroll"
+      ref={scrollRef}
+      data-testid="board-scroll"
+      tabIndex={0}
+      role="region"
+      aria-label="Still board timeline (scroll sideways with the arrow keys)"
+    >
       <div className="board-canvas" style={{ width: LABEL_WIDTH + width }}>
         <BoardAxis win={win} zoom={zoom} today={p.today} timeZone={tz} pxPerHour={spec.pxPerHour} width={width} />
         {board.stills.length === 0 && <p className="p-4">No stills yet. A manager adds them under Stills &amp; fermenters.</p>}
         {board.stills.map((s) => (
-          <StillRow key={s.id} still={s} units={p.units} width={width} closed={closed.get(s.id) ?? NO_SPANS} windows={windows.get(s.id) ?? NO_WINDOWS}
-            onEmptyClick={onEmptyClick} canBook={p.canBook}>
+          <StillRow
+            key={s.id}
+            still={s}
+            units={p.units}
+            width={width}
+            closed={closed.get(s.id) ?? NO_SPANS}
+            windows={windows.get(s.id) ?? NO_WINDOWS}
+            onEmptyClick={onEmptyClick}
+            canBook={p.canBook}
+          >
             {blocks.get(s.id)}
           </StillRow>
         ))}
         {board.now >= win.start && board.now < win.end && (
-          <div className="now-line" style={{ left: LABEL_WIDTH + xOf(board.now, win.start, spec.pxPerHour), top: HEADER_HEIGHT, height: board.stills.length * ROW_HEIGHT }} aria-hidden="true" />
+          <div
+            className="now-line"
+            style={{ left: LABEL_WIDTH + xOf(board.now, win.start, spec.pxPerHour), top: HEADER_HEIGHT, height: board.stills.length * ROW_HEIGHT }}
+            aria-hidden="true"
+          />
         )}
         {p.preview && previewRow >= 0 && (
-          <DropGhost preview={p.preview} row={previewRow} windowStart={win.start} pxPerHour={spec.pxPerHour} stillName={names.still(p.preview.stillId)} timeZone={tz} />
+          <DropGhost
+            preview={p.preview}
+            row={previewRow}
+            windowStart={win.start}
+            pxPerHour={spec.pxPerHour}
+            stillName={names.still(p.preview.stillId)}
+            timeZone={tz}
+          />
         )}
         <VesselBand board={board} win={win} pxPerHour={spec.pxPerHour} width={width} />
       </div>

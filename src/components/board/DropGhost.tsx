@@ -8,7 +8,9 @@ export function DropGhost(p: { preview: DragPreview; row: number; windowStart: D
   return (
     <div className="drop-ghost" data-testid="drop-preview" style={dropGhostBox(preview, p.row, p.windowStart, p.pxPerHour)}>
       <span className="drop-ghost-label">
-        <span className="drop-ghost-time">{p.stillName}, {dayAndTime(preview.startsAt, p.timeZone)}</span>
+        <span className="drop-ghost-time">
+          {p.stillName}, {dayAndTime(preview.startsAt, p.timeZone)}
+        </span>
         <WarningBadges warnings={preview.warnings} />
         {preview.warnings.filter((w) => w.severity !== 'info').length === 0 && <span className="text-xs">no warnings</span>}
       </span>

@@ -4,7 +4,13 @@ import type { BoardFerment } from '../../lib/board';
 import { FORECAST_STATUS_LABELS } from '../../lib/vocabulary';
 
 const STATUS_TAG: Record<string, string> = {
-  finished: 'tag-settled', slowing: 'tag-working', active: 'tag-working', lag: 'tag-quiet', insufficient_data: 'tag-quiet', stalled: 'tag-stalled', souring: 'tag-souring',
+  finished: 'tag-settled',
+  slowing: 'tag-working',
+  active: 'tag-working',
+  lag: 'tag-quiet',
+  insufficient_data: 'tag-quiet',
+  stalled: 'tag-stalled',
+  souring: 'tag-souring',
 };
 
 export interface FermentChipProps {
@@ -34,10 +40,14 @@ function FermentChipInner(p: FermentChipProps) {
       >
         <span className="font-bold">{p.ferment.code}</span>
         <span className={`tag ${STATUS_TAG[p.ferment.status] ?? 'tag-quiet'}`}>{FORECAST_STATUS_LABELS[p.ferment.status] ?? p.ferment.status}</span>
-        <span className="block w-full text-xs text-ink-soft">{p.whenText} · {p.unbookedText} free</span>
+        <span className="block w-full text-xs text-ink-soft">
+          {p.whenText} · {p.unbookedText} free
+        </span>
       </div>
       {p.canBook && (
-        <button type="button" className="btn-quiet chip-book" onClick={() => p.onBook(p.ferment.id)} aria-label={`Book wash ${p.ferment.code} on a still`}>Book</button>
+        <button type="button" className="btn-quiet chip-book" onClick={() => p.onBook(p.ferment.id)} aria-label={`Book wash ${p.ferment.code} on a still`}>
+          Book
+        </button>
       )}
     </li>
   );

@@ -21,7 +21,9 @@ export function RisksPanel(p: {
   const tz = p.timeZone;
   return (
     <section className="side-card" aria-labelledby="risk-h">
-      <h3 id="risk-h">Runs at risk <span className="count">{p.atRisk.length}</span></h3>
+      <h3 id="risk-h">
+        Runs at risk <span className="count">{p.atRisk.length}</span>
+      </h3>
       {p.atRisk.length === 0 && <p className="text-sm text-ink-soft">No booked run is waiting on a late, stalled or souring wash.</p>}
       <ul className="risk-list">
         {p.atRisk.map(({ run, reasons }) => {
@@ -32,20 +34,38 @@ export function RisksPanel(p: {
                 {RUN_TYPE_LABELS[run.type]} · {p.stillName(run.stillId)} · {dayAndTime(run.startsAt, tz)}
               </button>
               <p className="text-sm">
-                {reasons.map((x) => <span key={x.fermentId} className="block">Wash {x.code} {why(x, p.fermentById.get(x.fermentId), tz)}</span>)}
+                {reasons.map((x) => (
+                  <span key={x.fermentId} className="block">
+                    Wash {x.code} {why(x, p.fermentById.get(x.fermentId), tz)}
+                  </span>
+                ))}
               </p>
-              {p.canMove && !sug && <button type="button" className="btn btn-quiet" onClick={() => p.onFindSlots(run.id)}>Find earliest slots</button>}
+              {p.canMove && !sug && (
+                <button type="button" className="btn btn-quiet" onClick={() => p.onFindSlots(run.id)}>
+                  Find earliest slots
+                </button>
+              )}
               {sug?.loading && <p className="text-sm">Looking for slots…</p>}
               {sug?.error && <p className="field-error">{sug.error}</p>}
               {sug && !sug.loading && !sug.error && (
                 <div>
-                  {sug.notBefore && <p className="text-xs text-ink-soft">Not before {dayAndTime(new Date(sug.notBefore), tz)}{reasons.some((x) => x.why !== 'late') ? ` (a fresh ${p.stableDays}-day stable period)` : ' (after the ready window)'}</p>}
+                  {sug.notBefore && (
+                    <p className="text-xs text-ink-soft">
+                      Not before {dayAndTime(new Date(sug.notBefore), tz)}
+                      {reasons.some((x) => x.why !== 'late') ? ` (a fresh ${p.stableDays}-day stable period)` : ' (after the ready window)'}
+                    </p>
+                  )}
                   {sug.slots.length === 0 && <p className="text-sm">No free slot in the next four weeks on a still that takes this charge.</p>}
                   <ul className="slot-list">
                     {sug.slots.map((s) => (
                       <li key={`${s.stillId}-${s.startsAt.getTime()}`}>
-                        <span>{p.stillName(s.stillId)}, {dayAndTime(s.startsAt, tz)} <span className="text-ink-soft">({shortDate(wallClock(s.startsAt, tz).ymd, wallClock(s.startsAt, tz).weekday)})</span></span>
-                        <button type="button" className="btn" onClick={() => p.onMoveHere(run, { stillId: s.stillId, startsAt: s.startsAt, endsAt: s.endsAt })}>Move here</button>
+                        <span>
+                          {p.stillName(s.stillId)}, {dayAndTime(s.startsAt, tz)}{' '}
+                          <span className="text-ink-soft">({shortDate(wallClock(s.startsAt, tz).ymd, wallClock(s.startsAt, tz).weekday)})</span>
+                        </span>
+                        <button type="button" className="btn" onClick={() => p.onMoveHere(run, { stillId: s.stillId, startsAt: s.startsAt, endsAt: s.endsAt })}>
+                          Move here
+                        </button>
                       </li>
                     ))}
                   </ul>

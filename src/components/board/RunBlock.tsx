@@ -32,7 +32,6 @@ const TYPE_CLASS: Record<BoardRun['type'], string> = {
   maintenance: 'run-maintenance',
 };
 
-
 const PLACEMENT_TEXT: Record<WindowPlacement, string> = {
   before: 'starts before its wash is ready',
   inside: 'starts inside its wash’s ready window',
@@ -45,14 +44,23 @@ const PLACEMENT_TEXT: Record<WindowPlacement, string> = {
  * drop target under the pointer changes, and that must not redraw 500 blocks' contents.
  */
 const RunBlockBody = memo(function RunBlockBody(p: {
-  type: BoardRun['type']; compact: boolean; width: number; narrow: boolean; fermentCodes: string; chargeText: string; operatorText: string;
-  warnings: readonly Warning[]; cleaningWidth: number;
+  type: BoardRun['type'];
+  compact: boolean;
+  width: number;
+  narrow: boolean;
+  fermentCodes: string;
+  chargeText: string;
+  operatorText: string;
+  warnings: readonly Warning[];
+  cleaningWidth: number;
 }) {
   return (
     <>
       <div className="run-body" style={{ width: p.width }}>
         <div className="run-line1">
-          <span className="run-type">{p.compact ? RUN_TYPE_ABBREVIATIONS[p.type].slice(0, 1) : p.narrow ? RUN_TYPE_ABBREVIATIONS[p.type] : RUN_TYPE_LABELS[p.type]}</span>
+          <span className="run-type">
+            {p.compact ? RUN_TYPE_ABBREVIATIONS[p.type].slice(0, 1) : p.narrow ? RUN_TYPE_ABBREVIATIONS[p.type] : RUN_TYPE_LABELS[p.type]}
+          </span>
           {!p.compact && p.fermentCodes && <span className="run-codes">{p.fermentCodes}</span>}
         </div>
         {!p.compact && (
@@ -90,35 +98,44 @@ function RunBlockInner(p: RunBlockProps) {
 
   return (
     <>
-    {/* dnd-kit's spread attributes give this block role="button", tabIndex and its keyboard handling. */}
-    {/* eslint-disable-next-line jsx-a11y/no-static-element-interactions */}
-    <div
-      ref={setNodeRef}
-      className={`run-block ${TYPE_CLASS[p.run.type]} status-${p.run.status} place-${p.placement}${isDragging ? ' is-dragging' : ''}${movable ? '' : ' is-fixed'}`}
-      style={style}
-      data-run-id={p.run.id}
-      data-testid={`run-${p.run.id}`}
-      {...attributes}
-      {...listeners}
-      aria-roledescription={movable ? 'movable run' : 'run'}
-      aria-label={label}
-      title={label}
-      onKeyDown={(e) => {
-        if (e.key === 'Enter') {
-          e.preventDefault();
+      {/* dnd-kit's spread attributes give this block role="button", tabIndex and its keyboard handling. */}
+      {/* eslint-disable-next-line jsx-a11y/no-static-element-interactions */}
+      <div
+        ref={setNodeRef}
+        className={`run-block ${TYPE_CLASS[p.run.type]} status-${p.run.status} place-${p.placement}${isDragging ? ' is-dragging' : ''}${movable ? '' : ' is-fixed'}`}
+        style={style}
+        data-run-id={p.run.id}
+        data-testid={`run-${p.run.id}`}
+        {...attributes}
+        {...listeners}
+        aria-roledescription={movable ? 'movable run' : 'run'}
+        aria-label={label}
+        title={label}
+        onKeyDown={(e) => {
+          if (e.key === 'Enter') {
+            e.preventDefault();
+            p.onOpen(p.run.id);
+            return;
+          }
+          listeners?.onKeyDown?.(e);
+        }}
+        onClick={(e) => {
+          e.stopPropagation();
           p.onOpen(p.run.id);
-          return;
-        }
-        listeners?.onKeyDown?.(e);
-      }}
-      onClick={(e) => {
-        e.stopPropagation();
-        p.onOpen(p.run.id);
-      }}
-    >
-      <RunBlockBody type={p.run.type} compact={p.compact} width={width} narrow={p.width < 90} fermentCodes={p.fermentCodes}
-        chargeText={p.chargeText} operatorText={p.operatorText} warnings={p.warnings} cleaningWidth={p.cleaningWidth} />
-    </div>
+        }}
+      >
+        <RunBlockBody
+          type={p.run.type}
+          compact={p.compact}
+          width={width}
+          narrow={p.width < 90}
+          fermentCodes={p.fermentCodes}
+          chargeText={p.chargeText}
+          operatorText={p.operatorText}
+          warnings={p.warnings}
+          cleaningWidth={p.cleaningWidth}
+        />
+      </div>
       {movable && !p.compact && !isDragging && (
         <button
           type="button"
@@ -148,8 +165,14 @@ function RunBlockInner(p: RunBlockProps) {
           onClick={(e) => e.stopPropagation()}
           onKeyDown={(e) => {
             e.stopPropagation();
-            if (e.key === 'ArrowRight') { e.preventDefault(); p.onResizeKey(p.run.id, 1); }
-            if (e.key === 'ArrowLeft') { e.preventDefault(); p.onResizeKey(p.run.id, -1); }
+            if (e.key === 'ArrowRight') {
+              e.preventDefault();
+              p.onResizeKey(p.run.id, 1);
+            }
+            if (e.key === 'ArrowLeft') {
+              e.preventDefault();
+              p.onResizeKey(p.run.id, -1);
+            }
           }}
         />
       )}

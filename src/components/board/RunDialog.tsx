@@ -27,7 +27,6 @@ export interface RunDialogProps {
   onAction: (action: 'cancel' | 'start' | 'finish', run: BoardRun) => void;
 }
 
-
 function localInput(date: Date, tz: string): string {
   const w = wallClock(date, tz);
   return `${w.ymd}T${w.hm}`;
@@ -71,14 +70,28 @@ export function RunDialog(p: RunDialogProps) {
   const preview: Warning[] = useMemo(() => {
     if (!startsAt || !(duration > 0)) return [];
     const run = toScheduleRun({
-      id: existing?.id ?? -1, stillId, type, status: existing && !editable ? existing.status : status, startsAt,
-      endsAt: new Date(startsAt.getTime() + duration * 60000), operatorId: operatorId ? Number(operatorId) : null,
-      chargeLitres, chargeAbv: null, ferments: type === 'stripping' || type === 'redistillation' ? lines : [],
-      feeds: type === 'spirit' || type === 'redistillation' ? feeds : [], lowWinesLitres: existing?.lowWinesLitres ?? null, version: 0, sequence: 0, notes: null,
+      id: existing?.id ?? -1,
+      stillId,
+      type,
+      status: existing && !editable ? existing.status : status,
+      startsAt,
+      endsAt: new Date(startsAt.getTime() + duration * 60000),
+      operatorId: operatorId ? Number(operatorId) : null,
+      chargeLitres,
+      chargeAbv: null,
+      ferments: type === 'stripping' || type === 'redistillation' ? lines : [],
+      feeds: type === 'spirit' || type === 'redistillation' ? feeds : [],
+      lowWinesLitres: existing?.lowWinesLitres ?? null,
+      version: 0,
+      sequence: 0,
+      notes: null,
     });
     return computeRunWarnings(run, {
-      still: toScheduleStill(still), runs: board.runs.filter((r) => r.id !== existing?.id).map(toScheduleRun),
-      ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: tz, now: board.now,
+      still: toScheduleStill(still),
+      runs: board.runs.filter((r) => r.id !== existing?.id).map(toScheduleRun),
+      ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])),
+      timeZone: tz,
+      now: board.now,
     });
     // Recomputed when the form's fields change; the board and the run being edited are fixed while the dialog is open.
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -93,8 +106,14 @@ export function RunDialog(p: RunDialogProps) {
     if (!startsAt) return;
     const endsAt = new Date(startsAt.getTime() + duration * 60000);
     const body: Record<string, unknown> = {
-      stillId, type, status, startsAt: startsAt.toISOString(), endsAt: endsAt.toISOString(),
-      operatorId: operatorId ? Number(operatorId) : null, chargeLitres, notes: notes.trim() || null,
+      stillId,
+      type,
+      status,
+      startsAt: startsAt.toISOString(),
+      endsAt: endsAt.toISOString(),
+      operatorId: operatorId ? Number(operatorId) : null,
+      chargeLitres,
+      notes: notes.trim() || null,
       ferments: type === 'stripping' || type === 'redistillation' ? lines.filter((l) => l.litres > 0) : [],
       feeds: type === 'spirit' || type === 'redistillation' ? feeds.filter((l) => l.litres > 0) : [],
     };
@@ -104,27 +123,54 @@ export function RunDialog(p: RunDialogProps) {
 
   const heading = existing ? `${RUN_TYPE_LABELS[existing.type]} on ${stillName(existing.stillId)}` : 'Book a run';
   return (
-    <dialog ref={ref} className="run-dialog" aria-labelledby="run-dialog-title" onClose={p.onClose} onCancel={(e) => { e.preventDefault(); p.onClose(); }}>
+    <dialog
+      ref={ref}
+      className="run-dialog"
+      aria-labelledby="run-dialog-title"
+      onClose={p.onClose}
+      onCancel={(e) => {
+        e.preventDefault();
+        p.onClose();
+      }}
+    >
       <form onSubmit={submit} className="flex flex-col gap-3">
         <div className="flex items-start justify-between gap-3">
           <div>
             <h2 id="run-dialog-title">{heading}</h2>
-            {existing && <p className="text-sm text-ink-soft">{RUN_STATUS_LABELS[existing.status]} · version {existing.version} · <a href={`/runs/${existing.id}`}>Open the run page</a></p>}
+            {existing && (
+              <p className="text-sm text-ink-soft">
+                {RUN_STATUS_LABELS[existing.status]} · version {existing.version} · <a href={`/runs/${existing.id}`}>Open the run page</a>
+              </p>
+            )}
           </div>
-          <button type="button" className="btn btn-quiet" onClick={p.onClose} aria-label="Close">✕</button>
+          <button type="button" className="btn btn-quiet" onClick={p.onClose} aria-label="Close">
+            ✕
+          </button>
         </div>
-        {p.error && <p className="field-error" role="alert">{p.error}</p>}
+        {p.error && (
+          <p className="field-error" role="alert">
+            {p.error}
+          </p>
+        )}
         <fieldset disabled={!editable || p.busy} className="grid grid-cols-1 gap-3 sm:grid-cols-2">
           <div className="field">
             <label htmlFor="rd-type">Run type</label>
             <select id="rd-type" className="input" value={type} onChange={(e) => setType(e.target.value as RunType)}>
-              {RUN_TYPES.map((t) => <option key={t} value={t}>{RUN_TYPE_LABELS[t]}</option>)}
+              {RUN_TYPES.map((t) => (
+                <option key={t} value={t}>
+                  {RUN_TYPE_LABELS[t]}
+                </option>
+              ))}
             </select>
           </div>
           <div className="field">
             <label htmlFor="rd-still">Still</label>
             <select id="rd-still" className="input" value={stillId} onChange={(e) => setStillId(Number(e.target.value))}>
-              {board.stills.map((s) => <option key={s.id} value={s.id}>{s.name} ({formatVolume(s.capacityLitres, p.units)})</option>)}
+              {board.stills.map((s) => (
+                <option key={s.id} value={s.id}>
+                  {s.name} ({formatVolume(s.capacityLitres, p.units)})
+                </option>
+              ))}
             </select>
           </div>
           <div className="field">
@@ -133,8 +179,23 @@ export function RunDialog(p: RunDialogProps) {
           </div>
           <div className="field">
             <label htmlFor="rd-minutes">Length in minutes</label>
-            <input id="rd-minutes" className="input" type="number" min={1} max={10080} placeholder={String(suggested)} value={minutes} onChange={(e) => setMinutes(e.target.value)} />
-            <span className="text-xs text-ink-soft">Estimate: {suggested} min (heat-up of the charge on {still.heatingKw} kW plus {still.typicalMinutes[type]} min typical{still.cleaningAfterRunMinutes && (type === 'stripping' || type === 'spirit' || type === 'redistillation') ? `; then ${still.cleaningAfterRunMinutes} min cleaning` : ''}).</span>
+            <input
+              id="rd-minutes"
+              className="input"
+              type="number"
+              min={1}
+              max={10080}
+              placeholder={String(suggested)}
+              value={minutes}
+              onChange={(e) => setMinutes(e.target.value)}
+            />
+            <span className="text-xs text-ink-soft">
+              Estimate: {suggested} min (heat-up of the charge on {still.heatingKw} kW plus {still.typicalMinutes[type]} min typical
+              {still.cleaningAfterRunMinutes && (type === 'stripping' || type === 'spirit' || type === 'redistillation')
+                ? `; then ${still.cleaningAfterRunMinutes} min cleaning`
+                : ''}
+              ).
+            </span>
           </div>
           <div className="field">
             <label htmlFor="rd-charge">Charge ({unit === 'L' ? 'litres' : 'US gallons'})</label>
@@ -145,7 +206,13 @@ export function RunDialog(p: RunDialogProps) {
             <label htmlFor="rd-operator">Operator</label>
             <select id="rd-operator" className="input" value={operatorId} onChange={(e) => setOperatorId(e.target.value)}>
               <option value="">Nobody yet</option>
-              {board.people.filter((x) => x.role !== 'staff').map((x) => <option key={x.id} value={x.id}>{x.name}</option>)}
+              {board.people
+                .filter((x) => x.role !== 'staff')
+                .map((x) => (
+                  <option key={x.id} value={x.id}>
+                    {x.name}
+                  </option>
+                ))}
             </select>
           </div>
           <div className="field">
@@ -160,19 +227,43 @@ export function RunDialog(p: RunDialogProps) {
               <span className="label">Washes in the charge</span>
               {lines.map((l, i) => (
                 <div key={i} className="flex flex-wrap items-center gap-2">
-                  <label className="sr-only" htmlFor={`rd-f-${i}`}>Wash {i + 1}</label>
-                  <select id={`rd-f-${i}`} className="input" value={l.fermentId} onChange={(e) => setLines(lines.map((x, j) => (j === i ? { ...x, fermentId: Number(e.target.value) } : x)))}>
-                    {openFerments.map((f) => <option key={f.id} value={f.id}>{f.code} ({formatVolume(f.volumeLitres, p.units)}, {f.status.replace('_', ' ')})</option>)}
+                  <label className="sr-only" htmlFor={`rd-f-${i}`}>
+                    Wash {i + 1}
+                  </label>
+                  <select
+                    id={`rd-f-${i}`}
+                    className="input"
+                    value={l.fermentId}
+                    onChange={(e) => setLines(lines.map((x, j) => (j === i ? { ...x, fermentId: Number(e.target.value) } : x)))}
+                  >
+                    {openFerments.map((f) => (
+                      <option key={f.id} value={f.id}>
+                        {f.code} ({formatVolume(f.volumeLitres, p.units)}, {f.status.replace('_', ' ')})
+                      </option>
+                    ))}
                   </select>
-                  <label className="sr-only" htmlFor={`rd-fl-${i}`}>Litres of wash {i + 1}</label>
-                  <input id={`rd-fl-${i}`} className="input w-28" type="number" min={0} step="any" value={toUnit(l.litres)}
-                    onChange={(e) => setLines(lines.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))} />
+                  <label className="sr-only" htmlFor={`rd-fl-${i}`}>
+                    Litres of wash {i + 1}
+                  </label>
+                  <input
+                    id={`rd-fl-${i}`}
+                    className="input w-28"
+                    type="number"
+                    min={0}
+                    step="any"
+                    value={toUnit(l.litres)}
+                    onChange={(e) => setLines(lines.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))}
+                  />
                   <span>{unit}</span>
-                  <button type="button" className="btn btn-quiet" onClick={() => setLines(lines.filter((_, j) => j !== i))}>Remove</button>
+                  <button type="button" className="btn btn-quiet" onClick={() => setLines(lines.filter((_, j) => j !== i))}>
+                    Remove
+                  </button>
                 </div>
               ))}
               {openFerments.length > 0 && (
-                <button type="button" className="btn btn-quiet self-start" onClick={() => setLines([...lines, { fermentId: openFerments[0]!.id, litres: 0 }])}>Add a wash</button>
+                <button type="button" className="btn btn-quiet self-start" onClick={() => setLines([...lines, { fermentId: openFerments[0]!.id, litres: 0 }])}>
+                  Add a wash
+                </button>
               )}
             </div>
           )}
@@ -181,19 +272,43 @@ export function RunDialog(p: RunDialogProps) {
               <span className="label">Low wines from stripping runs</span>
               {feeds.map((l, i) => (
                 <div key={i} className="flex flex-wrap items-center gap-2">
-                  <label className="sr-only" htmlFor={`rd-r-${i}`}>Feeding run {i + 1}</label>
-                  <select id={`rd-r-${i}`} className="input" value={l.runId} onChange={(e) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, runId: Number(e.target.value) } : x)))}>
-                    {strippingRuns.map((r) => <option key={r.id} value={r.id}>{stillName(r.stillId)} {localInput(r.startsAt, tz).replace('T', ' ')}</option>)}
+                  <label className="sr-only" htmlFor={`rd-r-${i}`}>
+                    Feeding run {i + 1}
+                  </label>
+                  <select
+                    id={`rd-r-${i}`}
+                    className="input"
+                    value={l.runId}
+                    onChange={(e) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, runId: Number(e.target.value) } : x)))}
+                  >
+                    {strippingRuns.map((r) => (
+                      <option key={r.id} value={r.id}>
+                        {stillName(r.stillId)} {localInput(r.startsAt, tz).replace('T', ' ')}
+                      </option>
+                    ))}
                   </select>
-                  <label className="sr-only" htmlFor={`rd-rl-${i}`}>Litres from feeding run {i + 1}</label>
-                  <input id={`rd-rl-${i}`} className="input w-28" type="number" min={0} step="any" value={toUnit(l.litres)}
-                    onChange={(e) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))} />
+                  <label className="sr-only" htmlFor={`rd-rl-${i}`}>
+                    Litres from feeding run {i + 1}
+                  </label>
+                  <input
+                    id={`rd-rl-${i}`}
+                    className="input w-28"
+                    type="number"
+                    min={0}
+                    step="any"
+                    value={toUnit(l.litres)}
+                    onChange={(e) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))}
+                  />
                   <span>{unit}</span>
-                  <button type="button" className="btn btn-quiet" onClick={() => setFeeds(feeds.filter((_, j) => j !== i))}>Remove</button>
+                  <button type="button" className="btn btn-quiet" onClick={() => setFeeds(feeds.filter((_, j) => j !== i))}>
+                    Remove
+                  </button>
                 </div>
               ))}
               {strippingRuns.length > 0 && (
-                <button type="button" className="btn btn-quiet self-start" onClick={() => setFeeds([...feeds, { runId: strippingRuns[0]!.id, litres: 0 }])}>Add a feeding run</button>
+                <button type="button" className="btn btn-quiet self-start" onClick={() => setFeeds([...feeds, { runId: strippingRuns[0]!.id, litres: 0 }])}>
+                  Add a feeding run
+                </button>
               )}
             </div>
           )}
@@ -204,23 +319,41 @@ export function RunDialog(p: RunDialogProps) {
         </fieldset>
         {preview.length > 0 && (
           <ul className="run-dialog-warnings" aria-label="Warnings for this booking">
-            {preview.map((w, i) => <li key={i} className={`wl wl-${w.severity}`}>{w.message}</li>)}
+            {preview.map((w, i) => (
+              <li key={i} className={`wl wl-${w.severity}`}>
+                {w.message}
+              </li>
+            ))}
           </ul>
         )}
         <details className="caution">
           <summary className="font-semibold">Before you run a still</summary>
-          <ul className="mt-2 list-disc pl-5 text-sm">{SAFETY_CAUTIONS.map((c) => <li key={c}>{c}</li>)}</ul>
+          <ul className="mt-2 list-disc pl-5 text-sm">
+            {SAFETY_CAUTIONS.map((c) => (
+              <li key={c}>{c}</li>
+            ))}
+          </ul>
         </details>
         <div className="flex flex-wrap gap-2">
-          {editable && <button type="submit" className="btn" disabled={p.busy}>{existing ? 'Save changes' : 'Book run'}</button>}
+          {editable && (
+            <button type="submit" className="btn" disabled={p.busy}>
+              {existing ? 'Save changes' : 'Book run'}
+            </button>
+          )}
           {existing && p.canOperate && (existing.status === 'planned' || existing.status === 'confirmed') && (
-            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('start', existing)}>Start run</button>
+            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('start', existing)}>
+              Start run
+            </button>
           )}
           {existing && p.canOperate && existing.status === 'running' && (
-            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('finish', existing)}>Finish run</button>
+            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('finish', existing)}>
+              Finish run
+            </button>
           )}
           {existing && p.canBook && (existing.status === 'planned' || existing.status === 'confirmed') && (
-            <button type="button" className="btn btn-danger ml-auto" disabled={p.busy} onClick={() => p.onAction('cancel', existing)}>Cancel this run</button>
+            <button type="button" className="btn btn-danger ml-auto" disabled={p.busy} onClick={() => p.onAction('cancel', existing)}>
+              Cancel this run
+            </button>
           )}
         </div>
       </form>

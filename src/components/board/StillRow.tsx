@@ -24,14 +24,20 @@ function StillLane(props: {
     // A click on an empty stretch of lane is a mouse shortcut; keyboard and screen-reader users book
     // through the "Book a run" button and the run dialog, which do the same.
     // eslint-disable-next-line jsx-a11y/click-events-have-key-events, jsx-a11y/no-static-element-interactions
-    <div className={`lane${isOver ? ' is-over' : ''}`} style={{ width: props.width, height: ROW_HEIGHT }} ref={setNodeRef}
+    <div
+      className={`lane${isOver ? ' is-over' : ''}`}
+      style={{ width: props.width, height: ROW_HEIGHT }}
+      ref={setNodeRef}
       data-testid={`lane-${props.still.id}`}
       onClick={(e) => {
         if (!props.canBook || e.target !== e.currentTarget) return;
         const rect = e.currentTarget.getBoundingClientRect();
         props.onEmptyClick(props.still.id, e.clientX - rect.left);
-      }}>
-      {props.closed.map((c, i) => <div key={i} className="lane-closed" style={{ left: c.x, width: c.w }} aria-hidden="true" />)}
+      }}
+    >
+      {props.closed.map((c, i) => (
+        <div key={i} className="lane-closed" style={{ left: c.x, width: c.w }} aria-hidden="true" />
+      ))}
       {props.windows.map((w) => (
         <div key={w.key} className="ready-window" style={{ left: w.x, width: Math.max(3, w.w) }} aria-hidden="true" title={`Ready window of ${w.code}`}>
           {w.mid !== null && <span className="ready-mid" style={{ left: w.mid }} />}
@@ -52,7 +58,9 @@ export function StillRow(props: Parameters<typeof StillLane>[0] & { units: UnitS
     <div className="board-row">
       <div className="row-label" style={{ width: LABEL_WIDTH, height: ROW_HEIGHT }}>
         <span className="font-semibold">{s.name}</span>
-        <span className="text-xs text-ink-soft">{s.kind} · {formatVolume(s.capacityLitres, units)}</span>
+        <span className="text-xs text-ink-soft">
+          {s.kind} · {formatVolume(s.capacityLitres, units)}
+        </span>
       </div>
       <MemoLane still={s} {...lane} />
     </div>

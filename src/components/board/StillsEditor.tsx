@@ -7,22 +7,43 @@ import { formatVolume, parseVolumeToLitres, volumeForDisplay, volumeUnitFor, typ
 import { RUN_TYPES, STILL_KIND_LABELS, STILL_KINDS, type StillKind } from '../../lib/vocabulary';
 
 type Still = BoardStill & { active: boolean };
-interface Closure { id: number; stillId: number | null; startsOn: string; endsOn: string; reason: string }
+interface Closure {
+  id: number;
+  stillId: number | null;
+  startsOn: string;
+  endsOn: string;
+  reason: string;
+}
 
 const WEEK = [1, 2, 3, 4, 5, 6, 0];
 
 /** What the stills API answers: the changed still or the lists, or an error. */
-interface StillsAnswer { still?: Still; stills?: Still[]; closures?: Closure[]; removed?: 'deleted' | 'retired'; error?: { message?: string; fields?: Record<string, string> } }
+interface StillsAnswer {
+  still?: Still;
+  stills?: Still[];
+  closures?: Closure[];
+  removed?: 'deleted' | 'retired';
+  error?: { message?: string; fields?: Record<string, string> };
+}
 
 async function send(method: string, url: string, body?: unknown): Promise<{ ok: boolean; json: StillsAnswer }> {
-  const res = await fetch(url, { method, headers: { 'content-type': 'application/json', accept: 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
+  const res = await fetch(url, {
+    method,
+    headers: { 'content-type': 'application/json', accept: 'application/json' },
+    body: body === undefined ? undefined : JSON.stringify(body),
+  });
   const text = await res.text();
   return { ok: res.ok, json: text ? JSON.parse(text) : null };
 }
 
 interface Draft {
-  name: string; kind: StillKind; capacity: string; heatingKw: string; cleaning: string;
-  hours: Record<number, { open: string; close: string } | null>; typical: Record<RunType, string>;
+  name: string;
+  kind: StillKind;
+  capacity: string;
+  heatingKw: string;
+  cleaning: string;
+  hours: Record<number, { open: string; close: string } | null>;
+  typical: Record<RunType, string>;
 }
 
 function draftOf(s: Still | null, units: UnitSystem): Draft {
@@ -32,9 +53,15 @@ function draftOf(s: Still | null, units: UnitSystem): Draft {
     hours[d] = s ? (h ? { open: h.open, close: h.close } : null) : d >= 1 && d <= 5 ? { open: '06:00', close: '22:00' } : null;
   }
   return {
-    name: s?.name ?? '', kind: s?.kind ?? 'pot', capacity: s ? String(Math.round(volumeForDisplay(s.capacityLitres, units))) : '', heatingKw: s ? String(s.heatingKw) : '',
-    cleaning: String(s?.cleaningAfterRunMinutes ?? 60), hours,
-    typical: Object.fromEntries(RUN_TYPES.map((t) => [t, String(s?.typicalMinutes[t] ?? { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 }[t])])) as Record<RunType, string>,
+    name: s?.name ?? '',
+    kind: s?.kind ?? 'pot',
+    capacity: s ? String(Math.round(volumeForDisplay(s.capacityLitres, units))) : '',
+    heatingKw: s ? String(s.heatingKw) : '',
+    cleaning: String(s?.cleaningAfterRunMinutes ?? 60),
+    hours,
+    typical: Object.fromEntries(
+      RUN_TYPES.map((t) => [t, String(s?.typicalMinutes[t] ?? { stripping: 300, spirit: 480, redistillation: 420, cleaning: 120, maintenance: 240 }[t])]),
+    ) as Record<RunType, string>,
   };
 }
 
@@ -47,9 +74,14 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
     e.preventDefault();
     setBusy(true);
     const body = {
-      name: d.name, kind: d.kind, capacityLitres: parseVolumeToLitres(Number(d.capacity), volumeUnitFor(units)), heatingKw: Number(d.heatingKw),
+      name: d.name,
+      kind: d.kind,
+      capacityLitres: parseVolumeToLitres(Number(d.capacity), volumeUnitFor(units)),
+      heatingKw: Number(d.heatingKw),
       cleaningAfterRunMinutes: Number(d.cleaning),
-      operatingHours: WEEK.flatMap((w) => (d.hours[w] ? [{ weekday: w, open: d.hours[w]!.open, close: d.hours[w]!.close === '00:00' ? '24:00' : d.hours[w]!.close }] : [])),
+      operatingHours: WEEK.flatMap((w) =>
+        d.hours[w] ? [{ weekday: w, open: d.hours[w]!.open, close: d.hours[w]!.close === '00:00' ? '24:00' : d.hours[w]!.close }] : [],
+      ),
       typicalMinutes: Object.fromEntries(RUN_TYPES.map((t) => [t, Number(d.typical[t])])),
     };
     const r = still ? await send('PATCH', `/api/stills/${still.id}`, body) : await send('POST', '/api/stills', body);
@@ -60,30 +92,104 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
   const set = (patch: Partial<Draft>) => setD({ ...d, ...patch });
   return (
     <form onSubmit={save} className="mt-2 flex flex-col gap-3 rounded border border-line p-3">
-      {error && <p className="field-error" role="alert">{error}</p>}
+      {error && (
+        <p className="field-error" role="alert">
+          {error}
+        </p>
+      )}
       <div className="grid grid-cols-1 gap-3 sm:grid-cols-3">
-        <div className="field"><label htmlFor={`${idp}-name`}>Name</label><input id={`${idp}-name`} className="input" value={d.name} onChange={(e) => set({ name: e.target.value })} required maxLength={80} /></div>
-        <div className="field"><label htmlFor={`${idp}-kind`}>Kind</label>
+        <div className="field">
+          <label htmlFor={`${idp}-name`}>Name</label>
+          <input id={`${idp}-name`} className="input" value={d.name} onChange={(e) => set({ name: e.target.value })} required maxLength={80} />
+        </div>
+        <div className="field">
+          <label htmlFor={`${idp}-kind`}>Kind</label>
           <select id={`${idp}-kind`} className="input" value={d.kind} onChange={(e) => set({ kind: e.target.value as Draft['kind'] })}>
-            {STILL_KINDS.map((k) => <option key={k} value={k}>{STILL_KIND_LABELS[k]}</option>)}
-          </select></div>
-        <div className="field"><label htmlFor={`${idp}-cap`}>Working charge ({volumeUnitFor(units) === 'L' ? 'litres' : 'US gallons'})</label><input id={`${idp}-cap`} className="input" type="number" min={1} step="any" value={d.capacity} onChange={(e) => set({ capacity: e.target.value })} required /></div>
-        <div className="field"><label htmlFor={`${idp}-kw`}>Heating power (kW)</label><input id={`${idp}-kw`} className="input" type="number" min={0.1} step="any" value={d.heatingKw} onChange={(e) => set({ heatingKw: e.target.value })} required /></div>
-        <div className="field"><label htmlFor={`${idp}-clean`}>Cleaning after each run (min, 0 = none)</label><input id={`${idp}-clean`} className="input" type="number" min={0} max={1440} value={d.cleaning} onChange={(e) => set({ cleaning: e.target.value })} required /></div>
+            {STILL_KINDS.map((k) => (
+              <option key={k} value={k}>
+                {STILL_KIND_LABELS[k]}
+              </option>
+            ))}
+          </select>
+        </div>
+        <div className="field">
+          <label htmlFor={`${idp}-cap`}>Working charge ({volumeUnitFor(units) === 'L' ? 'litres' : 'US gallons'})</label>
+          <input
+            id={`${idp}-cap`}
+            className="input"
+            type="number"
+            min={1}
+            step="any"
+            value={d.capacity}
+            onChange={(e) => set({ capacity: e.target.value })}
+            required
+          />
+        </div>
+        <div className="field">
+          <label htmlFor={`${idp}-kw`}>Heating power (kW)</label>
+          <input
+            id={`${idp}-kw`}
+            className="input"
+            type="number"
+            min={0.1}
+            step="any"
+            value={d.heatingKw}
+            onChange={(e) => set({ heatingKw: e.target.value })}
+            required
+          />
+        </div>
+        <div className="field">
+          <label htmlFor={`${idp}-clean`}>Cleaning after each run (min, 0 = none)</label>
+          <input
+            id={`${idp}-clean`}
+            className="input"
+            type="number"
+            min={0}
+            max={1440}
+            value={d.cleaning}
+            onChange={(e) => set({ cleaning: e.target.value })}
+            required
+          />
+        </div>
       </div>
       <fieldset>
         <legend className="label">Operating hours</legend>
         <div className="mt-1 grid grid-cols-1 gap-1 sm:grid-cols-2">
           {WEEK.map((w) => (
             <div key={w} className="flex flex-wrap items-center gap-2">
-              <label className="flex w-32 items-center gap-1"><input type="checkbox" checked={!!d.hours[w]} onChange={(e) => set({ hours: { ...d.hours, [w]: e.target.checked ? { open: '06:00', close: '22:00' } : null } })} /> {WEEKDAY_NAMES[w]}</label>
-              {d.hours[w] && (<>
-                <label className="sr-only" htmlFor={`${idp}-o${w}`}>{WEEKDAY_NAMES[w]} opens</label>
-                <input id={`${idp}-o${w}`} className="input" type="time" value={d.hours[w]!.open} onChange={(e) => set({ hours: { ...d.hours, [w]: { ...d.hours[w]!, open: e.target.value } } })} />
-                <span aria-hidden="true">to</span>
-                <label className="sr-only" htmlFor={`${idp}-c${w}`}>{WEEKDAY_NAMES[w]} closes (00:00 = midnight)</label>
-                <input id={`${idp}-c${w}`} className="input" type="time" value={d.hours[w]!.close === '24:00' ? '00:00' : d.hours[w]!.close} onChange={(e) => set({ hours: { ...d.hours, [w]: { ...d.hours[w]!, close: e.target.value } } })} />
-              </>)}
+              <label className="flex w-32 items-center gap-1">
+                <input
+                  type="checkbox"
+                  checked={!!d.hours[w]}
+                  onChange={(e) => set({ hours: { ...d.hours, [w]: e.target.checked ? { open: '06:00', close: '22:00' } : null } })}
+                />{' '}
+                {WEEKDAY_NAMES[w]}
+              </label>
+              {d.hours[w] && (
+                <>
+                  <label className="sr-only" htmlFor={`${idp}-o${w}`}>
+                    {WEEKDAY_NAMES[w]} opens
+                  </label>
+                  <input
+                    id={`${idp}-o${w}`}
+                    className="input"
+                    type="time"
+                    value={d.hours[w]!.open}
+                    onChange={(e) => set({ hours: { ...d.hours, [w]: { ...d.hours[w]!, open: e.target.value } } })}
+                  />
+                  <span aria-hidden="true">to</span>
+                  <label className="sr-only" htmlFor={`${idp}-c${w}`}>
+                    {WEEKDAY_NAMES[w]} closes (00:00 = midnight)
+                  </label>
+                  <input
+                    id={`${idp}-c${w}`}
+                    className="input"
+                    type="time"
+                    value={d.hours[w]!.close === '24:00' ? '00:00' : d.hours[w]!.close}
+                    onChange={(e) => set({ hours: { ...d.hours, [w]: { ...d.hours[w]!, close: e.target.value } } })}
+                  />
+                </>
+              )}
             </div>
           ))}
         </div>
@@ -92,14 +198,27 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
         <legend className="label">Typical minutes once at the boil, by run type</legend>
         <div className="mt-1 grid grid-cols-2 gap-2 sm:grid-cols-5">
           {RUN_TYPES.map((t) => (
-            <div key={t} className="field"><label htmlFor={`${idp}-t-${t}`}>{RUN_TYPE_LABELS[t]}</label>
-              <input id={`${idp}-t-${t}`} className="input" type="number" min={0} value={d.typical[t]} onChange={(e) => set({ typical: { ...d.typical, [t]: e.target.value } })} /></div>
+            <div key={t} className="field">
+              <label htmlFor={`${idp}-t-${t}`}>{RUN_TYPE_LABELS[t]}</label>
+              <input
+                id={`${idp}-t-${t}`}
+                className="input"
+                type="number"
+                min={0}
+                value={d.typical[t]}
+                onChange={(e) => set({ typical: { ...d.typical, [t]: e.target.value } })}
+              />
+            </div>
           ))}
         </div>
       </fieldset>
       <div className="flex gap-2">
-        <button type="submit" className="btn" disabled={busy}>{still ? 'Save still' : 'Add still'}</button>
-        <button type="button" className="btn btn-quiet" onClick={() => onDone(null)}>Close</button>
+        <button type="submit" className="btn" disabled={busy}>
+          {still ? 'Save still' : 'Add still'}
+        </button>
+        <button type="button" className="btn btn-quiet" onClick={() => onDone(null)}>
+          Close
+        </button>
       </div>
     </form>
   );
@@ -124,68 +243,155 @@ export default function StillsEditor(props: { initial: Still[]; closures: Closur
     if (j < 0 || j >= active.length) return;
     [active[i], active[j]] = [active[j]!, active[i]!];
     const r = await send('PUT', '/api/stills/order', { ids: active });
-    if (r.ok) { setStills(r.json.stills ?? []); setMsg('Board order saved.'); }
+    if (r.ok) {
+      setStills(r.json.stills ?? []);
+      setMsg('Board order saved.');
+    }
   }
   async function retire(s: Still) {
     if (!window.confirm(`Remove ${s.name} from the board? Its past runs stay on record.`)) return;
     const r = await send('DELETE', `/api/stills/${s.id}`);
-    setMsg(r.ok ? `${s.name} ${r.json.removed === 'deleted' ? 'deleted' : 'retired'}.` : r.json?.error?.message ?? 'Not removed.');
+    setMsg(r.ok ? `${s.name} ${r.json.removed === 'deleted' ? 'deleted' : 'retired'}.` : (r.json?.error?.message ?? 'Not removed.'));
     await reload();
   }
   async function addClosure(e: React.FormEvent) {
     e.preventDefault();
-    const r = await send('POST', '/api/stills/closures', { stillId: c.stillId ? Number(c.stillId) : null, startsOn: c.startsOn, endsOn: c.endsOn || c.startsOn, reason: c.reason });
-    setMsg(r.ok ? 'Closure added.' : r.json?.error?.message ?? 'Not added.');
-    if (r.ok) { setC({ stillId: '', startsOn: '', endsOn: '', reason: '' }); await reload(); }
+    const r = await send('POST', '/api/stills/closures', {
+      stillId: c.stillId ? Number(c.stillId) : null,
+      startsOn: c.startsOn,
+      endsOn: c.endsOn || c.startsOn,
+      reason: c.reason,
+    });
+    setMsg(r.ok ? 'Closure added.' : (r.json?.error?.message ?? 'Not added.'));
+    if (r.ok) {
+      setC({ stillId: '', startsOn: '', endsOn: '', reason: '' });
+      await reload();
+    }
   }
   async function removeClosure(id: number) {
     const res = await fetch(`/api/stills/closures/${id}`, { method: 'DELETE' });
     if (res.ok) await reload();
   }
-  const name = (id: number | null) => (id === null ? 'Whole distillery' : stills.find((s) => s.id === id)?.name ?? '?');
+  const name = (id: number | null) => (id === null ? 'Whole distillery' : (stills.find((s) => s.id === id)?.name ?? '?'));
   const active = stills.filter((s) => s.active);
   return (
     <div className="flex flex-col gap-3">
-      <p role="status" className="text-sm text-ink-soft">{msg}</p>
+      <p role="status" className="text-sm text-ink-soft">
+        {msg}
+      </p>
       <ul className="flex flex-col gap-2">
         {active.map((s, i) => (
           <li key={s.id} className="rounded border border-line p-2" data-testid={`still-${s.id}`}>
             <div className="flex flex-wrap items-center gap-2">
               <strong>{s.name}</strong>
-              <span className="text-sm text-ink-soft">{s.kind} · {formatVolume(s.capacityLitres, props.units)} · {s.heatingKw} kW · cleaning {s.cleaningAfterRunMinutes} min · {s.operatingHours.length ? s.operatingHours.map((h) => `${WEEKDAY_NAMES[h.weekday]!.slice(0, 3)} ${h.open}–${h.close}`).join(', ') : 'no hours set'}</span>
+              <span className="text-sm text-ink-soft">
+                {s.kind} · {formatVolume(s.capacityLitres, props.units)} · {s.heatingKw} kW · cleaning {s.cleaningAfterRunMinutes} min ·{' '}
+                {s.operatingHours.length
+                  ? s.operatingHours.map((h) => `${WEEKDAY_NAMES[h.weekday]!.slice(0, 3)} ${h.open}–${h.close}`).join(', ')
+                  : 'no hours set'}
+              </span>
               <span className="ml-auto flex gap-1">
-                <button type="button" className="btn btn-quiet" onClick={() => move(s.id, -1)} disabled={i === 0} aria-label={`Move ${s.name} up the board`}>↑</button>
-                <button type="button" className="btn btn-quiet" onClick={() => move(s.id, 1)} disabled={i === active.length - 1} aria-label={`Move ${s.name} down the board`}>↓</button>
-                <button type="button" className="btn btn-quiet" onClick={() => setEditing(editing === s.id ? null : s.id)} aria-expanded={editing === s.id}>Edit</button>
-                <button type="button" className="btn btn-quiet" onClick={() => retire(s)}>Remove</button>
+                <button type="button" className="btn btn-quiet" onClick={() => move(s.id, -1)} disabled={i === 0} aria-label={`Move ${s.name} up the board`}>
+                  ↑
+                </button>
+                <button
+                  type="button"
+                  className="btn btn-quiet"
+                  onClick={() => move(s.id, 1)}
+                  disabled={i === active.length - 1}
+                  aria-label={`Move ${s.name} down the board`}
+                >
+                  ↓
+                </button>
+                <button type="button" className="btn btn-quiet" onClick={() => setEditing(editing === s.id ? null : s.id)} aria-expanded={editing === s.id}>
+                  Edit
+                </button>
+                <button type="button" className="btn btn-quiet" onClick={() => retire(s)}>
+                  Remove
+                </button>
               </span>
             </div>
-            {editing === s.id && <StillForm still={s} units={props.units} onDone={(saved) => { setEditing(null); if (saved) { setMsg(`${saved.name} saved.`); void reload(); } }} />}
+            {editing === s.id && (
+              <StillForm
+                still={s}
+                units={props.units}
+                onDone={(saved) => {
+                  setEditing(null);
+                  if (saved) {
+                    setMsg(`${saved.name} saved.`);
+                    void reload();
+                  }
+                }}
+              />
+            )}
           </li>
         ))}
       </ul>
       {editing === 'new' ? (
-        <StillForm still={null} units={props.units} onDone={(saved) => { setEditing(null); if (saved) { setMsg(`${saved.name} added.`); void reload(); } }} />
+        <StillForm
+          still={null}
+          units={props.units}
+          onDone={(saved) => {
+            setEditing(null);
+            if (saved) {
+              setMsg(`${saved.name} added.`);
+              void reload();
+            }
+          }}
+        />
       ) : (
-        <button type="button" className="btn self-start" onClick={() => setEditing('new')}>Add a still</button>
+        <button type="button" className="btn self-start" onClick={() => setEditing('new')}>
+          Add a still
+        </button>
       )}
       <h3 className="mt-2 font-semibold">Closures</h3>
       <ul className="flex flex-col gap-1 text-sm">
         {closures.length === 0 && <li className="text-ink-soft">No closures.</li>}
         {closures.map((x) => (
-          <li key={x.id} className="flex items-center gap-2">{x.startsOn}{x.endsOn !== x.startsOn ? ` to ${x.endsOn}` : ''} · {name(x.stillId)} · {x.reason}
-            <button type="button" className="btn btn-quiet" onClick={() => removeClosure(x.id)} aria-label={`Remove closure ${x.reason} from ${x.startsOn}`}>Remove</button></li>
+          <li key={x.id} className="flex items-center gap-2">
+            {x.startsOn}
+            {x.endsOn !== x.startsOn ? ` to ${x.endsOn}` : ''} · {name(x.stillId)} · {x.reason}
+            <button type="button" className="btn btn-quiet" onClick={() => removeClosure(x.id)} aria-label={`Remove closure ${x.reason} from ${x.startsOn}`}>
+              Remove
+            </button>
+          </li>
         ))}
       </ul>
       <form onSubmit={addClosure} className="grid grid-cols-1 gap-2 sm:grid-cols-5 sm:items-end">
-        <div className="field"><label htmlFor="cl-still">Still</label>
+        <div className="field">
+          <label htmlFor="cl-still">Still</label>
           <select id="cl-still" className="input" value={c.stillId} onChange={(e) => setC({ ...c, stillId: e.target.value })}>
-            <option value="">Whole distillery</option>{active.map((s) => <option key={s.id} value={s.id}>{s.name}</option>)}
-          </select></div>
-        <div className="field"><label htmlFor="cl-from">First day</label><input id="cl-from" className="input" type="date" value={c.startsOn} onChange={(e) => setC({ ...c, startsOn: e.target.value })} required /></div>
-        <div className="field"><label htmlFor="cl-to">Last day</label><input id="cl-to" className="input" type="date" value={c.endsOn} onChange={(e) => setC({ ...c, endsOn: e.target.value })} /></div>
-        <div className="field"><label htmlFor="cl-why">Why</label><input id="cl-why" className="input" value={c.reason} onChange={(e) => setC({ ...c, reason: e.target.value })} required maxLength={160} placeholder="Holiday, boiler service…" /></div>
-        <button type="submit" className="btn">Add closure</button>
+            <option value="">Whole distillery</option>
+            {active.map((s) => (
+              <option key={s.id} value={s.id}>
+                {s.name}
+              </option>
+            ))}
+          </select>
+        </div>
+        <div className="field">
+          <label htmlFor="cl-from">First day</label>
+          <input id="cl-from" className="input" type="date" value={c.startsOn} onChange={(e) => setC({ ...c, startsOn: e.target.value })} required />
+        </div>
+        <div className="field">
+          <label htmlFor="cl-to">Last day</label>
+          <input id="cl-to" className="input" type="date" value={c.endsOn} onChange={(e) => setC({ ...c, endsOn: e.target.value })} />
+        </div>
+        <div className="field">
+          <label htmlFor="cl-why">Why</label>
+          <input
+            id="cl-why"
+            className="input"
+            value={c.reason}
+            onChange={(e) => setC({ ...c, reason: e.target.value })}
+            required
+            maxLength={160}
+            placeholder="Holiday, boiler service…"
+          />
+        </div>
+        <button type="submit" className="btn">
+          Add closure
+        </button>
       </form>
     </div>
   );

@@ -8,7 +8,9 @@ export function VesselBand(p: { board: Board; win: BoardWindow; pxPerHour: numbe
   return (
     <>
       <div className="band-title" style={{ width: LABEL_WIDTH + width }}>
-        <span className="band-sticky">Vessel occupancy <span className="band-hint">fermenting, ready window (hatched), then waiting until the run that empties it</span></span>
+        <span className="band-sticky">
+          Vessel occupancy <span className="band-hint">fermenting, ready window (hatched), then waiting until the run that empties it</span>
+        </span>
       </div>
       {board.fermenters.map((v) => (
         <div className="board-row" key={v.id}>
@@ -20,7 +22,12 @@ export function VesselBand(p: { board: Board; win: BoardWindow; pxPerHour: numbe
               const bar = vesselBarLayout(b, win, pxPerHour, board.timeZone);
               if (!bar) return null;
               return (
-                <div key={b.fermentId} className={`vessel-bar vs-${b.status}${b.freeAt ? '' : ' is-open'}`} style={{ left: bar.x, width: bar.width }} title={bar.label}>
+                <div
+                  key={b.fermentId}
+                  className={`vessel-bar vs-${b.status}${b.freeAt ? '' : ' is-open'}`}
+                  style={{ left: bar.x, width: bar.width }}
+                  title={bar.label}
+                >
                   {bar.window && <span className="vessel-window" style={{ left: bar.window.x, width: bar.window.w }} />}
                   <span className="vessel-code">{b.code}</span>
                   <span className="sr-only">{bar.label}</span>

@@ -28,9 +28,13 @@ export function WarningBadges({ warnings, compact = false }: { warnings: readonl
   const seen = new Set<string>();
   return (
     <span className="wb-row">
-      {shown.filter((w) => (seen.has(w.code) ? false : (seen.add(w.code), true))).map((w) => (
-        <span key={w.code} className={`wb wb-${w.severity}`} data-warning={w.code} title={w.message}>{WARNING_BADGES[w.code]}</span>
-      ))}
+      {shown
+        .filter((w) => (seen.has(w.code) ? false : (seen.add(w.code), true)))
+        .map((w) => (
+          <span key={w.code} className={`wb wb-${w.severity}`} data-warning={w.code} title={w.message}>
+            {WARNING_BADGES[w.code]}
+          </span>
+        ))}
     </span>
   );
 }

@@ -38,17 +38,28 @@ async function call<T>(method: string, url: string, body?: unknown, extraHeaders
   }
 }
 
-export interface RunAnswer { run: BoardRunJson; warnings?: Warning[] }
+export interface RunAnswer {
+  run: BoardRunJson;
+  warnings?: Warning[];
+}
 
 export const api = {
   /** `fresh` after a change of ours: the server must not answer from what it remembered a moment ago. */
   board: (from: Date, to: Date, fresh = false) =>
-    call<BoardPayload>('GET', `/api/board?from=${encodeURIComponent(from.toISOString())}&to=${encodeURIComponent(to.toISOString())}`, undefined, fresh ? { 'cache-control': 'no-cache' } : {}),
+    call<BoardPayload>(
+      'GET',
+      `/api/board?from=${encodeURIComponent(from.toISOString())}&to=${encodeURIComponent(to.toISOString())}`,
+      undefined,
+      fresh ? { 'cache-control': 'no-cache' } : {},
+    ),
   createRun: (body: Record<string, unknown>) => call<RunAnswer>('POST', '/api/runs', body),
   updateRun: (id: number, body: Record<string, unknown>) => call<RunAnswer>('PATCH', `/api/runs/${id}`, body),
   cancelRun: (id: number, version: number) => call<RunAnswer>('POST', `/api/runs/${id}/cancel`, { version }),
   startRun: (id: number, version: number) => call<RunAnswer>('POST', `/api/runs/${id}/start`, { version }),
   finishRun: (id: number, version: number) => call<RunAnswer>('POST', `/api/runs/${id}/finish`, { version }),
   suggestions: (runId: number) =>
-    call<{ runId: number; notBefore: string; slots: Array<{ stillId: number; startsAt: string; endsAt: string }> }>('GET', `/api/board/suggestions?runId=${runId}`),
+    call<{ runId: number; notBefore: string; slots: Array<{ stillId: number; startsAt: string; endsAt: string }> }>(
+      'GET',
+      `/api/board/suggestions?runId=${runId}`,
+    ),
 };

@@ -18,7 +18,11 @@ export default function NotificationPrefs(p: NotificationPrefsProps) {
     const before = prefs;
     setPrefs({ ...prefs, [kind]: on });
     try {
-      const res = await fetch('/api/notifications', { method: 'PUT', headers: { 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify({ [kind]: on }) });
+      const res = await fetch('/api/notifications', {
+        method: 'PUT',
+        headers: { 'content-type': 'application/json', accept: 'application/json' },
+        body: JSON.stringify({ [kind]: on }),
+      });
       const data = await res.json().catch(() => null);
       if (!res.ok) throw new Error(data?.error?.message ?? 'not saved');
       setPrefs(data.prefs);
@@ -39,17 +43,30 @@ export default function NotificationPrefs(p: NotificationPrefsProps) {
         <ul className="flex flex-col gap-4">
           {p.kinds.map((k) => (
             <li key={k.kind} className="flex items-start gap-3">
-              <input id={`pref-${k.kind}`} type="checkbox" className="mt-1 h-5 w-5 shrink-0" checked={!!prefs[k.kind]} disabled={busy === k.kind}
-                onChange={(e) => toggle(k.kind, e.target.checked)} aria-describedby={`pref-${k.kind}-hint`} />
+              <input
+                id={`pref-${k.kind}`}
+                type="checkbox"
+                className="mt-1 h-5 w-5 shrink-0"
+                checked={!!prefs[k.kind]}
+                disabled={busy === k.kind}
+                onChange={(e) => toggle(k.kind, e.target.checked)}
+                aria-describedby={`pref-${k.kind}-hint`}
+              />
               <div>
-                <label htmlFor={`pref-${k.kind}`} className="font-semibold">{k.label}</label>
-                <p id={`pref-${k.kind}-hint`} className="text-sm text-ink-soft">{k.hint}</p>
+                <label htmlFor={`pref-${k.kind}`} className="font-semibold">
+                  {k.label}
+                </label>
+                <p id={`pref-${k.kind}-hint`} className="text-sm text-ink-soft">
+                  {k.hint}
+                </p>
               </div>
             </li>
           ))}
         </ul>
       </fieldset>
-      <p role="status" aria-live="polite" className={message ? 'mt-4 font-semibold' : 'sr-only'}>{message}</p>
+      <p role="status" aria-live="polite" className={message ? 'mt-4 font-semibold' : 'sr-only'}>
+        {message}
+      </p>
     </div>
   );
 }

@@ -10,9 +10,16 @@ export default function EmptyFerment({ fermentId, defaultAt }: { fermentId: numb
     e.preventDefault();
     setBusy(true);
     setError('');
-    const res = await fetch(`/api/ferments/${fermentId}/empty`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ reason, at }) }).catch(() => null);
+    const res = await fetch(`/api/ferments/${fermentId}/empty`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ reason, at }),
+    }).catch(() => null);
     setBusy(false);
-    if (res?.ok) { window.location.assign(`/ferments/${fermentId}`); return; }
+    if (res?.ok) {
+      window.location.assign(`/ferments/${fermentId}`);
+      return;
+    }
     const data = await res?.json().catch(() => null);
     setError(data?.error?.message ?? 'Could not mark it emptied. Try again.');
   }
@@ -20,15 +27,23 @@ export default function EmptyFerment({ fermentId, defaultAt }: { fermentId: numb
     <form onSubmit={submit} className="mt-3 flex flex-wrap items-end gap-3">
       <fieldset className="flex gap-3">
         <legend className="label">Where did the wash go?</legend>
-        <label className="flex min-h-11 items-center gap-2"><input type="radio" name="reason" checked={reason === 'distilled'} onChange={() => setReason('distilled')} /> To the still</label>
-        <label className="flex min-h-11 items-center gap-2"><input type="radio" name="reason" checked={reason === 'dumped'} onChange={() => setReason('dumped')} /> Dumped</label>
+        <label className="flex min-h-11 items-center gap-2">
+          <input type="radio" name="reason" checked={reason === 'distilled'} onChange={() => setReason('distilled')} /> To the still
+        </label>
+        <label className="flex min-h-11 items-center gap-2">
+          <input type="radio" name="reason" checked={reason === 'dumped'} onChange={() => setReason('dumped')} /> Dumped
+        </label>
       </fieldset>
       <div className="field">
         <label htmlFor="emptied-at">Emptied at</label>
         <input id="emptied-at" type="datetime-local" className="input" value={at} onChange={(e) => setAt(e.target.value)} />
       </div>
-      <button className="btn" type="submit" disabled={busy}>Mark emptied</button>
-      <p role="status" aria-live="polite" className="field-error">{error}</p>
+      <button className="btn" type="submit" disabled={busy}>
+        Mark emptied
+      </button>
+      <p role="status" aria-live="polite" className="field-error">
+        {error}
+      </p>
     </form>
   );
 }

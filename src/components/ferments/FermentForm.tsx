@@ -9,8 +9,15 @@ export interface FermentFormProps {
   washTypes: Array<{ id: number; name: string; terminalMin: number; terminalMax: number; typicalOg: number | null }>;
   fermenters: Array<{ id: number; name: string; capacity: string; busyWith: string | null; active: boolean }>;
   initial: {
-    code: string; washTypeId: number | null; fermenterId: number | null; volume: string; pitchedAt: string; og: string;
-    yeast: string; notes: string; ingredients: Array<{ name: string; quantity: string }>;
+    code: string;
+    washTypeId: number | null;
+    fermenterId: number | null;
+    volume: string;
+    pitchedAt: string;
+    og: string;
+    yeast: string;
+    notes: string;
+    ingredients: Array<{ name: string; quantity: string }>;
   };
 }
 
@@ -33,17 +40,28 @@ export default function FermentForm(props: FermentFormProps) {
     if (!Number.isFinite(num(v.og)) || v.og.trim() === '') local.og = 'Enter the OG as an SG, e.g. 1.060.';
     if (!v.pitchedAt) local.pitchedAt = 'Give the pitch time.';
     setErrors(local);
-    if (Object.keys(local).length) { setMessage('Check the fields marked below.'); return; }
+    if (Object.keys(local).length) {
+      setMessage('Check the fields marked below.');
+      return;
+    }
     setBusy(true);
     setMessage('');
     const body = {
-      code: v.code.trim(), washTypeId: v.washTypeId, fermenterId: v.fermenterId, volume: num(v.volume), pitchedAt: v.pitchedAt, og: num(v.og),
-      yeast: v.yeast.trim() || null, notes: v.notes.trim() || null,
+      code: v.code.trim(),
+      washTypeId: v.washTypeId,
+      fermenterId: v.fermenterId,
+      volume: num(v.volume),
+      pitchedAt: v.pitchedAt,
+      og: num(v.og),
+      yeast: v.yeast.trim() || null,
+      notes: v.notes.trim() || null,
       ingredients: v.ingredients.filter((i) => i.name.trim()).map((i) => ({ name: i.name.trim(), quantity: num(i.quantity) || 0 })),
     };
     try {
       const res = await fetch(props.mode === 'create' ? '/api/ferments' : `/api/ferments/${props.fermentId}`, {
-        method: props.mode === 'create' ? 'POST' : 'PATCH', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body),
+        method: props.mode === 'create' ? 'POST' : 'PATCH',
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify(body),
       });
       const data = await res.json().catch(() => null);
       if (!res.ok) {
@@ -59,48 +77,115 @@ export default function FermentForm(props: FermentFormProps) {
     }
   }
 
-  const err = (k: string) => errors[k] ? <p id={`${k}-error`} className="field-error">{errors[k]}</p> : null;
+  const err = (k: string) =>
+    errors[k] ? (
+      <p id={`${k}-error`} className="field-error">
+        {errors[k]}
+      </p>
+    ) : null;
   const described = (k: string) => (errors[k] ? `${k}-error` : undefined);
 
   return (
-    <form onSubmit={submit} noValidate className="card mt-4 grid max-w-3xl gap-4 sm:grid-cols-2" aria-label={props.mode === 'create' ? 'New ferment' : 'Edit ferment'}>
+    <form
+      onSubmit={submit}
+      noValidate
+      className="card mt-4 grid max-w-3xl gap-4 sm:grid-cols-2"
+      aria-label={props.mode === 'create' ? 'New ferment' : 'Edit ferment'}
+    >
       <div className="field">
         <label htmlFor="code">Code</label>
-        <input id="code" className="input" value={v.code} onChange={(e) => set('code', e.target.value)} aria-invalid={!!errors.code} aria-describedby={described('code')} autoComplete="off" />
+        <input
+          id="code"
+          className="input"
+          value={v.code}
+          onChange={(e) => set('code', e.target.value)}
+          aria-invalid={!!errors.code}
+          aria-describedby={described('code')}
+          autoComplete="off"
+        />
         {err('code')}
       </div>
       <div className="field">
         <label htmlFor="washTypeId">Wash type</label>
-        <select id="washTypeId" className="input" value={v.washTypeId ?? ''} onChange={(e) => set('washTypeId', e.target.value ? Number(e.target.value) : null)} aria-invalid={!!errors.washTypeId} aria-describedby={described('washTypeId')}>
+        <select
+          id="washTypeId"
+          className="input"
+          value={v.washTypeId ?? ''}
+          onChange={(e) => set('washTypeId', e.target.value ? Number(e.target.value) : null)}
+          aria-invalid={!!errors.washTypeId}
+          aria-describedby={described('washTypeId')}
+        >
           <option value="">Choose…</option>
-          {props.washTypes.map((w) => <option key={w.id} value={w.id}>{w.name} (ends {w.terminalMin.toFixed(3)}–{w.terminalMax.toFixed(3)})</option>)}
+          {props.washTypes.map((w) => (
+            <option key={w.id} value={w.id}>
+              {w.name} (ends {w.terminalMin.toFixed(3)}–{w.terminalMax.toFixed(3)})
+            </option>
+          ))}
         </select>
         {err('washTypeId')}
       </div>
       <div className="field">
         <label htmlFor="fermenterId">Fermenter</label>
-        <select id="fermenterId" className="input" value={v.fermenterId ?? ''} onChange={(e) => set('fermenterId', e.target.value ? Number(e.target.value) : null)} aria-invalid={!!errors.fermenterId} aria-describedby={described('fermenterId') ?? 'fermenter-help'}>
+        <select
+          id="fermenterId"
+          className="input"
+          value={v.fermenterId ?? ''}
+          onChange={(e) => set('fermenterId', e.target.value ? Number(e.target.value) : null)}
+          aria-invalid={!!errors.fermenterId}
+          aria-describedby={described('fermenterId') ?? 'fermenter-help'}
+        >
           <option value="">None / not in a fermenter</option>
-          {props.fermenters.filter((f) => f.active || f.id === v.fermenterId).map((f) => (
-            <option key={f.id} value={f.id} disabled={!!f.busyWith}>{f.name} · {f.capacity} · {f.busyWith ? `holds ${f.busyWith}` : 'free'}</option>
-          ))}
+          {props.fermenters
+            .filter((f) => f.active || f.id === v.fermenterId)
+            .map((f) => (
+              <option key={f.id} value={f.id} disabled={!!f.busyWith}>
+                {f.name} · {f.capacity} · {f.busyWith ? `holds ${f.busyWith}` : 'free'}
+              </option>
+            ))}
         </select>
-        <p id="fermenter-help" className="text-sm text-ink-soft">{props.fermenters.filter((f) => f.active && !f.busyWith).length} of {props.fermenters.filter((f) => f.active).length} fermenters free.</p>
+        <p id="fermenter-help" className="text-sm text-ink-soft">
+          {props.fermenters.filter((f) => f.active && !f.busyWith).length} of {props.fermenters.filter((f) => f.active).length} fermenters free.
+        </p>
         {err('fermenterId')}
       </div>
       <div className="field">
         <label htmlFor="volume">Volume ({props.volumeUnit})</label>
-        <input id="volume" className="input" inputMode="decimal" value={v.volume} onChange={(e) => set('volume', e.target.value)} aria-invalid={!!errors.volume} aria-describedby={described('volume')} />
+        <input
+          id="volume"
+          className="input"
+          inputMode="decimal"
+          value={v.volume}
+          onChange={(e) => set('volume', e.target.value)}
+          aria-invalid={!!errors.volume}
+          aria-describedby={described('volume')}
+        />
         {err('volume')}
       </div>
       <div className="field">
         <label htmlFor="pitchedAt">Pitched at ({props.timeZone})</label>
-        <input id="pitchedAt" type="datetime-local" className="input" value={v.pitchedAt} onChange={(e) => set('pitchedAt', e.target.value)} aria-invalid={!!errors.pitchedAt} aria-describedby={described('pitchedAt')} />
+        <input
+          id="pitchedAt"
+          type="datetime-local"
+          className="input"
+          value={v.pitchedAt}
+          onChange={(e) => set('pitchedAt', e.target.value)}
+          aria-invalid={!!errors.pitchedAt}
+          aria-describedby={described('pitchedAt')}
+        />
         {err('pitchedAt')}
       </div>
       <div className="field">
         <label htmlFor="og">OG (SG)</label>
-        <input id="og" className="input" inputMode="decimal" placeholder={wash?.typicalOg ? `typically ${wash.typicalOg.toFixed(3)}` : '1.060'} value={v.og} onChange={(e) => set('og', e.target.value)} aria-invalid={!!errors.og} aria-describedby={described('og')} />
+        <input
+          id="og"
+          className="input"
+          inputMode="decimal"
+          placeholder={wash?.typicalOg ? `typically ${wash.typicalOg.toFixed(3)}` : '1.060'}
+          value={v.og}
+          onChange={(e) => set('og', e.target.value)}
+          aria-invalid={!!errors.og}
+          aria-describedby={described('og')}
+        />
         {err('og')}
       </div>
       <div className="field">
@@ -116,23 +201,65 @@ export default function FermentForm(props: FermentFormProps) {
         {v.ingredients.map((ing, i) => (
           <div key={i} className="mt-2 flex flex-wrap items-end gap-2">
             <div className="field grow">
-              <label htmlFor={`ing-name-${i}`} className="sr-only">Ingredient {i + 1}</label>
-              <input id={`ing-name-${i}`} className="input" placeholder="e.g. Distilling malt" value={ing.name}
-                onChange={(e) => set('ingredients', v.ingredients.map((x, j) => (j === i ? { ...x, name: e.target.value } : x)))} />
+              <label htmlFor={`ing-name-${i}`} className="sr-only">
+                Ingredient {i + 1}
+              </label>
+              <input
+                id={`ing-name-${i}`}
+                className="input"
+                placeholder="e.g. Distilling malt"
+                value={ing.name}
+                onChange={(e) =>
+                  set(
+                    'ingredients',
+                    v.ingredients.map((x, j) => (j === i ? { ...x, name: e.target.value } : x)),
+                  )
+                }
+              />
             </div>
             <div className="field w-28">
-              <label htmlFor={`ing-qty-${i}`} className="sr-only">Quantity of ingredient {i + 1} in {props.massUnit}</label>
-              <input id={`ing-qty-${i}`} className="input" inputMode="decimal" placeholder={props.massUnit} value={ing.quantity}
-                onChange={(e) => set('ingredients', v.ingredients.map((x, j) => (j === i ? { ...x, quantity: e.target.value } : x)))} />
+              <label htmlFor={`ing-qty-${i}`} className="sr-only">
+                Quantity of ingredient {i + 1} in {props.massUnit}
+              </label>
+              <input
+                id={`ing-qty-${i}`}
+                className="input"
+                inputMode="decimal"
+                placeholder={props.massUnit}
+                value={ing.quantity}
+                onChange={(e) =>
+                  set(
+                    'ingredients',
+                    v.ingredients.map((x, j) => (j === i ? { ...x, quantity: e.target.value } : x)),
+                  )
+                }
+              />
             </div>
-            <button type="button" className="btn btn-quiet" onClick={() => set('ingredients', v.ingredients.filter((_, j) => j !== i))}>Remove</button>
+            <button
+              type="button"
+              className="btn btn-quiet"
+              onClick={() =>
+                set(
+                  'ingredients',
+                  v.ingredients.filter((_, j) => j !== i),
+                )
+              }
+            >
+              Remove
+            </button>
           </div>
         ))}
-        <button type="button" className="btn btn-quiet mt-2" onClick={() => set('ingredients', [...v.ingredients, { name: '', quantity: '' }])}>Add ingredient</button>
+        <button type="button" className="btn btn-quiet mt-2" onClick={() => set('ingredients', [...v.ingredients, { name: '', quantity: '' }])}>
+          Add ingredient
+        </button>
       </fieldset>
       <div className="sm:col-span-2 flex flex-wrap items-center gap-3">
-        <button className="btn" type="submit" disabled={busy}>{busy ? 'Saving…' : props.mode === 'create' ? 'Start ferment' : 'Save changes'}</button>
-        <p role="status" aria-live="polite" className={Object.keys(errors).length ? 'field-error' : ''}>{message}</p>
+        <button className="btn" type="submit" disabled={busy}>
+          {busy ? 'Saving…' : props.mode === 'create' ? 'Start ferment' : 'Save changes'}
+        </button>
+        <p role="status" aria-live="polite" className={Object.keys(errors).length ? 'field-error' : ''}>
+          {message}
+        </p>
       </div>
     </form>
   );

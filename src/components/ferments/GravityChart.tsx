@@ -1,7 +1,11 @@
 import { useEffect, useRef, useState } from 'react';
 import { ComposedChart, XAxis, YAxis, CartesianGrid, Tooltip, ReferenceArea, ReferenceLine, Line, Scatter, Legend } from 'recharts';
 
-export interface ChartReading { t: number; sg: number; lowConfidence: boolean }
+export interface ChartReading {
+  t: number;
+  sg: number;
+  lowConfidence: boolean;
+}
 export interface ChartProps {
   readings: ChartReading[];
   curve: Array<{ t: number; sg: number }>;
@@ -59,36 +63,104 @@ export default function GravityChart(p: ChartProps) {
         {width > 0 && (
           <ComposedChart width={width} height={height} margin={{ top: 18, right: 12, bottom: 4, left: 4 }}>
             <CartesianGrid stroke="#e3e5e0" />
-            <XAxis dataKey="t" type="number" domain={[xMin, xMax]} ticks={ticks} tickFormatter={(t: number) => dayTick(t, p.timeZone)} allowDataOverflow stroke="#4a5350" fontSize={12} />
-            <YAxis type="number" domain={[yMin, yMax]} tickFormatter={(v: number) => v.toFixed(3)} width={52} allowDataOverflow stroke="#4a5350" fontSize={12} />
-            <ReferenceArea y1={p.terminalMin} y2={p.terminalMax} fill="#1f7a5c" fillOpacity={0.14} stroke="none" ifOverflow="hidden"
-              label={{ value: 'expected finish', position: 'insideBottomLeft', fill: '#1f7a5c', fontSize: 11 }} />
+            <XAxis
+              dataKey="t"
+              type="number"
+              domain={[xMin, xMax]}
+              ticks={ticks}
+              tickFormatter={(t: number) => dayTick(t, p.timeZone)}
+              allowDataOverflow
+              stroke="#4a5350"
+              fontSize={12}
+            />
+            <YAxis
+              type="number"
+              domain={[yMin, yMax]}
+              tickFormatter={(v: number) => v.toFixed(3)}
+              width={52}
+              allowDataOverflow
+              stroke="#4a5350"
+              fontSize={12}
+            />
+            <ReferenceArea
+              y1={p.terminalMin}
+              y2={p.terminalMax}
+              fill="#1f7a5c"
+              fillOpacity={0.14}
+              stroke="none"
+              ifOverflow="hidden"
+              label={{ value: 'expected finish', position: 'insideBottomLeft', fill: '#1f7a5c', fontSize: 11 }}
+            />
             {p.readyP10 !== null && p.readyP90 !== null && (
-              <ReferenceArea x1={p.readyP10} x2={Math.max(p.readyP90, p.readyP10 + DAY / 24)} fill="#c88a12" fillOpacity={0.16} stroke="#c88a12" strokeOpacity={0.5} ifOverflow="hidden"
-                label={{ value: 'ready window', position: 'insideTop', fill: '#8a5a00', fontSize: 11 }} />
+              <ReferenceArea
+                x1={p.readyP10}
+                x2={Math.max(p.readyP90, p.readyP10 + DAY / 24)}
+                fill="#c88a12"
+                fillOpacity={0.16}
+                stroke="#c88a12"
+                strokeOpacity={0.5}
+                ifOverflow="hidden"
+                label={{ value: 'ready window', position: 'insideTop', fill: '#8a5a00', fontSize: 11 }}
+              />
             )}
             {p.stableSince !== null && lastT > p.stableSince && (
-              <ReferenceArea x1={p.stableSince} x2={lastT} fill="#35504a" fillOpacity={0.12} stroke="#35504a" strokeDasharray="4 3" ifOverflow="hidden"
-                label={{ value: 'flat', position: 'insideTopLeft', fill: '#22302d', fontSize: 11 }} />
+              <ReferenceArea
+                x1={p.stableSince}
+                x2={lastT}
+                fill="#35504a"
+                fillOpacity={0.12}
+                stroke="#35504a"
+                strokeDasharray="4 3"
+                ifOverflow="hidden"
+                label={{ value: 'flat', position: 'insideTopLeft', fill: '#22302d', fontSize: 11 }}
+              />
             )}
             <ReferenceLine x={p.now} stroke="#6b7a76" strokeDasharray="2 3" label={{ value: 'now', position: 'top', fill: '#4a5350', fontSize: 11 }} />
             {curve.length > 1 && (
-              <Line data={curve} dataKey="sg" name="Fitted curve" type="monotone" dot={false} stroke="#c88a12" strokeWidth={2} strokeDasharray="6 4" isAnimationActive={false} />
+              <Line
+                data={curve}
+                dataKey="sg"
+                name="Fitted curve"
+                type="monotone"
+                dot={false}
+                stroke="#c88a12"
+                strokeWidth={2}
+                strokeDasharray="6 4"
+                isAnimationActive={false}
+              />
             )}
             <Scatter data={hydro} dataKey="sg" name="Hydrometer / digital" fill="#22302d" isAnimationActive={false} />
             {refr.length > 0 && (
-              <Scatter data={refr} dataKey="sg" name="Refractometer (less certain)" shape="triangle" fill="#ffffff" stroke="#7a4fa3" strokeWidth={1.5} isAnimationActive={false} />
+              <Scatter
+                data={refr}
+                dataKey="sg"
+                name="Refractometer (less certain)"
+                shape="triangle"
+                fill="#ffffff"
+                stroke="#7a4fa3"
+                strokeWidth={1.5}
+                isAnimationActive={false}
+              />
             )}
             <Tooltip
               formatter={(v: unknown) => (typeof v === 'number' ? v.toFixed(4) : String(v))}
-              labelFormatter={(t: unknown) => (typeof t === 'number' ? new Intl.DateTimeFormat('en-GB', { timeZone: p.timeZone, dateStyle: 'medium', timeStyle: 'short' }).format(new Date(t)) : '')}
+              labelFormatter={(t: unknown) =>
+                typeof t === 'number'
+                  ? new Intl.DateTimeFormat('en-GB', { timeZone: p.timeZone, dateStyle: 'medium', timeStyle: 'short' }).format(new Date(t))
+                  : ''
+              }
             />
-            <Legend verticalAlign="bottom" wrapperStyle={{ fontSize: 12 }} formatter={(value: unknown) => <span style={{ color: '#1d2321' }}>{String(value)}</span>} />
+            <Legend
+              verticalAlign="bottom"
+              wrapperStyle={{ fontSize: 12 }}
+              formatter={(value: unknown) => <span style={{ color: '#1d2321' }}>{String(value)}</span>}
+            />
           </ComposedChart>
         )}
       </div>
       <figcaption className="mt-1 text-xs text-ink-soft">
-        Green band: this wash type's expected finishing gravity ({p.terminalMin.toFixed(3)}–{p.terminalMax.toFixed(3)}). Dashed gold line: fitted curve; gold area: ready window (P10–P90). Grey area: the current flat stretch. Triangles: refractometer readings (less certain).
+        Green band: this wash type's expected finishing gravity ({p.terminalMin.toFixed(3)}–{p.terminalMax.toFixed(3)}). Dashed gold line: fitted curve; gold
+        area: ready window (P10–P90). Grey area: the current flat stretch. Triangles: refractometer readings (less certain).
       </figcaption>
     </figure>
   );

@@ -3,13 +3,18 @@ import { READING_UNIT_SYMBOLS } from '../../lib/vocabulary';
 
 export function statusTagClass(status: string | null | undefined): string {
   switch (status) {
-    case 'finished': return 'tag tag-settled text-[#17604a]';
-    case 'stalled': return 'tag tag-stalled';
-    case 'souring': return 'tag tag-souring';
+    case 'finished':
+      return 'tag tag-settled text-[#17604a]';
+    case 'stalled':
+      return 'tag tag-stalled';
+    case 'souring':
+      return 'tag tag-souring';
     case 'active':
     case 'slowing':
-    case 'lag': return 'tag tag-working';
-    default: return 'tag tag-quiet';
+    case 'lag':
+      return 'tag tag-working';
+    default:
+      return 'tag tag-quiet';
   }
 }
 
@@ -19,7 +24,15 @@ export const fmtSg = (sg: number | null | undefined, decimals = 3): string => (s
 export function fmtDateTime(d: Date | string | null | undefined, timeZone: string): string {
   if (!d) return '–';
   const date = typeof d === 'string' ? new Date(d) : d;
-  return new Intl.DateTimeFormat('en-GB', { timeZone, weekday: 'short', day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit', hour12: false }).format(date);
+  return new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    weekday: 'short',
+    day: 'numeric',
+    month: 'short',
+    hour: '2-digit',
+    minute: '2-digit',
+    hour12: false,
+  }).format(date);
 }
 
 export function fmtDate(d: Date | string | null | undefined, timeZone: string): string {
@@ -32,7 +45,8 @@ export function fmtDate(d: Date | string | null | undefined, timeZone: string): 
 export function toLocalInput(d: Date, timeZone: string): string {
   const parts = Object.fromEntries(
     new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hour12: false })
-      .formatToParts(d).map((p) => [p.type, p.value]),
+      .formatToParts(d)
+      .map((p) => [p.type, p.value]),
   );
   const hour = parts.hour === '24' ? '00' : parts.hour;
   return `${parts.year}-${parts.month}-${parts.day}T${hour}:${parts.minute}`;
@@ -53,7 +67,6 @@ export function fmtWindow(p10: Date | string | null | undefined, p90: Date | str
   const b = fmtDate(p90, timeZone);
   return a === b ? a : `${a} – ${b}`;
 }
-
 
 export function fmtRaw(value: number, unit: string): string {
   return unit === 'sg' ? value.toFixed(3) : `${value.toFixed(1)} ${(READING_UNIT_SYMBOLS as Record<string, string>)[unit] ?? unit}`;

@@ -13,14 +13,25 @@ export interface FermentStats {
 }
 
 const safe = (f: () => number): number | null => {
-  try { const v = f(); return Number.isFinite(v) ? v : null; } catch { return null; }
+  try {
+    const v = f();
+    return Number.isFinite(v) ? v : null;
+  } catch {
+    return null;
+  }
 };
 
 /**
  * Figures for the ferment page. ABV by the product's formula (ABV_FORMULA_NAME); a reading
  * at or above the OG gives 0 % rather than a negative figure. LAA = volume × ABV / 100.
  */
-export function fermentStats(og: number, volumeLitres: number, currentSg: number | null, predictedFg: number | null, range: { min: number; max: number }): FermentStats {
+export function fermentStats(
+  og: number,
+  volumeLitres: number,
+  currentSg: number | null,
+  predictedFg: number | null,
+  range: { min: number; max: number },
+): FermentStats {
   const expectedFg = predictedFg ?? (range.min + range.max) / 2;
   const abvOf = (sg: number) => (sg >= og ? 0 : safe(() => abv(og, sg)));
   const abvNow = currentSg === null ? null : abvOf(currentSg);

@@ -42,7 +42,8 @@ export default function RunRecordForm(p: RunRecordFormProps) {
   const toC = (t: number) => (us ? fahrenheitToCelsius(t) : t);
   const [charge, setCharge] = useState(p.charge);
   const [rows, setRows] = useState<RecordFractionInit[]>(() =>
-    p.allowed.map((fraction) => p.fractions.find((f) => f.fraction === fraction) ?? { fraction, volume: '', reading: '', temp: '', cutNote: '' }));
+    p.allowed.map((fraction) => p.fractions.find((f) => f.fraction === fraction) ?? { fraction, volume: '', reading: '', temp: '', cutNote: '' }),
+  );
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [message, setMessage] = useState('');
   const [busy, setBusy] = useState(false);
@@ -50,32 +51,40 @@ export default function RunRecordForm(p: RunRecordFormProps) {
   const [status, setStatus] = useState(p.status);
 
   /** Typing in a field clears its message (the check runs again on save). */
-  const clearError = (key: string) => setErrors((old) => {
-    if (!(key in old)) return old;
-    const { [key]: _gone, ...rest } = old;
-    return rest;
-  });
+  const clearError = (key: string) =>
+    setErrors((old) => {
+      if (!(key in old)) return old;
+      const { [key]: _gone, ...rest } = old;
+      return rest;
+    });
   const setRow = (i: number, k: keyof RecordFractionInit, value: string) => {
     setRows((old) => old.map((r, j) => (j === i ? { ...r, [k]: value } : r)));
     clearError(`${rows[i]!.fraction}.${k}`);
   };
 
-  const live = useMemo(() => rows.map((r) => {
-    const v = num(r.volume); const rd = num(r.reading); const t = num(r.temp);
-    if (v === null || rd === null || t === null || ![v, rd, t].every(Number.isFinite)) return null;
-    try {
-      const abv20 = alcoholmeterCorrection(rd, toC(t));
-      const l = laa(toL(v), abv20);
-      return { abv20, laa: l, pg: laaToProofGallons(l) };
-    } catch (err) {
-      if (err instanceof AlcoholInputError) return null;
-      throw err;
-    }
+  const live = useMemo(
+    () =>
+      rows.map((r) => {
+        const v = num(r.volume);
+        const rd = num(r.reading);
+        const t = num(r.temp);
+        if (v === null || rd === null || t === null || ![v, rd, t].every(Number.isFinite)) return null;
+        try {
+          const abv20 = alcoholmeterCorrection(rd, toC(t));
+          const l = laa(toL(v), abv20);
+          return { abv20, laa: l, pg: laaToProofGallons(l) };
+        } catch (err) {
+          if (err instanceof AlcoholInputError) return null;
+          throw err;
+        }
+      }),
     // toL and toC are fixed by `us`.
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }), [rows, us]);
+    [rows, us],
+  );
   const collected = live.reduce((s, x) => s + (x?.laa ?? 0), 0);
-  const cv = num(charge.volume); const ca = num(charge.abv);
+  const cv = num(charge.volume);
+  const ca = num(charge.abv);
   const charged = cv !== null && ca !== null && Number.isFinite(cv) && Number.isFinite(ca) && cv >= 0 && ca >= 0 && ca <= 100 ? laa(toL(cv), ca) : null;
 
   function collect(): { body: unknown | null; local: Record<string, string> } {
@@ -88,13 +97,19 @@ export default function RunRecordForm(p: RunRecordFormProps) {
     rows.forEach((r) => {
       const blank = [r.volume, r.reading, r.temp].every((s) => s.trim() === '') && r.cutNote.trim() === '';
       if (blank) return;
-      const v = num(r.volume); const rd = num(r.reading); const t = num(r.temp);
+      const v = num(r.volume);
+      const rd = num(r.reading);
+      const t = num(r.temp);
       if (v === null || !Number.isFinite(v)) local[`${r.fraction}.volume`] = 'Enter the volume collected.';
       if (rd === null || !Number.isFinite(rd)) local[`${r.fraction}.reading`] = 'Enter the alcoholmeter reading (% vol).';
       if (t === null || !Number.isFinite(t)) local[`${r.fraction}.temp`] = `Enter the temperature the reading was taken at (${tempUnit}).`;
-      else if (t < tMin || t > tMax) local[`${r.fraction}.temp`] = `Reading temperature must be between ${Math.round(tMin)} and ${Math.round(tMax)} ${tempUnit}.`;
+      else if (t < tMin || t > tMax)
+        local[`${r.fraction}.temp`] = `Reading temperature must be between ${Math.round(tMin)} and ${Math.round(tMax)} ${tempUnit}.`;
       fractions.push({
-        fraction: r.fraction, volumeLitres: v === null ? null : toL(v), alcoholmeterReading: rd, readingTempC: t === null ? null : toC(t),
+        fraction: r.fraction,
+        volumeLitres: v === null ? null : toL(v),
+        alcoholmeterReading: rd,
+        readingTempC: t === null ? null : toC(t),
         cutNote: r.cutNote.trim() || null,
       });
     });
@@ -105,7 +120,13 @@ export default function RunRecordForm(p: RunRecordFormProps) {
   /** Server field keys ('fractions.1.readingTempC') back to the row they belong to. */
   function mapServerErrors(fields: Record<string, string>, sent: Array<{ fraction: Fraction }>): Record<string, string> {
     const out: Record<string, string> = {};
-    const names: Record<string, string> = { volumeLitres: 'volume', alcoholmeterReading: 'reading', readingTempC: 'temp', cutNote: 'cutNote', fraction: 'reading' };
+    const names: Record<string, string> = {
+      volumeLitres: 'volume',
+      alcoholmeterReading: 'reading',
+      readingTempC: 'temp',
+      cutNote: 'cutNote',
+      fraction: 'reading',
+    };
     for (const [key, msg] of Object.entries(fields)) {
       const m = /^fractions\.(\d+)\.(\w+)$/.exec(key);
       if (m) {
@@ -120,19 +141,28 @@ export default function RunRecordForm(p: RunRecordFormProps) {
     e.preventDefault();
     const { body, local } = collect();
     setErrors(local);
-    if (!body) { setMessage('Check the fields marked below.'); return; }
+    if (!body) {
+      setMessage('Check the fields marked below.');
+      return;
+    }
     if (finish && !window.confirm('Mark this run done now? The still must be shut down and safe.')) return;
     setBusy(true);
     setMessage('');
     try {
       const payload = { ...(body as object), ...(finish ? { finish: true } : {}) };
       const res = await fetch(`/api/runs/${p.runId}/outcomes`, {
-        method: 'PUT', headers: { 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify(payload),
+        method: 'PUT',
+        headers: { 'content-type': 'application/json', accept: 'application/json' },
+        body: JSON.stringify(payload),
       });
       const data = await res.json().catch(() => null);
       if (!res.ok) {
         setErrors(mapServerErrors(data?.error?.fields ?? {}, (body as { fractions: Array<{ fraction: Fraction }> }).fractions));
-        setMessage(res.status === 409 ? `${data?.error?.message ?? 'The run changed.'} Reload the page to see the latest.` : data?.error?.message ?? 'The record was not saved.');
+        setMessage(
+          res.status === 409
+            ? `${data?.error?.message ?? 'The run changed.'} Reload the page to see the latest.`
+            : (data?.error?.message ?? 'The record was not saved.'),
+        );
         return;
       }
       setVersion(data.record.run.version);
@@ -151,7 +181,12 @@ export default function RunRecordForm(p: RunRecordFormProps) {
   const inputCls = (k: string) => `input w-full ${err(k) ? 'border-ember' : ''}`;
   const describedBy = (k: string) => (err(k) ? `${k.replace('.', '-')}-err` : undefined);
   // A plain function, not a component: a component declared in render would remount every time.
-  const errorText = (k: string) => (err(k) ? <p id={`${k.replace('.', '-')}-err`} className="field-error">{err(k)}</p> : null);
+  const errorText = (k: string) =>
+    err(k) ? (
+      <p id={`${k.replace('.', '-')}-err`} className="field-error">
+        {err(k)}
+      </p>
+    ) : null;
 
   return (
     <form onSubmit={(e) => submit(e, false)} noValidate className="flex flex-col gap-4" aria-describedby="record-status">
@@ -160,18 +195,41 @@ export default function RunRecordForm(p: RunRecordFormProps) {
         <div className="grid grid-cols-2 items-end gap-3">
           <div className="field">
             <label htmlFor="charge-volume">Volume ({volUnit})</label>
-            <input id="charge-volume" className={inputCls('chargeLitres')} inputMode="decimal" value={charge.volume}
-              onChange={(e) => { setCharge({ ...charge, volume: e.target.value }); clearError('chargeLitres'); }} aria-invalid={!!err('chargeLitres')} aria-describedby={describedBy('chargeLitres')} />
+            <input
+              id="charge-volume"
+              className={inputCls('chargeLitres')}
+              inputMode="decimal"
+              value={charge.volume}
+              onChange={(e) => {
+                setCharge({ ...charge, volume: e.target.value });
+                clearError('chargeLitres');
+              }}
+              aria-invalid={!!err('chargeLitres')}
+              aria-describedby={describedBy('chargeLitres')}
+            />
             {errorText('chargeLitres')}
           </div>
           <div className="field">
             <label htmlFor="charge-abv">Strength (% vol at 20 °C)</label>
-            <input id="charge-abv" className={inputCls('chargeAbv')} inputMode="decimal" value={charge.abv}
-              onChange={(e) => { setCharge({ ...charge, abv: e.target.value }); clearError('chargeAbv'); }} aria-invalid={!!err('chargeAbv')} aria-describedby={describedBy('chargeAbv')} />
+            <input
+              id="charge-abv"
+              className={inputCls('chargeAbv')}
+              inputMode="decimal"
+              value={charge.abv}
+              onChange={(e) => {
+                setCharge({ ...charge, abv: e.target.value });
+                clearError('chargeAbv');
+              }}
+              aria-invalid={!!err('chargeAbv')}
+              aria-describedby={describedBy('chargeAbv')}
+            />
             {errorText('chargeAbv')}
           </div>
         </div>
-        <p className="mt-2 text-sm text-ink-soft">LAA charged: <strong data-testid="charged-laa">{charged === null ? '—' : `${f1(charged)} LAA`}</strong>{us && charged !== null ? ` (${f2(laaToProofGallons(charged))} proof gal)` : ''}</p>
+        <p className="mt-2 text-sm text-ink-soft">
+          LAA charged: <strong data-testid="charged-laa">{charged === null ? '—' : `${f1(charged)} LAA`}</strong>
+          {us && charged !== null ? ` (${f2(laaToProofGallons(charged))} proof gal)` : ''}
+        </p>
       </fieldset>
 
       {rows.map((r, i) => {
@@ -185,29 +243,68 @@ export default function RunRecordForm(p: RunRecordFormProps) {
             <div className="grid grid-cols-3 items-end gap-2">
               <div className="field">
                 <label htmlFor={id('volume')}>Volume ({volUnit})</label>
-                <input id={id('volume')} className={inputCls(k('volume'))} inputMode="decimal" value={r.volume} onChange={(e) => setRow(i, 'volume', e.target.value)}
-                  aria-invalid={!!err(k('volume'))} aria-describedby={describedBy(k('volume'))} />
+                <input
+                  id={id('volume')}
+                  className={inputCls(k('volume'))}
+                  inputMode="decimal"
+                  value={r.volume}
+                  onChange={(e) => setRow(i, 'volume', e.target.value)}
+                  aria-invalid={!!err(k('volume'))}
+                  aria-describedby={describedBy(k('volume'))}
+                />
               </div>
               <div className="field">
                 <label htmlFor={id('reading')}>Alcoholmeter (% vol)</label>
-                <input id={id('reading')} className={inputCls(k('reading'))} inputMode="decimal" value={r.reading} onChange={(e) => setRow(i, 'reading', e.target.value)}
-                  aria-invalid={!!err(k('reading'))} aria-describedby={describedBy(k('reading'))} />
+                <input
+                  id={id('reading')}
+                  className={inputCls(k('reading'))}
+                  inputMode="decimal"
+                  value={r.reading}
+                  onChange={(e) => setRow(i, 'reading', e.target.value)}
+                  aria-invalid={!!err(k('reading'))}
+                  aria-describedby={describedBy(k('reading'))}
+                />
               </div>
               <div className="field">
                 <label htmlFor={id('temp')}>at ({tempUnit})</label>
-                <input id={id('temp')} className={inputCls(k('temp'))} inputMode="decimal" value={r.temp} onChange={(e) => setRow(i, 'temp', e.target.value)}
-                  aria-invalid={!!err(k('temp'))} aria-describedby={describedBy(k('temp'))} />
+                <input
+                  id={id('temp')}
+                  className={inputCls(k('temp'))}
+                  inputMode="decimal"
+                  value={r.temp}
+                  onChange={(e) => setRow(i, 'temp', e.target.value)}
+                  aria-invalid={!!err(k('temp'))}
+                  aria-describedby={describedBy(k('temp'))}
+                />
               </div>
             </div>
-            {errorText(k('volume'))}{errorText(k('reading'))}{errorText(k('temp'))}
+            {errorText(k('volume'))}
+            {errorText(k('reading'))}
+            {errorText(k('temp'))}
             <div className="field mt-2">
-              <label htmlFor={id('note')}>Cut note <span className="font-normal text-ink-soft">(your own: where and why you cut)</span></label>
-              <input id={id('note')} className={inputCls(k('cutNote'))} maxLength={200} value={r.cutNote} onChange={(e) => setRow(i, 'cutNote', e.target.value)}
-                aria-invalid={!!err(k('cutNote'))} aria-describedby={describedBy(k('cutNote'))} />
+              <label htmlFor={id('note')}>
+                Cut note <span className="font-normal text-ink-soft">(your own: where and why you cut)</span>
+              </label>
+              <input
+                id={id('note')}
+                className={inputCls(k('cutNote'))}
+                maxLength={200}
+                value={r.cutNote}
+                onChange={(e) => setRow(i, 'cutNote', e.target.value)}
+                aria-invalid={!!err(k('cutNote'))}
+                aria-describedby={describedBy(k('cutNote'))}
+              />
               {errorText(k('cutNote'))}
             </div>
             <p className="mt-2 text-sm" data-testid={`live-${r.fraction}`}>
-              {x ? <>True strength <strong>{f1(x.abv20)} % vol</strong> at 20 °C · <strong>{f1(x.laa)} LAA</strong>{us ? ` · ${f2(x.pg)} proof gal` : ''}</> : <span className="text-ink-soft">Strength at 20 °C and LAA appear when volume, reading and temperature are in.</span>}
+              {x ? (
+                <>
+                  True strength <strong>{f1(x.abv20)} % vol</strong> at 20 °C · <strong>{f1(x.laa)} LAA</strong>
+                  {us ? ` · ${f2(x.pg)} proof gal` : ''}
+                </>
+              ) : (
+                <span className="text-ink-soft">Strength at 20 °C and LAA appear when volume, reading and temperature are in.</span>
+              )}
             </p>
           </fieldset>
         );
@@ -215,17 +312,35 @@ export default function RunRecordForm(p: RunRecordFormProps) {
 
       <section className="card" aria-label="Totals">
         <dl className="grid grid-cols-2 gap-x-4 gap-y-1">
-          <dt className="text-ink-soft">LAA collected</dt><dd className="font-semibold" data-testid="collected-laa">{f1(collected)} LAA{us ? ` (${f2(laaToProofGallons(collected))} proof gal)` : ''}</dd>
-          <dt className="text-ink-soft">Recovery of the charge</dt><dd className="font-semibold" data-testid="recovery">{charged && charged > 0 ? `${f1((collected / charged) * 100)} %` : '—'}</dd>
-          <dt className="text-ink-soft">Expected from the ferments</dt><dd className="font-semibold">{p.expectedLaa === null ? '—' : `${f1(p.expectedLaa)} LAA (${f1((collected / p.expectedLaa) * 100)} %)`}</dd>
+          <dt className="text-ink-soft">LAA collected</dt>
+          <dd className="font-semibold" data-testid="collected-laa">
+            {f1(collected)} LAA{us ? ` (${f2(laaToProofGallons(collected))} proof gal)` : ''}
+          </dd>
+          <dt className="text-ink-soft">Recovery of the charge</dt>
+          <dd className="font-semibold" data-testid="recovery">
+            {charged && charged > 0 ? `${f1((collected / charged) * 100)} %` : '—'}
+          </dd>
+          <dt className="text-ink-soft">Expected from the ferments</dt>
+          <dd className="font-semibold">{p.expectedLaa === null ? '—' : `${f1(p.expectedLaa)} LAA (${f1((collected / p.expectedLaa) * 100)} %)`}</dd>
         </dl>
       </section>
 
-      <p id="record-status" role="status" aria-live="polite" className={`min-h-6 font-semibold ${shownMessage.startsWith('Saved') || shownMessage === 'Record saved.' ? 'text-verdigris' : 'text-ember'}`}>{shownMessage}</p>
+      <p
+        id="record-status"
+        role="status"
+        aria-live="polite"
+        className={`min-h-6 font-semibold ${shownMessage.startsWith('Saved') || shownMessage === 'Record saved.' ? 'text-verdigris' : 'text-ember'}`}
+      >
+        {shownMessage}
+      </p>
       <div className="flex flex-wrap gap-3">
-        <button type="submit" className="btn btn-quiet" disabled={busy}>Save record</button>
+        <button type="submit" className="btn btn-quiet" disabled={busy}>
+          Save record
+        </button>
         {status === 'running' && (
-          <button type="button" className="btn" disabled={busy} onClick={(e) => submit(e as unknown as FormEvent, true)}>Save and mark run done</button>
+          <button type="button" className="btn" disabled={busy} onClick={(e) => submit(e as unknown as FormEvent, true)}>
+            Save and mark run done
+          </button>
         )}
       </div>
     </form>

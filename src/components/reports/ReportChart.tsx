@@ -36,17 +36,47 @@ export default function ReportChart(p: ReportChartProps) {
           <ComposedChart accessibilityLayer={false} data={p.data} margin={{ top: 8, right: hasRight ? 8 : 16, bottom: 4, left: 0 }}>
             <CartesianGrid stroke="#d5d8d2" strokeDasharray="3 3" />
             <XAxis dataKey={p.xKey} tick={{ fill: '#4a5350', fontSize: 12 }} />
-            <YAxis yAxisId="left" tick={{ fill: '#4a5350', fontSize: 12 }} width={52}
-              label={{ value: p.leftUnit, angle: -90, position: 'insideLeft', fill: '#4a5350', fontSize: 12 }} />
+            <YAxis
+              yAxisId="left"
+              tick={{ fill: '#4a5350', fontSize: 12 }}
+              width={52}
+              label={{ value: p.leftUnit, angle: -90, position: 'insideLeft', fill: '#4a5350', fontSize: 12 }}
+            />
             {hasRight && (
-              <YAxis yAxisId="right" orientation="right" tick={{ fill: '#4a5350', fontSize: 12 }} width={52}
-                label={{ value: p.rightUnit ?? '', angle: 90, position: 'insideRight', fill: '#4a5350', fontSize: 12 }} />
+              <YAxis
+                yAxisId="right"
+                orientation="right"
+                tick={{ fill: '#4a5350', fontSize: 12 }}
+                width={52}
+                label={{ value: p.rightUnit ?? '', angle: 90, position: 'insideRight', fill: '#4a5350', fontSize: 12 }}
+              />
             )}
             <Tooltip formatter={(v) => fmt(v)} />
             <Legend wrapperStyle={{ fontSize: 13 }} />
-            {p.series.map((s, i) => s.kind === 'bar'
-              ? <Bar key={s.key} dataKey={s.key} name={s.label} yAxisId={s.right ? 'right' : 'left'} fill={PALETTE[i % PALETTE.length]} isAnimationActive={false} />
-              : <Line key={s.key} dataKey={s.key} name={s.label} yAxisId={s.right ? 'right' : 'left'} stroke={PALETTE[i % PALETTE.length]} strokeWidth={2.5} dot={{ r: 3 }} connectNulls isAnimationActive={false} />)}
+            {p.series.map((s, i) =>
+              s.kind === 'bar' ? (
+                <Bar
+                  key={s.key}
+                  dataKey={s.key}
+                  name={s.label}
+                  yAxisId={s.right ? 'right' : 'left'}
+                  fill={PALETTE[i % PALETTE.length]}
+                  isAnimationActive={false}
+                />
+              ) : (
+                <Line
+                  key={s.key}
+                  dataKey={s.key}
+                  name={s.label}
+                  yAxisId={s.right ? 'right' : 'left'}
+                  stroke={PALETTE[i % PALETTE.length]}
+                  strokeWidth={2.5}
+                  dot={{ r: 3 }}
+                  connectNulls
+                  isAnimationActive={false}
+                />
+              ),
+            )}
           </ComposedChart>
         </ResponsiveContainer>
       </div>

@@ -18,11 +18,18 @@ export default function RunStatusButton(p: RunStatusButtonProps) {
     setError(null);
     try {
       const res = await fetch(`/api/runs/${p.runId}/${action}`, {
-        method: 'POST', headers: { 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify({ version: p.version }),
+        method: 'POST',
+        headers: { 'content-type': 'application/json', accept: 'application/json' },
+        body: JSON.stringify({ version: p.version }),
       });
-      if (res.ok) { window.location.reload(); return; }
+      if (res.ok) {
+        window.location.reload();
+        return;
+      }
       const body = await res.json().catch(() => null);
-      setError(res.status === 409 && body?.current ? 'Someone changed this run meanwhile; reload to see it.' : body?.error?.message ?? `Not saved (${res.status}).`);
+      setError(
+        res.status === 409 && body?.current ? 'Someone changed this run meanwhile; reload to see it.' : (body?.error?.message ?? `Not saved (${res.status}).`),
+      );
     } catch {
       setError('Could not reach Plateau. Check the connection and try again.');
     }
@@ -33,7 +40,11 @@ export default function RunStatusButton(p: RunStatusButtonProps) {
       <button type="button" className={action === 'start' ? 'btn' : 'btn btn-quiet'} disabled={busy} onClick={go}>
         {busy ? 'Saving…' : action === 'start' ? `Start ${p.label}` : `Finish ${p.label}`}
       </button>
-      {error && <span className="field-error" role="alert">{error}</span>}
+      {error && (
+        <span className="field-error" role="alert">
+          {error}
+        </span>
+      )}
     </span>
   );
 }

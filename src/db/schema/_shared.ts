@@ -8,8 +8,13 @@ export const fk = (name: string) => bigint(name, { mode: 'number', unsigned: tru
 export const utc = (name: string) => datetime(name, { mode: 'date', fsp: 3 });
 
 export const timestamps = {
-  createdAt: utc('created_at').notNull().default(sql`CURRENT_TIMESTAMP(3)`),
-  updatedAt: utc('updated_at').notNull().default(sql`CURRENT_TIMESTAMP(3)`).$onUpdate(() => new Date()),
+  createdAt: utc('created_at')
+    .notNull()
+    .default(sql`CURRENT_TIMESTAMP(3)`),
+  updatedAt: utc('updated_at')
+    .notNull()
+    .default(sql`CURRENT_TIMESTAMP(3)`)
+    .$onUpdate(() => new Date()),
 };
 
 /** Surrogate key: BIGINT UNSIGNED AUTO_INCREMENT (MariaDB rejects drizzle's `serial AUTO_INCREMENT`). */

@@ -2,7 +2,6 @@ import { mysqlTable, varchar, mysqlEnum, int, double, json, uniqueIndex, index, 
 import { fk, utc, timestamps, id } from './_shared';
 import { ROLES, UNIT_SYSTEMS } from '../../lib/vocabulary';
 
-
 /** One distillery. Settings that change how readings are interpreted live here. */
 export const workspaces = mysqlTable('workspaces', {
   id: id(),
@@ -19,63 +18,91 @@ export const workspaces = mysqlTable('workspaces', {
   ...timestamps,
 });
 
-export const users = mysqlTable('users', {
-  id: id(),
-  /** Always stored lower-cased. */
-  email: varchar('email', { length: 254 }).notNull(),
-  name: varchar('name', { length: 120 }).notNull(),
-  passwordHash: varchar('password_hash', { length: 255 }).notNull(),
-  emailVerifiedAt: utc('email_verified_at'),
-  disabledAt: utc('disabled_at'),
-  ...timestamps,
-}, (t) => [uniqueIndex('users_email_uq').on(t.email)]);
+export const users = mysqlTable(
+  'users',
+  {
+    id: id(),
+    /** Always stored lower-cased. */
+    email: varchar('email', { length: 254 }).notNull(),
+    name: varchar('name', { length: 120 }).notNull(),
+    passwordHash: varchar('password_hash', { length: 255 }).notNull(),
+    emailVerifiedAt: utc('email_verified_at'),
+    disabledAt: utc('disabled_at'),
+    ...timestamps,
+  },
+  (t) => [uniqueIndex('users_email_uq').on(t.email)],
+);
 
-export const memberships = mysqlTable('memberships', {
-  id: id(),
-  workspaceId: fk('workspace_id').notNull().references(() => workspaces.id, { onDelete: 'cascade' }),
-  userId: fk('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
-  role: mysqlEnum('role', ROLES).notNull(),
-  /** Which notifications this person receives in this workspace. */
-  notifyPrefs: json('notify_prefs').$type<Record<string, boolean>>(),
-  ...timestamps,
-}, (t) => [uniqueIndex('memberships_ws_user_uq').on(t.workspaceId, t.userId), index('memberships_user_idx').on(t.userId)]);
+export const memberships = mysqlTable(
+  'memberships',
+  {
+    id: id(),
+    workspaceId: fk('workspace_id')
+      .notNull()
+      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    userId: fk('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    role: mysqlEnum('role', ROLES).notNull(),
+    /** Which notifications this person receives in this workspace. */
+    notifyPrefs: json('notify_prefs').$type<Record<string, boolean>>(),
+    ...timestamps,
+  },
+  (t) => [uniqueIndex('memberships_ws_user_uq').on(t.workspaceId, t.userId), index('memberships_user_idx').on(t.userId)],
+);
 
 /** Lucia sessions. `expiresAt` slides (idle expiry); `createdAt` bounds the absolute lifetime. */
-export const sessions = mysqlTable('sessions', {
-  id: varchar('id', { length: 255 }).primaryKey(),
-  userId: fk('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
-  expiresAt: utc('expires_at').notNull(),
-  workspaceId: fk('workspace_id').references(() => workspaces.id, { onDelete: 'set null' }),
-  createdAt: utc('created_at').notNull(),
-  userAgent: varchar('user_agent', { length: 255 }),
-}, (t) => [index('sessions_user_idx').on(t.userId)]);
+export const sessions = mysqlTable(
+  'sessions',
+  {
+    id: varchar('id', { length: 255 }).primaryKey(),
+    userId: fk('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    expiresAt: utc('expires_at').notNull(),
+    workspaceId: fk('workspace_id').references(() => workspaces.id, { onDelete: 'set null' }),
+    createdAt: utc('created_at').notNull(),
+    userAgent: varchar('user_agent', { length: 255 }),
+  },
+  (t) => [index('sessions_user_idx').on(t.userId)],
+);
 
-export const invitations = mysqlTable('invitations', {
-  id: id(),
-  workspaceId: fk('workspace_id').notNull().references(() => workspaces.id, { onDelete: 'cascade' }),
-  email: varchar('email', { length: 254 }).notNull(),
-  role: mysqlEnum('role', ROLES).notNull(),
-  tokenHash: varchar('token_hash', { length: 64 }).notNull(),
-  invitedBy: fk('invited_by').references(() => users.id, { onDelete: 'set null' }),
-  expiresAt: utc('expires_at').notNull(),
-  acceptedAt: utc('accepted_at'),
-  revokedAt: utc('revoked_at'),
-  ...timestamps,
-}, (t) => [uniqueIndex('invitations_token_uq').on(t.tokenHash), index('invitations_ws_idx').on(t.workspaceId)]);
+export const invitations = mysqlTable(
+  'invitations',
+  {
+    id: id(),
+    workspaceId: fk('workspace_id')
+      .notNull()
+      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    email: varchar('email', { length: 254 }).notNull(),
+    role: mysqlEnum('role', ROLES).notNull(),
+    tokenHash: varchar('token_hash', { length: 64 }).notNull(),
+    invitedBy: fk('invited_by').references(() => users.id, { onDelete: 'set null' }),
+    expiresAt: utc('expires_at').notNull(),
+    acceptedAt: utc('accepted_at'),
+    revokedAt: utc('revoked_at'),
+    ...timestamps,
+  },
+  (t) => [uniqueIndex('invitations_token_uq').on(t.tokenHash), index('invitations_ws_idx').on(t.workspaceId)],
+);
 
 /** Single-use e-mailed tokens: password resets and sign-up confirmations. */
-export const emailTokens = mysqlTable('email_tokens', {
-  id: id(),
-  purpose: mysqlEnum('purpose', ['password_reset', 'signup_confirm']).notNull(),
-  tokenHash: varchar('token_hash', { length: 64 }).notNull(),
-  email: varchar('email', { length: 254 }).notNull(),
-  userId: fk('user_id').references(() => users.id, { onDelete: 'cascade' }),
-  /** For sign-up: the pending workspace name, person's name and password hash. */
-  payload: json('payload').$type<Record<string, string>>(),
-  expiresAt: utc('expires_at').notNull(),
-  usedAt: utc('used_at'),
-  ...timestamps,
-}, (t) => [uniqueIndex('email_tokens_token_uq').on(t.tokenHash)]);
+export const emailTokens = mysqlTable(
+  'email_tokens',
+  {
+    id: id(),
+    purpose: mysqlEnum('purpose', ['password_reset', 'signup_confirm']).notNull(),
+    tokenHash: varchar('token_hash', { length: 64 }).notNull(),
+    email: varchar('email', { length: 254 }).notNull(),
+    userId: fk('user_id').references(() => users.id, { onDelete: 'cascade' }),
+    /** For sign-up: the pending workspace name, person's name and password hash. */
+    payload: json('payload').$type<Record<string, string>>(),
+    expiresAt: utc('expires_at').notNull(),
+    usedAt: utc('used_at'),
+    ...timestamps,
+  },
+  (t) => [uniqueIndex('email_tokens_token_uq').on(t.tokenHash)],
+);
 
 /** Failed sign-in counters per e-mail and per IP. */
 export const signInThrottle = mysqlTable('sign_in_throttle', {

@@ -15,8 +15,21 @@ export function fermentDraftRun(
   const litres = Math.min(f.volumeLitres, still.capacityLitres);
   const minutes = Math.max(60, still.typicalMinutes.stripping);
   return {
-    id: -1, stillId: still.id, type: 'stripping', status: 'planned', startsAt, endsAt: new Date(startsAt.getTime() + minutes * 60000), operatorId: null,
-    chargeLitres: litres, chargeAbv: null, ferments: [{ fermentId: f.id, litres }], feeds: [], lowWinesLitres: null, version: 0, sequence: 0, notes: null,
+    id: -1,
+    stillId: still.id,
+    type: 'stripping',
+    status: 'planned',
+    startsAt,
+    endsAt: new Date(startsAt.getTime() + minutes * 60000),
+    operatorId: null,
+    chargeLitres: litres,
+    chargeAbv: null,
+    ferments: [{ fermentId: f.id, litres }],
+    feeds: [],
+    lowWinesLitres: null,
+    version: 0,
+    sequence: 0,
+    notes: null,
   };
 }
 

@@ -19,8 +19,17 @@ export const HEADER_HEIGHT = 46;
 
 const HOUR_MS = 3_600_000;
 
-export interface Span { x: number; w: number }
-export interface ReadyWindowSpan { key: string; x: number; w: number; mid: number | null; code: string }
+export interface Span {
+  x: number;
+  w: number;
+}
+export interface ReadyWindowSpan {
+  key: string;
+  x: number;
+  w: number;
+  mid: number | null;
+  code: string;
+}
 
 /** The drawn width of a window, whole pixels. */
 export const canvasWidth = (win: Pick<BoardWindow, 'start' | 'end'>, pxPerHour: number): number => Math.round(xOf(win.end, win.start, pxPerHour));
@@ -30,10 +39,20 @@ export const slotWidth = (spec: Pick<ZoomSpec, 'slotMinutes' | 'pxPerHour'>): nu
 export const dayWidth = (spec: Pick<ZoomSpec, 'pxPerHour'>): number => 24 * spec.pxPerHour;
 
 /** Up to three capitals of a name, for operators on narrow blocks. */
-export const initials = (name: string): string => name.split(/\s+/).map((w) => w[0]).join('').slice(0, 3).toUpperCase();
+export const initials = (name: string): string =>
+  name
+    .split(/\s+/)
+    .map((w) => w[0])
+    .join('')
+    .slice(0, 3)
+    .toUpperCase();
 
 /** The runs each still shows in the window, cancelled runs left out; every still has a list. */
-export function runsByStill(stills: readonly Pick<BoardStill, 'id'>[], runs: readonly BoardRun[], win: Pick<BoardWindow, 'start' | 'end'>): Map<number, BoardRun[]> {
+export function runsByStill(
+  stills: readonly Pick<BoardStill, 'id'>[],
+  runs: readonly BoardRun[],
+  win: Pick<BoardWindow, 'start' | 'end'>,
+): Map<number, BoardRun[]> {
   const m = new Map<number, BoardRun[]>();
   for (const s of stills) m.set(s.id, []);
   for (const r of runs) {
@@ -115,10 +134,13 @@ export function runBlockLayout(r: BoardRun, c: RunBlockContext): RunBlockLayout 
   const still = c.stillById.get(r.stillId);
   const occupied = occupiedRange(r, still);
   const codes = r.ferments.map((x) => c.fermentById.get(x.fermentId)?.code ?? '?').join(' + ');
-  const worst = r.ferments.map((x) => c.fermentById.get(x.fermentId)).filter((f) => f && !f.emptiedAt).map((f) => windowPlacement(r.startsAt, f!));
+  const worst = r.ferments
+    .map((x) => c.fermentById.get(x.fermentId))
+    .filter((f) => f && !f.emptiedAt)
+    .map((f) => windowPlacement(r.startsAt, f!));
   const placement = worst.includes('before') ? 'before' : worst.includes('inside') ? 'inside' : worst.includes('after') ? 'after' : 'unknown';
   const charge = r.chargeLitres ?? (r.ferments.length ? r.ferments.reduce((s, x) => s + x.litres, 0) : null);
-  const op = r.operatorId ? c.personById.get(r.operatorId)?.name ?? '' : '';
+  const op = r.operatorId ? (c.personById.get(r.operatorId)?.name ?? '') : '';
   return {
     x: xOf(r.startsAt, c.windowStart, c.pxPerHour),
     width: xOf(r.endsAt, r.startsAt, c.pxPerHour),

@@ -5,10 +5,17 @@
  * whole slots. The getter has the shape of dnd-kit's KeyboardCoordinateGetter.
  */
 
-export interface Coordinates { x: number; y: number }
+export interface Coordinates {
+  x: number;
+  y: number;
+}
 
 /** Pixels per step; read on every key press, so a zoom change mid-session is honoured. */
-export interface KeyboardStepSizes { slotPx: number; dayPx: number; rowPx: number }
+export interface KeyboardStepSizes {
+  slotPx: number;
+  dayPx: number;
+  rowPx: number;
+}
 
 export interface BoardKeyboardCoordinates {
   /** Where the dragged item goes after this key, or undefined for a key that does not move it. */
@@ -26,11 +33,20 @@ export function boardKeyboardCoordinates(sizes: () => KeyboardStepSizes): BoardK
       const s = sizes();
       if (!origin) origin = { ...currentCoordinates };
       switch (event.code) {
-        case 'ArrowRight': x += event.shiftKey ? s.dayPx : s.slotPx; break;
-        case 'ArrowLeft': x -= event.shiftKey ? s.dayPx : s.slotPx; break;
-        case 'ArrowDown': y += s.rowPx; break;
-        case 'ArrowUp': y -= s.rowPx; break;
-        default: return undefined;
+        case 'ArrowRight':
+          x += event.shiftKey ? s.dayPx : s.slotPx;
+          break;
+        case 'ArrowLeft':
+          x -= event.shiftKey ? s.dayPx : s.slotPx;
+          break;
+        case 'ArrowDown':
+          y += s.rowPx;
+          break;
+        case 'ArrowUp':
+          y -= s.rowPx;
+          break;
+        default:
+          return undefined;
       }
       return { x: origin.x + x, y: origin.y + y };
     },

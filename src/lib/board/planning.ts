@@ -17,8 +17,12 @@ export function dehydrateRun(r: BoardRun): BoardRunJson {
 export function hydrateFerment(f: BoardFermentJson): BoardFerment {
   return {
     ...f,
-    pitchedAt: d(f.pitchedAt), emptiedAt: d(f.emptiedAt), readyAt: d(f.readyAt),
-    readyP10: d(f.readyP10), readyP90: d(f.readyP90), confirmedAt: d(f.confirmedAt),
+    pitchedAt: d(f.pitchedAt),
+    emptiedAt: d(f.emptiedAt),
+    readyAt: d(f.readyAt),
+    readyP10: d(f.readyP10),
+    readyP90: d(f.readyP90),
+    confirmedAt: d(f.confirmedAt),
   };
 }
 
@@ -40,22 +44,45 @@ export function hydrateBoard(p: BoardPayload, clientNow?: Date): Board {
 /** The schedule rules' view of a run. */
 export function toScheduleRun(r: BoardRun): Run {
   return {
-    id: r.id, stillId: r.stillId, type: r.type, status: r.status, startsAt: r.startsAt, endsAt: r.endsAt,
-    operatorId: r.operatorId, chargeLitres: r.chargeLitres, ferments: r.ferments, feeds: r.feeds, lowWinesLitres: r.lowWinesLitres,
+    id: r.id,
+    stillId: r.stillId,
+    type: r.type,
+    status: r.status,
+    startsAt: r.startsAt,
+    endsAt: r.endsAt,
+    operatorId: r.operatorId,
+    chargeLitres: r.chargeLitres,
+    ferments: r.ferments,
+    feeds: r.feeds,
+    lowWinesLitres: r.lowWinesLitres,
   };
 }
 
 export function toFermentState(f: BoardFerment): FermentState {
   return {
-    id: f.id, code: f.code, volumeLitres: f.volumeLitres, pitchedAt: f.pitchedAt, emptiedAt: f.emptiedAt, status: f.status,
-    readyAt: f.readyAt, readyP10: f.readyP10, readyP90: f.readyP90, confirmedAt: f.confirmedAt,
+    id: f.id,
+    code: f.code,
+    volumeLitres: f.volumeLitres,
+    pitchedAt: f.pitchedAt,
+    emptiedAt: f.emptiedAt,
+    status: f.status,
+    readyAt: f.readyAt,
+    readyP10: f.readyP10,
+    readyP90: f.readyP90,
+    confirmedAt: f.confirmedAt,
   };
 }
 
 export function toScheduleStill(s: BoardStill): Still {
   return {
-    id: s.id, name: s.name, capacityLitres: s.capacityLitres, heatingKw: s.heatingKw, operatingHours: s.operatingHours,
-    closures: s.closures, cleaningAfterRunMinutes: s.cleaningAfterRunMinutes, typicalMinutes: s.typicalMinutes,
+    id: s.id,
+    name: s.name,
+    capacityLitres: s.capacityLitres,
+    heatingKw: s.heatingKw,
+    operatingHours: s.operatingHours,
+    closures: s.closures,
+    cleaningAfterRunMinutes: s.cleaningAfterRunMinutes,
+    typicalMinutes: s.typicalMinutes,
   };
 }
 
@@ -196,11 +223,7 @@ export interface VesselBar {
 }
 
 /** Per fermenter, each ferment from pitching through its ready window to the run that empties it. */
-export function vesselBars(
-  fermenters: readonly { id: number }[],
-  ferments: readonly BoardFerment[],
-  runs: readonly BoardRun[],
-): Map<number, VesselBar[]> {
+export function vesselBars(fermenters: readonly { id: number }[], ferments: readonly BoardFerment[], runs: readonly BoardRun[]): Map<number, VesselBar[]> {
   const firstRun = new Map<number, Date>();
   for (const r of runs) {
     if (r.status === 'cancelled') continue;
@@ -217,8 +240,14 @@ export function vesselBars(
     const run = firstRun.get(f.id) ?? null;
     const freeAt = f.emptiedAt ?? run;
     list.push({
-      fermentId: f.id, code: f.code, status: f.status, pitchedAt: f.pitchedAt, readyP10: f.readyP10, readyP90: f.readyP90,
-      freeAt, freedBy: f.emptiedAt ? 'emptied' : run ? 'run' : null,
+      fermentId: f.id,
+      code: f.code,
+      status: f.status,
+      pitchedAt: f.pitchedAt,
+      readyP10: f.readyP10,
+      readyP90: f.readyP90,
+      freeAt,
+      freedBy: f.emptiedAt ? 'emptied' : run ? 'run' : null,
     });
   }
   for (const list of out.values()) list.sort((a, b) => a.pitchedAt.getTime() - b.pitchedAt.getTime());
@@ -241,5 +270,6 @@ export function defaultRunMinutes(
 ): number {
   const typical = still.typicalMinutes[type] ?? 0;
   if (!needsCleaningAfter(type) || !chargeLitres || chargeLitres <= 0 || !(still.heatingKw > 0)) return Math.max(typical, 30);
-  return estimateDurationMinutes({ chargeLitres, abvPercent: chargeAbv ?? DEFAULT_CHARGE_ABV[type], heatingKw: still.heatingKw, typicalMinutes: typical }).totalMinutes;
+  return estimateDurationMinutes({ chargeLitres, abvPercent: chargeAbv ?? DEFAULT_CHARGE_ABV[type], heatingKw: still.heatingKw, typicalMinutes: typical })
+    .totalMinutes;
 }

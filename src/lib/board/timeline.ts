@@ -112,13 +112,7 @@ export function moveTarget(input: MoveInput): MoveTarget {
  * A new end for a run being resized by `deltaX` pixels, snapped to the grid
  * and never shorter than one slot.
  */
-export function resizeTarget(
-  run: { startsAt: Date; endsAt: Date },
-  deltaX: number,
-  pxPerHour: number,
-  slotMinutes: number,
-  timeZone: string,
-): Date {
+export function resizeTarget(run: { startsAt: Date; endsAt: Date }, deltaX: number, pxPerHour: number, slotMinutes: number, timeZone: string): Date {
   const moved = new Date(run.endsAt.getTime() + (deltaX / pxPerHour) * HOUR_MS);
   const snapped = snapToSlot(moved, slotMinutes, timeZone, 'nearest');
   const minEnd = run.startsAt.getTime() + slotMinutes * MINUTE_MS;

@@ -79,8 +79,15 @@ function hash53(text: string, seed = 0): string {
 export function eventKey(event: FeedEvent, dtstamp: Date): string {
   const text = `${event.title}\u0000${event.description}\u0000${event.location ?? ''}\u0000${event.url ?? ''}`;
   return [
-    event.uid, event.sequence, event.status, event.start.getTime(), event.end.getTime(), dtstamp.getTime(),
-    event.lastModified?.getTime() ?? '', text.length, hash53(text),
+    event.uid,
+    event.sequence,
+    event.status,
+    event.start.getTime(),
+    event.end.getTime(),
+    dtstamp.getTime(),
+    event.lastModified?.getTime() ?? '',
+    text.length,
+    hash53(text),
   ].join('|');
 }
 
@@ -138,8 +145,12 @@ function icsAttributes(event: FeedEvent, dtstamp: Date): EventAttributes {
   const location = event.location ? normaliseText(event.location) : undefined;
   return {
     uid: event.uid,
-    start: event.start.getTime(), startInputType: 'utc', startOutputType: 'utc',
-    end: event.end.getTime(), endInputType: 'utc', endOutputType: 'utc',
+    start: event.start.getTime(),
+    startInputType: 'utc',
+    startOutputType: 'utc',
+    end: event.end.getTime(),
+    endInputType: 'utc',
+    endOutputType: 'utc',
     title: normaliseText(event.title),
     ...(description !== '' ? { description } : {}),
     ...(location ? { location } : {}),
@@ -212,8 +223,9 @@ function buildHeader(input: FeedInput): string {
   const name = escapeText(normaliseText(input.name));
   const { error, value } = createEvents([], { productId: normaliseText(input.prodId ?? DEFAULT_PRODID) });
   if (error || !value) throw new RangeError(`Calendar header cannot be written: ${error?.message ?? 'no output'}`);
-  const lines = logicalLines(value).filter((l) => l !== '' && l !== 'END:VCALENDAR'
-    && !l.startsWith('METHOD:') && !l.startsWith('X-WR-CALNAME:') && !l.startsWith('X-PUBLISHED-TTL:'));
+  const lines = logicalLines(value).filter(
+    (l) => l !== '' && l !== 'END:VCALENDAR' && !l.startsWith('METHOD:') && !l.startsWith('X-WR-CALNAME:') && !l.startsWith('X-PUBLISHED-TTL:'),
+  );
   lines.push(`NAME:${name}`, `X-WR-CALNAME:${name}`, `REFRESH-INTERVAL;VALUE=DURATION:${refresh}`, `X-PUBLISHED-TTL:${refresh}`);
   return lines.map((l) => `${foldLine(l)}\r\n`).join('');
 }

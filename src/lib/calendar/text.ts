@@ -50,7 +50,7 @@ export function foldLine(line: string): string {
   const parts: string[] = [];
   let segmentStart = 0;
   let octets = 0;
-  for (let i = 0; i < line.length; ) {
+  for (let i = 0; i < line.length;) {
     const unit = line.charCodeAt(i);
     let units = 1;
     let n: number;

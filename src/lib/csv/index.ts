@@ -1,14 +1,5 @@
 export { parseLoggerCsv } from './parse';
-export type {
-  LoggerRow,
-  RejectedLine,
-  LoggerCsvFatal,
-  LoggerCsvResult,
-  LoggerCsvOptions,
-  LoggerUnit,
-  LoggerMethod,
-  CsvDelimiter,
-} from './parse';
+export type { LoggerRow, RejectedLine, LoggerCsvFatal, LoggerCsvResult, LoggerCsvOptions, LoggerUnit, LoggerMethod, CsvDelimiter } from './parse';
 export { toCsv, csvCell } from './to-csv';
 export { resolveLocalTime } from './local-time';
 export type { WallClock, LocalTimeResult } from './local-time';

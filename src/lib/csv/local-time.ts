@@ -10,9 +10,7 @@ export interface WallClock {
   millisecond: number;
 }
 
-export type LocalTimeResult =
-  | { ok: true; instant: Date; ambiguous: boolean }
-  | { ok: false; reason: 'nonexistent' };
+export type LocalTimeResult = { ok: true; instant: Date; ambiguous: boolean } | { ok: false; reason: 'nonexistent' };
 
 /** Throws a RangeError unless timeZone is an IANA zone this runtime knows. */
 export function assertTimeZone(timeZone: string): void {

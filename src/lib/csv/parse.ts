@@ -1,15 +1,7 @@
 import Papa from 'papaparse';
 import { fahrenheitToCelsius } from '../units';
 import { assertTimeZone, resolveLocalTime } from './local-time';
-import {
-  MAX_UPLOAD_ROWS,
-  RAW_DEGREES_MAX,
-  RAW_DEGREES_MIN,
-  RAW_SG_MAX,
-  RAW_SG_MIN,
-  SAMPLE_TEMP_MAX_C,
-  SAMPLE_TEMP_MIN_C,
-} from './format';
+import { MAX_UPLOAD_ROWS, RAW_DEGREES_MAX, RAW_DEGREES_MIN, RAW_SG_MAX, RAW_SG_MIN, SAMPLE_TEMP_MAX_C, SAMPLE_TEMP_MIN_C } from './format';
 
 import type { ReadingMethod, ReadingUnit, TemperatureUnit } from '../vocabulary';
 
@@ -58,42 +50,51 @@ const RAW_MAX_CHARS = 200;
 type Role = 'time' | 'value' | 'unit' | 'method' | 'temperature';
 type TempUnit = 'default' | TemperatureUnit;
 
-const HEADER_ROLES = new Map<string, { role: Role; tempUnit?: TempUnit }>(Object.entries({
-  time: { role: 'time' },
-  timestamp: { role: 'time' },
-  taken_at: { role: 'time' },
-  date: { role: 'time' },
-  value: { role: 'value' },
-  reading: { role: 'value' },
-  gravity: { role: 'value' },
-  sg: { role: 'value' },
-  unit: { role: 'unit' },
-  method: { role: 'method' },
-  instrument: { role: 'method' },
-  temperature: { role: 'temperature', tempUnit: 'default' },
-  temp: { role: 'temperature', tempUnit: 'default' },
-  sample_temp: { role: 'temperature', tempUnit: 'default' },
-  temp_c: { role: 'temperature', tempUnit: 'C' },
-  temp_f: { role: 'temperature', tempUnit: 'F' },
-} satisfies Record<string, { role: Role; tempUnit?: TempUnit }>));
+const HEADER_ROLES = new Map<string, { role: Role; tempUnit?: TempUnit }>(
+  Object.entries({
+    time: { role: 'time' },
+    timestamp: { role: 'time' },
+    taken_at: { role: 'time' },
+    date: { role: 'time' },
+    value: { role: 'value' },
+    reading: { role: 'value' },
+    gravity: { role: 'value' },
+    sg: { role: 'value' },
+    unit: { role: 'unit' },
+    method: { role: 'method' },
+    instrument: { role: 'method' },
+    temperature: { role: 'temperature', tempUnit: 'default' },
+    temp: { role: 'temperature', tempUnit: 'default' },
+    sample_temp: { role: 'temperature', tempUnit: 'default' },
+    temp_c: { role: 'temperature', tempUnit: 'C' },
+    temp_f: { role: 'temperature', tempUnit: 'F' },
+  } satisfies Record<string, { role: Role; tempUnit?: TempUnit }>),
+);
 
-const UNITS = new Map<string, LoggerUnit>(Object.entries({
-  sg: 'sg',
-  brix: 'brix',
-  bx: 'brix',
-  '°bx': 'brix',
-  plato: 'plato',
-  '°p': 'plato',
-} satisfies Record<string, LoggerUnit>));
+const UNITS = new Map<string, LoggerUnit>(
+  Object.entries({
+    sg: 'sg',
+    brix: 'brix',
+    bx: 'brix',
+    '°bx': 'brix',
+    plato: 'plato',
+    '°p': 'plato',
+  } satisfies Record<string, LoggerUnit>),
+);
 
-const METHODS = new Map<string, LoggerMethod>(Object.entries({
-  hydrometer: 'hydrometer',
-  refractometer: 'refractometer',
-  digital: 'digital',
-} satisfies Record<string, LoggerMethod>));
+const METHODS = new Map<string, LoggerMethod>(
+  Object.entries({
+    hydrometer: 'hydrometer',
+    refractometer: 'refractometer',
+    digital: 'digital',
+  } satisfies Record<string, LoggerMethod>),
+);
 
 function normaliseHeader(cell: string): string {
-  return cell.trim().toLowerCase().replace(/[\s-]+/g, '_');
+  return cell
+    .trim()
+    .toLowerCase()
+    .replace(/[\s-]+/g, '_');
 }
 
 /** Semicolon when the header line has more semicolons than commas (outside quotes). */
@@ -122,8 +123,7 @@ function parseNumber(cell: string, decimalComma: boolean): number | null {
   return Number.isFinite(n) ? n : null;
 }
 
-const ISO_DATE_TIME =
-  /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2})(?:[.,](\d{1,9}))?)?\s*(Z|[+-]\d{2}(?::?\d{2})?)?$/i;
+const ISO_DATE_TIME = /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2})(?:[.,](\d{1,9}))?)?\s*(Z|[+-]\d{2}(?::?\d{2})?)?$/i;
 
 function daysInMonth(year: number, month: number): number {
   return new Date(Date.UTC(year, month, 0)).getUTCDate();
@@ -143,16 +143,7 @@ function parseTime(cell: string, timeZone: string): TimeResult {
   const minute = Number(m[5]);
   const second = m[6] === undefined ? 0 : Number(m[6]);
   const millisecond = m[7] === undefined ? 0 : Math.floor(Number(`0.${m[7]}`) * 1000);
-  if (
-    year < 1970 ||
-    month < 1 ||
-    month > 12 ||
-    day < 1 ||
-    day > daysInMonth(year, month) ||
-    hour > 23 ||
-    minute > 59 ||
-    second > 59
-  ) {
+  if (year < 1970 || month < 1 || month > 12 || day < 1 || day > daysInMonth(year, month) || hour > 23 || minute > 59 || second > 59) {
     return { ok: false, reason: `time "${text.slice(0, 40)}" is not a valid date and time` };
   }
   const zone = m[8];
@@ -248,10 +239,7 @@ function checkRow(
   // decimal comma in a comma-separated file): nothing in the line can be trusted.
   if (cells.length > headerWidth) {
     return {
-      reasons: [
-        `line has ${cells.length} fields but the header has ${headerWidth}` +
-          (decimalComma ? '' : ' (a decimal comma in a comma-separated file?)'),
-      ],
+      reasons: [`line has ${cells.length} fields but the header has ${headerWidth}` + (decimalComma ? '' : ' (a decimal comma in a comma-separated file?)')],
     };
   }
   const cell = (index: number | null): string => (index === null ? '' : (cells[index] ?? '').trim());

@@ -50,7 +50,16 @@ export interface BacktestReport {
   outcome: { finished: number; stalled: number; souring: number; unfinished: number };
   readyMaeDays: Record<'25' | '50' | '75', { ours: ErrorStats; oracle: ErrorStats; baselineWashMedian: ErrorStats; baselineLastTwo: ErrorStats }>;
   coverage: { p10p90: number | null; n: number; atCheckpoints: number | null; nCheckpoints: number };
-  stall: { precision: number | null; recall: number | null; medianDelayDays: number | null; maxDelayDays: number | null; truePositives: number; falsePositives: number; finishedReportedStalled: number; actual: number };
+  stall: {
+    precision: number | null;
+    recall: number | null;
+    medianDelayDays: number | null;
+    maxDelayDays: number | null;
+    truePositives: number;
+    falsePositives: number;
+    finishedReportedStalled: number;
+    actual: number;
+  };
   souring: { recall: number | null; actual: number; falsePositives: number };
   timing: { totalMs: number; meanMsPerForecast: number };
 }
@@ -119,14 +128,24 @@ export function runBacktest(ferments: BacktestFerment[], o: BacktestOptions): Ba
         }
       }
     }
-    return { f, sorted, pitchedAt: sorted[0].takenAt.getTime(), og: sorted[0].sg, range, outcome, ruleAt: met ? met.at.getTime() : null, finalSg, dense, series };
+    return {
+      f,
+      sorted,
+      pitchedAt: sorted[0].takenAt.getTime(),
+      og: sorted[0].sg,
+      range,
+      outcome,
+      ruleAt: met ? met.at.getTime() : null,
+      finalSg,
+      dense,
+      series,
+    };
   });
 
   const checkpoints = ['25', '50', '75'] as const;
-  const errs = Object.fromEntries(checkpoints.map((c) => [c, { ours: [] as number[], oracle: [] as number[], a: [] as number[], b: [] as number[] }])) as Record<
-    (typeof checkpoints)[number],
-    { ours: number[]; oracle: number[]; a: number[]; b: number[] }
-  >;
+  const errs = Object.fromEntries(
+    checkpoints.map((c) => [c, { ours: [] as number[], oracle: [] as number[], a: [] as number[], b: [] as number[] }]),
+  ) as Record<(typeof checkpoints)[number], { ours: number[]; oracle: number[]; a: number[]; b: number[] }>;
   let forecasts = 0;
   let covered = 0;
   let coverN = 0;
@@ -251,4 +270,3 @@ export function runBacktest(ferments: BacktestFerment[], o: BacktestOptions): Ba
     timing: { totalMs, meanMsPerForecast: forecasts ? totalMs / forecasts : 0 },
   };
 }
-

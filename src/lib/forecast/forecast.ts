@@ -180,7 +180,13 @@ const empty: Omit<Forecast, 'status' | 'reason'> = {
  * (median and robust spread of the past durations still possible as of now). Early on the
  * fit is loose and the history counts; once the curve's bend is seen the fit dominates.
  */
-function historyShift(history: readonly number[] | undefined, fitted: number, q10: number, q90: number, nowDays: number): { shift: number; used: ForecastHistoryUse | null } {
+function historyShift(
+  history: readonly number[] | undefined,
+  fitted: number,
+  q10: number,
+  q90: number,
+  nowDays: number,
+): { shift: number; used: ForecastHistoryUse | null } {
   const h = C.history;
   if (!h.enabled || !history) return { shift: 0, used: null };
   const still = history.filter((d) => Number.isFinite(d) && d > nowDays).sort((a, b) => a - b);
@@ -252,7 +258,7 @@ export function forecastFerment(input: ForecastInput): Forecast {
     const done = fg !== null && input.og - fg > 0 ? (input.og - level) / (input.og - fg) : 0;
     status = done >= C.slowingFraction || (held && stab.heldDays >= 0.5) ? 'slowing' : 'active';
     if (held && stab.heldDays >= 0.5) reason = `held at ${fmt(stab.level as number)} for ${days(stab.heldDays)} of ${days(input.stableDays)} days`;
-    else reason = `falling ${(Math.max(dropPerDay ?? 0, 0)).toFixed(3)} per day`;
+    else reason = `falling ${Math.max(dropPerDay ?? 0, 0).toFixed(3)} per day`;
     if (fg !== null && fg > max + tol) reason += `; heading for ${fmt(fg)}, above the expected ${rangeText}`;
   }
 

@@ -80,12 +80,7 @@ export function generateFerments({ count, seed, stableDays = 3 }: GeneratorOptio
     const r = rand();
     const kind: SyntheticTruth['kind'] = r < 0.12 ? 'stall' : r < 0.2 ? 'souring' : 'normal';
     const og = Math.round(u(...OG_RANGE[washType]) * 1000) / 1000;
-    const fg =
-      kind === 'stall'
-        ? range.max + u(0.006, 0.02)
-        : kind === 'souring'
-          ? range.min - u(0.004, 0.01)
-          : u(range.min + 0.0015, range.max - 0.0015);
+    const fg = kind === 'stall' ? range.max + u(0.006, 0.02) : kind === 'souring' ? range.min - u(0.004, 0.01) : u(range.min + 0.0015, range.max - 0.0015);
     let curve: TrueCurve;
     if (rand() < 0.5) {
       curve = { model: 'first_order', og, fg, kPerDay: u(0.3, 0.9), lagDays: u(0.1, 1.5) };
@@ -111,11 +106,7 @@ export function generateFerments({ count, seed, stableDays = 3 }: GeneratorOptio
       }
     } else {
       const refractometer = rand() < 0.2;
-      const dayStart = Date.UTC(
-        new Date(pitchedAt).getUTCFullYear(),
-        new Date(pitchedAt).getUTCMonth(),
-        new Date(pitchedAt).getUTCDate(),
-      );
+      const dayStart = Date.UTC(new Date(pitchedAt).getUTCFullYear(), new Date(pitchedAt).getUTCMonth(), new Date(pitchedAt).getUTCDate());
       for (let d = dayStart; d <= end; d += DAY_MS) {
         const dow = new Date(d).getUTCDay();
         const weekend = dow === 0 || dow === 6;

@@ -117,10 +117,7 @@ export function correctReading(input: RawReading): CorrectedReading {
         );
       } else {
         if (input.originalGravity === null || input.originalGravity === undefined) {
-          throw new GravityInputError(
-            'originalGravity',
-            'A refractometer reading during fermentation needs the ferment’s original gravity.',
-          );
+          throw new GravityInputError('originalGravity', 'A refractometer reading during fermentation needs the ferment’s original gravity.');
         }
         const og = requireRange(input.originalGravity, CORRECTED_SG_MIN, CORRECTED_SG_MAX, 'originalGravity', 'Original gravity');
         const originalBrix = sgToBrix(og);

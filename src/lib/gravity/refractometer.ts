@@ -27,15 +27,7 @@ function corrected(originalBrix: number, currentBrix: number, wcf: number): { i:
 export function refractometerFinalSg(originalBrix: number, currentBrix: number, wcf: number = DEFAULT_WCF): number {
   const { i, f } = corrected(originalBrix, currentBrix, wcf);
   if (currentBrix === originalBrix) return brixToSg(f);
-  return (
-    1.0 -
-    0.0044993 * i +
-    0.011774 * f +
-    0.00027581 * i ** 2 -
-    0.0012717 * f ** 2 -
-    0.00000728 * i ** 3 +
-    0.000063293 * f ** 3
-  );
+  return 1.0 - 0.0044993 * i + 0.011774 * f + 0.00027581 * i ** 2 - 0.0012717 * f ** 2 - 0.00000728 * i ** 3 + 0.000063293 * f ** 3;
 }
 
 /** Terrill linear fit (same source), for comparison. */

@@ -1,9 +1,1 @@
-export {
-  parseTrustProxy,
-  clientAddressFrom,
-  normaliseAddress,
-  forwardedHops,
-  TrustProxyError,
-  LOOPBACK_ENTRIES,
-  type TrustedProxies,
-} from './trusted-proxies';
+export { parseTrustProxy, clientAddressFrom, normaliseAddress, forwardedHops, TrustProxyError, LOOPBACK_ENTRIES, type TrustedProxies } from './trusted-proxies';

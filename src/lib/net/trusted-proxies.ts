@@ -61,7 +61,9 @@ function addEntry(list: BlockList, entry: string): void {
   const addressText = slash === -1 ? entry : entry.slice(0, slash);
   // A bare address only: brackets, a port or a zone in the configuration is a mistake worth naming.
   if ((!isIPv4(addressText) && !isIPv6(addressText)) || addressText.includes('%')) {
-    throw new TrustProxyError(`TRUST_PROXY: "${entry}" is not an IP address or CIDR range (e.g. 10.0.0.5, 10.0.0.0/8, fd00::/8); separate entries with commas.`);
+    throw new TrustProxyError(
+      `TRUST_PROXY: "${entry}" is not an IP address or CIDR range (e.g. 10.0.0.5, 10.0.0.0/8, fd00::/8); separate entries with commas.`,
+    );
   }
   const address = normaliseAddress(addressText)!;
   const family = isIPv4(address) ? 'ipv4' : 'ipv6';
@@ -90,7 +92,15 @@ function addEntry(list: BlockList, entry: string): void {
  */
 export function parseTrustProxy(value: string | undefined | null): TrustedProxies {
   const text = (value ?? '').trim();
-  const pieces = text === '' ? [] : text === '1' ? [...LOOPBACK_ENTRIES] : text.split(',').map((p) => p.trim()).filter((p) => p !== '');
+  const pieces =
+    text === ''
+      ? []
+      : text === '1'
+        ? [...LOOPBACK_ENTRIES]
+        : text
+            .split(',')
+            .map((p) => p.trim())
+            .filter((p) => p !== '');
   const list = new BlockList();
   for (const piece of pieces) addEntry(list, piece);
   const entries = Object.freeze(pieces);
@@ -109,7 +119,10 @@ export function parseTrustProxy(value: string | undefined | null): TrustedProxie
 export function forwardedHops(header: string | readonly string[] | undefined | null): string[] {
   if (header == null) return [];
   const joined = typeof header === 'string' ? header : header.join(',');
-  return joined.split(',').map((h) => h.trim()).filter((h) => h !== '');
+  return joined
+    .split(',')
+    .map((h) => h.trim())
+    .filter((h) => h !== '');
 }
 
 /**

@@ -131,7 +131,14 @@ export function troubleRates(items: readonly OutcomeStatusInput[]): TroubleRate[
     bump('All washes', st, so);
   }
   return [...groups.entries()]
-    .map(([washType, g]) => ({ washType, ferments: g.n, stalled: g.stalled, souring: g.souring, stallRate: g.n ? g.stalled / g.n : null, souringRate: g.n ? g.souring / g.n : null }))
+    .map(([washType, g]) => ({
+      washType,
+      ferments: g.n,
+      stalled: g.stalled,
+      souring: g.souring,
+      stallRate: g.n ? g.stalled / g.n : null,
+      souringRate: g.n ? g.souring / g.n : null,
+    }))
     .sort((a, b) => (a.washType === 'All washes' ? 1 : b.washType === 'All washes' ? -1 : a.washType.localeCompare(b.washType)));
 }
 
@@ -190,8 +197,13 @@ export function accuracyPoints(items: readonly AccuracyInput[]): AccuracyPoint[]
     const signed = (best.readyAt.getTime() - it.ruleMetAt.getTime()) / DAY_MS;
     const a = it.ruleMetAt.getTime();
     out.push({
-      fermentId: it.fermentId, code: it.code, actual: it.ruleMetAt, asOf: best.asOf, predicted: best.readyAt,
-      absErrorDays: Math.abs(signed), signedErrorDays: signed,
+      fermentId: it.fermentId,
+      code: it.code,
+      actual: it.ruleMetAt,
+      asOf: best.asOf,
+      predicted: best.readyAt,
+      absErrorDays: Math.abs(signed),
+      signedErrorDays: signed,
       insideWindow: best.readyP10 && best.readyP90 ? best.readyP10.getTime() <= a && a <= best.readyP90.getTime() : null,
     });
   }
@@ -213,16 +225,18 @@ export function accuracyByMonth(points: readonly AccuracyPoint[], timeZone: stri
     const m = monthOf(p.actual, timeZone);
     groups.set(m, [...(groups.get(m) ?? []), p]);
   }
-  return [...groups.entries()].sort(([a], [b]) => a.localeCompare(b)).map(([month, ps]) => {
-    const windowed = ps.filter((p) => p.insideWindow !== null);
-    return {
-      month,
-      n: ps.length,
-      meanAbsErrorDays: mean(ps.map((p) => p.absErrorDays))!,
-      medianAbsErrorDays: spreadOf(ps.map((p) => p.absErrorDays))!.median,
-      insideShare: windowed.length ? windowed.filter((p) => p.insideWindow).length / windowed.length : null,
-    };
-  });
+  return [...groups.entries()]
+    .sort(([a], [b]) => a.localeCompare(b))
+    .map(([month, ps]) => {
+      const windowed = ps.filter((p) => p.insideWindow !== null);
+      return {
+        month,
+        n: ps.length,
+        meanAbsErrorDays: mean(ps.map((p) => p.absErrorDays))!,
+        medianAbsErrorDays: spreadOf(ps.map((p) => p.absErrorDays))!.median,
+        insideShare: windowed.length ? windowed.filter((p) => p.insideWindow).length / windowed.length : null,
+      };
+    });
 }
 
 // ---------------------------------------------------------------- throughput
@@ -294,7 +308,7 @@ export interface YieldRow {
 }
 
 export const YIELD_FORMULA =
-  'LAA per tonne = (Σ over the stripping runs the ferment charged of low-wines LAA × the ferment\'s share of that charge) ÷ (recipe ingredients in kg ÷ 1000).';
+  "LAA per tonne = (Σ over the stripping runs the ferment charged of low-wines LAA × the ferment's share of that charge) ÷ (recipe ingredients in kg ÷ 1000).";
 
 /** Yield of low wines (LAA) per tonne of recipe ingredients, for ferments with a recipe and a recorded stripping run. */
 export function yieldPerTonne(items: readonly YieldInput[]): YieldRow[] {

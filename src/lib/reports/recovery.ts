@@ -68,9 +68,12 @@ const isNum = (v: unknown): v is number => typeof v === 'number' && Number.isFin
  * Field messages for a run record, keyed like the request body
  * ('chargeLitres', 'fractions.2.readingTempC' ...). Empty when everything is acceptable.
  */
-export function validateRunRecord(
-  input: { runType: RecordableRunType; stillCapacityLitres: number; charge: ChargeInput; fractions: readonly FractionInput[] },
-): FieldErrors {
+export function validateRunRecord(input: {
+  runType: RecordableRunType;
+  stillCapacityLitres: number;
+  charge: ChargeInput;
+  fractions: readonly FractionInput[];
+}): FieldErrors {
   const errors: FieldErrors = {};
   const maxLitres = MAX_VOLUME_CAPACITY_FACTOR * input.stillCapacityLitres;
   const volumeCheck = (key: string, v: unknown, label: string) => {
@@ -91,7 +94,8 @@ export function validateRunRecord(
   input.fractions.forEach((f, i) => {
     const k = (field: string) => `fractions.${i}.${field}`;
     if (allowed.length > 0 && !allowed.includes(f.fraction)) {
-      errors[k('fraction')] = `A ${input.runType} run records ${allowed.map((a) => FRACTION_LABELS[a].toLowerCase()).join(', ')}, not ${FRACTION_LABELS[f.fraction]?.toLowerCase() ?? f.fraction}.`;
+      errors[k('fraction')] =
+        `A ${input.runType} run records ${allowed.map((a) => FRACTION_LABELS[a].toLowerCase()).join(', ')}, not ${FRACTION_LABELS[f.fraction]?.toLowerCase() ?? f.fraction}.`;
     }
     if (seen.has(f.fraction)) errors[k('fraction')] = `${FRACTION_LABELS[f.fraction]} is listed twice.`;
     seen.add(f.fraction);
@@ -101,7 +105,9 @@ export function validateRunRecord(
     if (!readingOk) errors[k('alcoholmeterReading')] = 'Alcoholmeter reading must be between 0 and 100 % vol.';
     const t = f.readingTempC;
     const tempOk = isNum(t) && t >= READING_TEMP_MIN_C && t <= READING_TEMP_MAX_C;
-    if (!tempOk) errors[k('readingTempC')] = `Reading temperature must be between ${READING_TEMP_MIN_C} and ${READING_TEMP_MAX_C} °C (the range of the alcoholometric tables).`;
+    if (!tempOk)
+      errors[k('readingTempC')] =
+        `Reading temperature must be between ${READING_TEMP_MIN_C} and ${READING_TEMP_MAX_C} °C (the range of the alcoholometric tables).`;
     if (readingOk && tempOk) {
       try {
         alcoholmeterCorrection(r, t);
@@ -144,7 +150,7 @@ export interface FermentCharge {
 export const EXPECTED_LAA_FORMULA =
   `Expected LAA = Σ over the charged ferments of (litres taken from the ferment × ABV / 100), ABV from OG and FG by the ${ABV_FORMULA_NAME}; ` +
   'FG is the last gravity reading once the ferment is finished (or emptied), else its predicted FG. ' +
-  'For a spirit run: Σ over feeding stripping runs of (litres of low wines taken ÷ low wines that run made) × that run\'s expected LAA.';
+  "For a spirit run: Σ over feeding stripping runs of (litres of low wines taken ÷ low wines that run made) × that run's expected LAA.";
 
 /** LAA the ferments charged into a stripping run were expected to give; null when a ferment's FG is unknown or unusable. */
 export function expectedLaaFromFerments(lines: readonly FermentCharge[]): number | null {

@@ -28,7 +28,10 @@ export function quantileSorted(sorted: readonly number[], p: number): number {
 }
 
 export function median(values: readonly number[]): number {
-  return quantileSorted([...values].sort((a, b) => a - b), 0.5);
+  return quantileSorted(
+    [...values].sort((a, b) => a - b),
+    0.5,
+  );
 }
 
 /** Median and interquartile spread; null for no values. */

@@ -5,7 +5,9 @@
  */
 
 /** A line of litres: wash from a ferment, or low wines from a feeding stripping run. */
-export interface LitresLine { litres: number }
+export interface LitresLine {
+  litres: number;
+}
 
 export interface ChargeSource {
   /** The charge stored on the run (booked or recorded); null when not set. */

@@ -24,10 +24,7 @@ export function formatLitres(litres: number): string {
 }
 
 /** 'ready window 3 Dec 06:00 – 4 Dec 18:00', or the single predicted time when there is no window. */
-export function formatReadyWindow(
-  f: { readyAt: Date | null; readyP10: Date | null; readyP90: Date | null },
-  timeZone: string,
-): string | null {
+export function formatReadyWindow(f: { readyAt: Date | null; readyP10: Date | null; readyP90: Date | null }, timeZone: string): string | null {
   if (f.readyP10 && f.readyP90) return `ready window ${formatWhen(f.readyP10, timeZone)} – ${formatWhen(f.readyP90, timeZone)}`;
   if (f.readyAt) return `predicted ready ${formatWhen(f.readyAt, timeZone)}`;
   return null;

@@ -7,17 +7,13 @@ export function needsCleaningAfter(type: RunType): boolean {
   return type === 'stripping' || type === 'spirit' || type === 'redistillation';
 }
 
-export type OverlapCandidate = Pick<Run, 'stillId' | 'startsAt' | 'endsAt'> &
-  Partial<Pick<Run, 'id' | 'type' | 'status'>>;
+export type OverlapCandidate = Pick<Run, 'stillId' | 'startsAt' | 'endsAt'> & Partial<Pick<Run, 'id' | 'type' | 'status'>>;
 
 /**
  * The time a run keeps its still busy: [startsAt, endsAt + cleaning slot).
  * A candidate with no `type` is treated as a distillation run.
  */
-export function occupiedRange(
-  run: OverlapCandidate,
-  still?: Pick<Still, 'cleaningAfterRunMinutes'> | null,
-): TimeRange {
+export function occupiedRange(run: OverlapCandidate, still?: Pick<Still, 'cleaningAfterRunMinutes'> | null): TimeRange {
   const cleaning = still && (run.type === undefined || needsCleaningAfter(run.type)) ? still.cleaningAfterRunMinutes : 0;
   return { start: run.startsAt, end: new Date(run.endsAt.getTime() + Math.max(0, cleaning) * MINUTE_MS) };
 }

@@ -101,9 +101,7 @@ export function zonedDateTime(ymd: string, hm: string | number, timeZone: string
   const localMs = Date.UTC(y, mo - 1, d) + minutes * MINUTE_MS;
   const before = offsetMinutes(timeZone, localMs - DAY_MS / 2);
   const after = offsetMinutes(timeZone, localMs + DAY_MS / 2);
-  const candidates = [before, after]
-    .map((offset) => localMs - offset * MINUTE_MS)
-    .filter((t) => localMs - offsetMinutes(timeZone, t) * MINUTE_MS === t);
+  const candidates = [before, after].map((offset) => localMs - offset * MINUTE_MS).filter((t) => localMs - offsetMinutes(timeZone, t) * MINUTE_MS === t);
   if (candidates.length > 0) return new Date(Math.min(...candidates));
   // In a gap: read the wall time with the offset in force before the change.
   return new Date(localMs - before * MINUTE_MS);
@@ -143,11 +141,7 @@ export function shiftRun<T extends { startsAt: Date; endsAt: Date }>(run: T, new
  * `timeZone` (06:00 stays 06:00 across a daylight-saving change); its true
  * length is kept, so its wall-clock end may move by the change.
  */
-export function moveRunPreservingWallClock<T extends { startsAt: Date; endsAt: Date }>(
-  run: T,
-  targetYmd: string,
-  timeZone: string,
-): T {
+export function moveRunPreservingWallClock<T extends { startsAt: Date; endsAt: Date }>(run: T, targetYmd: string, timeZone: string): T {
   const { hm } = wallClock(run.startsAt, timeZone);
   return shiftRun(run, zonedDateTime(targetYmd, hm, timeZone));
 }
@@ -159,9 +153,7 @@ export function isClosedOn(still: Pick<Still, 'closures'>, ymd: string): boolean
 
 /** Merge overlapping or touching intervals; input need not be sorted. */
 export function mergeRanges(ranges: TimeRange[]): TimeRange[] {
-  const sorted = ranges
-    .filter((r) => r.end.getTime() > r.start.getTime())
-    .sort((a, b) => a.start.getTime() - b.start.getTime());
+  const sorted = ranges.filter((r) => r.end.getTime() > r.start.getTime()).sort((a, b) => a.start.getTime() - b.start.getTime());
   const merged: TimeRange[] = [];
   for (const r of sorted) {
     const last = merged[merged.length - 1];

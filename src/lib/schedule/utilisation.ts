@@ -26,11 +26,7 @@ function intersect(a: TimeRange[], b: TimeRange[]): TimeRange[] {
  * slots are not booked time unless booked as cleaning runs.
  */
 export function bookedHours(runs: readonly Run[], still: Pick<Still, 'id' | 'operatingHours' | 'closures'>, range: TimeRange, timeZone: string): number {
-  const booked = mergeRanges(
-    runs
-      .filter((r) => r.stillId === still.id && r.status !== 'cancelled')
-      .map((r) => ({ start: r.startsAt, end: r.endsAt })),
-  );
+  const booked = mergeRanges(runs.filter((r) => r.stillId === still.id && r.status !== 'cancelled').map((r) => ({ start: r.startsAt, end: r.endsAt })));
   return totalHours(intersect(booked, openIntervals(still, range, timeZone)));
 }
 
@@ -45,16 +41,8 @@ export function bookedHours(runs: readonly Run[], still: Pick<Still, 'id' | 'ope
  * hours count when they fall in the still's available hours within `range`.
  * A wash confirmed before the still came free adds nothing.
  */
-export function idleWaitingHours(
-  runs: readonly Run[],
-  still: Still,
-  ferments: FermentLookup,
-  range: TimeRange,
-  timeZone: string,
-): number {
-  const live = runs
-    .filter((r) => r.stillId === still.id && r.status !== 'cancelled')
-    .sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime());
+export function idleWaitingHours(runs: readonly Run[], still: Still, ferments: FermentLookup, range: TimeRange, timeZone: string): number {
+  const live = runs.filter((r) => r.stillId === still.id && r.status !== 'cancelled').sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime());
   const waiting: TimeRange[] = [];
   for (const run of live) {
     if (run.ferments.length === 0) continue;

@@ -63,14 +63,28 @@ function readinessWarnings(run: Run, f: FermentState, timeZone: string): Warning
   const base = { fermentId: f.id };
 
   if (f.status === 'stalled') {
-    return [{ ...base, code: 'ferment_stalled', severity: 'danger', message: `${name} has stalled: its gravity holds above the finishing range, so it is not ready for the still` }];
+    return [
+      {
+        ...base,
+        code: 'ferment_stalled',
+        severity: 'danger',
+        message: `${name} has stalled: its gravity holds above the finishing range, so it is not ready for the still`,
+      },
+    ];
   }
   if (f.status === 'souring') {
     return [{ ...base, code: 'ferment_souring', severity: 'danger', message: `${name} shows signs of souring: check it before it goes to the still` }];
   }
   if (f.status === 'finished' && f.confirmedAt) {
     if (start < f.confirmedAt.getTime()) {
-      return [{ ...base, code: 'booked_before_stable', severity: 'warning', message: `${name} was confirmed stable only at ${formatWhen(f.confirmedAt, timeZone)}, after this run starts` }];
+      return [
+        {
+          ...base,
+          code: 'booked_before_stable',
+          severity: 'warning',
+          message: `${name} was confirmed stable only at ${formatWhen(f.confirmedAt, timeZone)}, after this run starts`,
+        },
+      ];
     }
     return [];
   }
@@ -84,7 +98,9 @@ function readinessWarnings(run: Run, f: FermentState, timeZone: string): Warning
     return [{ ...base, code: 'booked_before_stable', severity: 'warning', message: `${name} is not confirmed stable: ${window}` }];
   }
   if (window) {
-    return [{ ...base, code: 'booked_before_stable', severity: 'info', message: `${name} should be finished by then (${window}) but is not confirmed stable yet` }];
+    return [
+      { ...base, code: 'booked_before_stable', severity: 'info', message: `${name} should be finished by then (${window}) but is not confirmed stable yet` },
+    ];
   }
   return [{ ...base, code: 'booked_before_stable', severity: 'warning', message: `${name} has no forecast yet and is not confirmed stable` }];
 }

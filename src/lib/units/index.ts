@@ -78,23 +78,17 @@ export function formatNumber(value: number, decimals: number): string {
 
 /** "20.0 °C" or "68.0 °F" from a Celsius value. */
 export function formatTemperature(c: number, system: UnitSystem, decimals = 1): string {
-  return system === 'us'
-    ? `${formatNumber(celsiusToFahrenheit(c), decimals)} °F`
-    : `${formatNumber(c, decimals)} °C`;
+  return system === 'us' ? `${formatNumber(celsiusToFahrenheit(c), decimals)} °F` : `${formatNumber(c, decimals)} °C`;
 }
 
 /** "1000 L" or "264.2 gal" from litres. */
 export function formatVolume(litres: number, system: UnitSystem, decimals = 0): string {
-  return system === 'us'
-    ? `${formatNumber(litresToUsGallons(litres), decimals)} gal`
-    : `${formatNumber(litres, decimals)} L`;
+  return system === 'us' ? `${formatNumber(litresToUsGallons(litres), decimals)} gal` : `${formatNumber(litres, decimals)} L`;
 }
 
 /** "25.0 kg" or "55.1 lb" from kilograms. */
 export function formatMass(kg: number, system: UnitSystem, decimals = 1): string {
-  return system === 'us'
-    ? `${formatNumber(kgToPounds(kg), decimals)} lb`
-    : `${formatNumber(kg, decimals)} kg`;
+  return system === 'us' ? `${formatNumber(kgToPounds(kg), decimals)} lb` : `${formatNumber(kg, decimals)} kg`;
 }
 
 /** Value in the display unit of the system, for inputs pre-filled from stored SI values. */

@@ -5,7 +5,7 @@
  */
 const SECRET_LINK = /https?:\/\/[^\s"'<>]+\/(?:reset-password|confirm|invite)\/[A-Za-z0-9_-]{10,}/g;
 
-export const LINK_REMOVED = '[link removed: it works only from the recipient\'s own mailbox]';
+export const LINK_REMOVED = "[link removed: it works only from the recipient's own mailbox]";
 
 export function secretLinksIn(text: string): string[] {
   return [...text.matchAll(SECRET_LINK)].map((m) => m[0]);

@@ -7,10 +7,7 @@ import { json, jsonError } from '../../server/http';
 export const GET: APIRoute = async () => {
   const started = performance.now();
   try {
-    await Promise.race([
-      getDb().execute(sql`SELECT 1`),
-      new Promise((_, reject) => setTimeout(() => reject(new Error('timeout')), 2000)),
-    ]);
+    await Promise.race([getDb().execute(sql`SELECT 1`), new Promise((_, reject) => setTimeout(() => reject(new Error('timeout')), 2000))]);
     return json({ status: 'ok', database: { ok: true, roundTripMs: Math.round((performance.now() - started) * 100) / 100 } });
   } catch {
     return jsonError(503, 'unavailable', 'The database is not answering.', undefined, { 'retry-after': '5' });

@@ -17,9 +17,20 @@ export const SESSION_ABSOLUTE_MS = 30 * 24 * 3600 * 1000;
 let instance: Lucia<Record<never, never>, DatabaseUserAttributes> | null = null;
 
 /** One of the signed-in person's workspaces, with its settings, as the middleware needs it. */
-export interface SessionMembership { workspaceId: number; name: string; role: Role; settings: WorkspaceSettings }
+export interface SessionMembership {
+  workspaceId: number;
+  name: string;
+  role: Role;
+  settings: WorkspaceSettings;
+}
 
-interface DatabaseUserAttributes { email: string; name: string; disabledAt: Date | null; emailVerifiedAt: Date | null; memberships: SessionMembership[] }
+interface DatabaseUserAttributes {
+  email: string;
+  name: string;
+  disabledAt: Date | null;
+  emailVerifiedAt: Date | null;
+  memberships: SessionMembership[];
+}
 
 /**
  * The drizzle adapter, except that a session is validated in one round trip: the session, its
@@ -29,10 +40,18 @@ interface DatabaseUserAttributes { email: string; name: string; disabledAt: Date
 class PlateauSessionAdapter extends DrizzleMySQLAdapter {
   private lookup = getDb()
     .select({
-      sessionId: sessions.id, userId: sessions.userId, expiresAt: sessions.expiresAt, sessionWorkspaceId: sessions.workspaceId,
-      createdAt: sessions.createdAt, userAgent: sessions.userAgent,
-      email: users.email, name: users.name, disabledAt: users.disabledAt, emailVerifiedAt: users.emailVerifiedAt,
-      role: memberships.role, ws: workspaces,
+      sessionId: sessions.id,
+      userId: sessions.userId,
+      expiresAt: sessions.expiresAt,
+      sessionWorkspaceId: sessions.workspaceId,
+      createdAt: sessions.createdAt,
+      userAgent: sessions.userAgent,
+      email: users.email,
+      name: users.name,
+      disabledAt: users.disabledAt,
+      emailVerifiedAt: users.emailVerifiedAt,
+      role: memberships.role,
+      ws: workspaces,
     })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))
@@ -49,18 +68,36 @@ class PlateauSessionAdapter extends DrizzleMySQLAdapter {
     const mine: SessionMembership[] = [];
     for (const r of rows) if (r.ws && r.role) mine.push({ workspaceId: r.ws.id, name: r.ws.name, role: r.role, settings: toSettings(r.ws) });
     return [
-      { id: first.sessionId, userId: first.userId, expiresAt: first.expiresAt, attributes: { workspaceId: first.sessionWorkspaceId, createdAt: first.createdAt, userAgent: first.userAgent } },
-      { id: first.userId, attributes: { email: first.email, name: first.name, disabledAt: first.disabledAt, emailVerifiedAt: first.emailVerifiedAt, memberships: mine } },
+      {
+        id: first.sessionId,
+        userId: first.userId,
+        expiresAt: first.expiresAt,
+        attributes: { workspaceId: first.sessionWorkspaceId, createdAt: first.createdAt, userAgent: first.userAgent },
+      },
+      {
+        id: first.userId,
+        attributes: { email: first.email, name: first.name, disabledAt: first.disabledAt, emailVerifiedAt: first.emailVerifiedAt, memberships: mine },
+      },
     ];
   }
 }
-interface DatabaseSessionAttributes { workspaceId: number | null; createdAt: Date; userAgent: string | null }
+interface DatabaseSessionAttributes {
+  workspaceId: number | null;
+  createdAt: Date;
+  userAgent: string | null;
+}
 
 export function lucia() {
   instance ??= new Lucia(new PlateauSessionAdapter(getDb(), sessions, users), {
     sessionExpiresIn: SESSION_IDLE,
     sessionCookie: { name: 'plateau_session', expires: false, attributes: { sameSite: 'lax', secure: false } },
-    getUserAttributes: (a) => ({ email: a.email, name: a.name, disabledAt: a.disabledAt, emailVerifiedAt: a.emailVerifiedAt, memberships: a.memberships ?? [] }),
+    getUserAttributes: (a) => ({
+      email: a.email,
+      name: a.name,
+      disabledAt: a.disabledAt,
+      emailVerifiedAt: a.emailVerifiedAt,
+      memberships: a.memberships ?? [],
+    }),
     getSessionAttributes: (a: DatabaseSessionAttributes) => ({ workspaceId: a.workspaceId, createdAt: a.createdAt, userAgent: a.userAgent }),
   }) as unknown as Lucia<Record<never, never>, DatabaseUserAttributes>;
   return instance;
@@ -112,6 +149,8 @@ export function sessionTokenFrom(cookies: AstroCookies): string | null {
 /** A new session: a fresh 256-bit token for the cookie, stored as its hash. */
 export async function createSession(userId: number, workspaceId: number | null, userAgent: string | null) {
   const token = newToken();
-  const session = await lucia().createSession(userId, { workspaceId, createdAt: new Date(), userAgent: userAgent?.slice(0, 250) ?? null } as never, { sessionId: sessionIdFor(token) });
+  const session = await lucia().createSession(userId, { workspaceId, createdAt: new Date(), userAgent: userAgent?.slice(0, 250) ?? null } as never, {
+    sessionId: sessionIdFor(token),
+  });
   return Object.assign(session, { token });
 }

@@ -65,10 +65,18 @@ export function startFakeSmtp(opts: { port: number; dir: string; host?: string }
 /** Messages kept by the fake server, newest first. */
 export function readMailbox(dir: string): StoredMail[] {
   let files: string[] = [];
-  try { files = readdirSync(dir).filter((f) => f.endsWith('.json')); } catch { return []; }
+  try {
+    files = readdirSync(dir).filter((f) => f.endsWith('.json'));
+  } catch {
+    return [];
+  }
   const out: StoredMail[] = [];
   for (const f of files) {
-    try { out.push(JSON.parse(readFileSync(path.join(dir, f), 'utf8')) as StoredMail); } catch { /* partly written; skip */ }
+    try {
+      out.push(JSON.parse(readFileSync(path.join(dir, f), 'utf8')) as StoredMail);
+    } catch {
+      /* partly written; skip */
+    }
   }
   return out.sort((a, b) => b.receivedAt.localeCompare(a.receivedAt) || b.id.localeCompare(a.id));
 }

@@ -62,7 +62,12 @@ export interface DeliverOptions {
   workspaceId?: number;
 }
 
-export interface DeliverResult { claimed: number; sent: number; retried: number; failed: number }
+export interface DeliverResult {
+  claimed: number;
+  sent: number;
+  retried: number;
+  failed: number;
+}
 
 const transports = new Map<string, Transporter>();
 function transportFor(url: string): Transporter {
@@ -96,9 +101,10 @@ export async function deliverDue(opts: DeliverOptions): Promise<DeliverResult> {
   await db.execute(sql`UPDATE mail_outbox SET claimed_by = ${opts.instanceId}, claim_until = ${leaseUntil}
     WHERE status = 'pending' AND next_attempt_at <= ${now} AND (claim_until IS NULL OR claim_until < ${now})${scope}
     ORDER BY next_attempt_at, id LIMIT ${limit}`);
-  const rows = await db.select().from(mailOutbox).where(and(
-    eq(mailOutbox.claimedBy, opts.instanceId), eq(mailOutbox.status, 'pending'), sql`${mailOutbox.claimUntil} = ${leaseUntil}`,
-  ));
+  const rows = await db
+    .select()
+    .from(mailOutbox)
+    .where(and(eq(mailOutbox.claimedBy, opts.instanceId), eq(mailOutbox.status, 'pending'), sql`${mailOutbox.claimUntil} = ${leaseUntil}`));
   const result: DeliverResult = { claimed: rows.length, sent: 0, retried: 0, failed: 0 };
   if (!rows.length) return result;
   const transport = transportFor(opts.smtpUrl);
@@ -118,7 +124,10 @@ export async function deliverDue(opts: DeliverOptions): Promise<DeliverResult> {
         await db.update(mailOutbox).set({ status: 'failed', attempts, lastError: message, claimedBy: null, claimUntil: null }).where(mine);
         result.failed++;
       } else {
-        await db.update(mailOutbox).set({ attempts, lastError: message, nextAttemptAt: new Date(now.getTime() + backoffMs(attempts)), claimedBy: null, claimUntil: null }).where(mine);
+        await db
+          .update(mailOutbox)
+          .set({ attempts, lastError: message, nextAttemptAt: new Date(now.getTime() + backoffMs(attempts)), claimedBy: null, claimUntil: null })
+          .where(mine);
         result.retried++;
       }
     }

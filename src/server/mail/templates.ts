@@ -2,7 +2,11 @@
  * Plateau's e-mails: plain text plus a small HTML version in one shared shell.
  * Every interpolated value is escaped; links are only ever our own PUBLIC_URL.
  */
-export interface MailContent { subject: string; text: string; html: string }
+export interface MailContent {
+  subject: string;
+  text: string;
+  html: string;
+}
 
 export function escapeHtml(value: string): string {
   return value.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
@@ -48,11 +52,15 @@ Accept the invitation here (the link works once and for ${v.days} days):
 ${v.link}
 
 If you were not expecting this, ignore this message; nothing happens unless the link is followed.`;
-  const html = shell(subject, [
-    `${e(v.inviterName)} has invited you to <strong>${e(v.workspaceName)}</strong> on Plateau as ${e(roleText)}.`,
-    'Plateau puts the fermenters, the gravity readings and the still bookings on one board.',
-    `The link works once and for ${v.days} days. If you were not expecting this, ignore this message.`,
-  ], { label: 'Accept the invitation', href: v.link });
+  const html = shell(
+    subject,
+    [
+      `${e(v.inviterName)} has invited you to <strong>${e(v.workspaceName)}</strong> on Plateau as ${e(roleText)}.`,
+      'Plateau puts the fermenters, the gravity readings and the still bookings on one board.',
+      `The link works once and for ${v.days} days. If you were not expecting this, ignore this message.`,
+    ],
+    { label: 'Accept the invitation', href: v.link },
+  );
   return { subject, text, html };
 }
 
@@ -64,11 +72,15 @@ Someone asked to reset the password for this address on Plateau. Choose a new pa
 ${v.link}
 
 Setting a new password signs you out on every device. If you did not ask for this, ignore this message: your password stays as it is.`;
-  const html = shell(subject, [
-    `Hello ${e(v.name)},`,
-    `Someone asked to reset the password for this address on Plateau. The link works once and for ${v.minutes} minutes.`,
-    'Setting a new password signs you out on every device. If you did not ask for this, ignore this message: your password stays as it is.',
-  ], { label: 'Choose a new password', href: v.link });
+  const html = shell(
+    subject,
+    [
+      `Hello ${e(v.name)},`,
+      `Someone asked to reset the password for this address on Plateau. The link works once and for ${v.minutes} minutes.`,
+      'Setting a new password signs you out on every device. If you did not ask for this, ignore this message: your password stays as it is.',
+    ],
+    { label: 'Choose a new password', href: v.link },
+  );
   return { subject, text, html };
 }
 
@@ -80,11 +92,15 @@ Confirm this address to open ${v.workspaceName} on Plateau; you will be its mana
 ${v.link}
 
 If you did not sign up, ignore this message and nothing will be created.`;
-  const html = shell(subject, [
-    `Hello ${e(v.name)},`,
-    `Confirm this address to open <strong>${e(v.workspaceName)}</strong> on Plateau; you will be its manager and choose your password on the page the link opens. The link works once and for ${v.hours} hours.`,
-    'If you did not sign up, ignore this message and nothing will be created.',
-  ], { label: 'Confirm and choose a password', href: v.link });
+  const html = shell(
+    subject,
+    [
+      `Hello ${e(v.name)},`,
+      `Confirm this address to open <strong>${e(v.workspaceName)}</strong> on Plateau; you will be its manager and choose your password on the page the link opens. The link works once and for ${v.hours} hours.`,
+      'If you did not sign up, ignore this message and nothing will be created.',
+    ],
+    { label: 'Confirm and choose a password', href: v.link },
+  );
   return { subject, text, html };
 }
 
@@ -99,10 +115,14 @@ Sign in here: ${v.signInLink}
 Forgotten your password? ${v.resetLink}
 
 To run another distillery from the same account, ask its manager to invite this address.`;
-  const html = shell(subject, [
-    `Hello ${e(v.name)},`,
-    'Someone tried to set up a new distillery on Plateau with this address, which already has an account. Nothing was changed.',
-    `Forgotten your password? <a href="${e(v.resetLink)}">Choose a new one</a>. To run another distillery from the same account, ask its manager to invite this address.`,
-  ], { label: 'Sign in', href: v.signInLink });
+  const html = shell(
+    subject,
+    [
+      `Hello ${e(v.name)},`,
+      'Someone tried to set up a new distillery on Plateau with this address, which already has an account. Nothing was changed.',
+      `Forgotten your password? <a href="${e(v.resetLink)}">Choose a new one</a>. To run another distillery from the same account, ask its manager to invite this address.`,
+    ],
+    { label: 'Sign in', href: v.signInLink },
+  );
   return { subject, text, html };
 }

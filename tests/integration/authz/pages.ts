@@ -44,9 +44,24 @@ export async function addPageRows(fx: Fixture): Promise<PageFixture> {
   const passwordReset = newToken();
   const signUpConfirm = newToken();
   const week = new Date(Date.now() + 7 * 86400_000);
-  await db.insert(t.invitations).values({ workspaceId: fx.a.workspaceId, email: `page-invitee-${fx.a.workspaceId}@test.example`, role: 'distiller', tokenHash: hashToken(invitation), invitedBy: fx.a.users.manager.id, expiresAt: week });
-  await db.insert(t.emailTokens).values({ purpose: 'password_reset', tokenHash: hashToken(passwordReset), email: fx.a.users.staff.email, userId: fx.a.users.staff.id, expiresAt: week });
-  await db.insert(t.emailTokens).values({ purpose: 'signup_confirm', tokenHash: hashToken(signUpConfirm), email: `page-signup-${fx.a.workspaceId}@test.example`, payload: { name: 'New Founder', workspaceName: 'New Still House' }, expiresAt: week });
+  await db.insert(t.invitations).values({
+    workspaceId: fx.a.workspaceId,
+    email: `page-invitee-${fx.a.workspaceId}@test.example`,
+    role: 'distiller',
+    tokenHash: hashToken(invitation),
+    invitedBy: fx.a.users.manager.id,
+    expiresAt: week,
+  });
+  await db
+    .insert(t.emailTokens)
+    .values({ purpose: 'password_reset', tokenHash: hashToken(passwordReset), email: fx.a.users.staff.email, userId: fx.a.users.staff.id, expiresAt: week });
+  await db.insert(t.emailTokens).values({
+    purpose: 'signup_confirm',
+    tokenHash: hashToken(signUpConfirm),
+    email: `page-signup-${fx.a.workspaceId}@test.example`,
+    payload: { name: 'New Founder', workspaceName: 'New Still House' },
+    expiresAt: week,
+  });
   return { ...fx, tokens: { invitation, passwordReset, signUpConfirm } };
 }
 

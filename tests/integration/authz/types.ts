@@ -10,7 +10,10 @@ export type { Role };
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
 
 /** A person of one workspace in the fixture. */
-export interface FixtureUser { id: number; email: string }
+export interface FixtureUser {
+  id: number;
+  email: string;
+}
 
 /** Ids that exist in one workspace of the fixture (built fresh with getDb()). */
 export interface WorkspaceIds {
@@ -34,7 +37,10 @@ export interface WorkspaceIds {
 }
 
 /** Two workspaces, A and B, each with the same kinds of rows. Cases address A. */
-export interface Fixture { a: WorkspaceIds; b: WorkspaceIds }
+export interface Fixture {
+  a: WorkspaceIds;
+  b: WorkspaceIds;
+}
 
 export interface RouteCase {
   /** URL pattern exactly as derived from the file path: src/pages/api/ferments/[id]/readings.ts -> '/api/ferments/[id]/readings'. */

@@ -37,19 +37,25 @@ export function useBoardData(options: {
   const fermentById = useMemo(() => new Map(board.ferments.map((f) => [f.id, f])), [board.ferments]);
   const personById = useMemo(() => new Map(board.people.map((p) => [p.id, p])), [board.people]);
   const warnings = useMemo(() => boardWarnings(board), [board]);
-  const names = useMemo<BoardNames>(() => ({
-    still: (id: number) => stillById.get(id)?.name ?? 'a retired still',
-    person: (id: number | null) => (id === null ? 'nobody' : personById.get(id)?.name ?? 'someone'),
-  }), [stillById, personById]);
+  const names = useMemo<BoardNames>(
+    () => ({
+      still: (id: number) => stillById.get(id)?.name ?? 'a retired still',
+      person: (id: number | null) => (id === null ? 'nobody' : (personById.get(id)?.name ?? 'someone')),
+    }),
+    [stillById, personById],
+  );
 
   // Every refresh but the periodic one follows something we did, so it asks for fresh data.
-  const refresh = useCallback(async (w: BoardWindow = win, fresh = true) => {
-    const mine = ++requestNo.current;
-    const res = await api.board(w.start, w.end, fresh);
-    if (mine !== requestNo.current) return;
-    if (res.ok) setBoard(hydrateBoard(res.data, new Date()));
-    else onError(res.error.message);
-  }, [win]);
+  const refresh = useCallback(
+    async (w: BoardWindow = win, fresh = true) => {
+      const mine = ++requestNo.current;
+      const res = await api.board(w.start, w.end, fresh);
+      if (mine !== requestNo.current) return;
+      if (res.ok) setBoard(hydrateBoard(res.data, new Date()));
+      else onError(res.error.message);
+    },
+    [win],
+  );
 
   useEffect(() => {
     const url = new URL(window.location.href);
@@ -60,12 +66,17 @@ export function useBoardData(options: {
 
   const firstLoad = useRef(true);
   useEffect(() => {
-    if (firstLoad.current) { firstLoad.current = false; return; }
+    if (firstLoad.current) {
+      firstLoad.current = false;
+      return;
+    }
     void refresh(win, false);
   }, [win]);
 
   useEffect(() => {
-    const t = window.setInterval(() => { if (!paused.current && document.visibilityState === 'visible') void refresh(undefined, false); }, REFRESH_MS);
+    const t = window.setInterval(() => {
+      if (!paused.current && document.visibilityState === 'visible') void refresh(undefined, false);
+    }, REFRESH_MS);
     return () => window.clearInterval(t);
   }, [refresh]);
 

@@ -6,13 +6,39 @@
  */
 import { useMemo, useRef, useState, type RefObject } from 'react';
 import {
-  KeyboardSensor, PointerSensor, TouchSensor, pointerWithin, rectIntersection, useSensor, useSensors,
-  type Announcements, type CollisionDetection, type DragEndEvent, type DragMoveEvent, type DragStartEvent,
+  KeyboardSensor,
+  PointerSensor,
+  TouchSensor,
+  pointerWithin,
+  rectIntersection,
+  useSensor,
+  useSensors,
+  type Announcements,
+  type CollisionDetection,
+  type DragEndEvent,
+  type DragMoveEvent,
+  type DragStartEvent,
 } from '@dnd-kit/core';
 import {
-  boardKeyboardCoordinates, cancelledDragMessage, dayAndTime, dayWidth, fermentDraftRun, firstHit, moveTarget, movedMessage, overMessage,
-  pickedUpMessage, slotAtX, slotWidth, toFermentState, toScheduleRun, toScheduleStill, ROW_HEIGHT, RUN_TYPE_LABELS,
-  type BoardRun, type MoveTarget,
+  boardKeyboardCoordinates,
+  cancelledDragMessage,
+  dayAndTime,
+  dayWidth,
+  fermentDraftRun,
+  firstHit,
+  moveTarget,
+  movedMessage,
+  overMessage,
+  pickedUpMessage,
+  slotAtX,
+  slotWidth,
+  toFermentState,
+  toScheduleRun,
+  toScheduleStill,
+  ROW_HEIGHT,
+  RUN_TYPE_LABELS,
+  type BoardRun,
+  type MoveTarget,
 } from '../../../lib/board';
 import { computeRunWarnings, type Warning } from '../../../lib/schedule';
 import { WARNING_BADGES } from '../WarningBadges';
@@ -20,7 +46,11 @@ import type { BoardData } from './useBoardData';
 import type { Notice, RunEditing } from './useRunEditing';
 
 /** Where a drag would land, and what it would warn about there. */
-export interface DragPreview extends MoveTarget { kind: 'run' | 'ferment'; id: number; warnings: Warning[] }
+export interface DragPreview extends MoveTarget {
+  kind: 'run' | 'ferment';
+  id: number;
+  warnings: Warning[];
+}
 
 type DragData = { kind: 'run'; runId: number } | { kind: 'ferment'; fermentId: number };
 
@@ -28,7 +58,8 @@ type DragData = { kind: 'run'; runId: number } | { kind: 'ferment'; fermentId: n
 const collisionDetection: CollisionDetection = firstHit(pointerWithin, rectIntersection);
 
 const screenReaderInstructions = {
-  draggable: 'To move a run, press space to pick it up. Arrow keys move it by one slot or one still, shift and arrow by a day. Press space again to drop it and save, or escape to put it back. Enter opens its details.',
+  draggable:
+    'To move a run, press space to pick it up. Arrow keys move it by one slot or one still, shift and arrow by a day. Press space again to drop it and save, or escape to put it back. Enter opens its details.',
 };
 
 export function useRunDrag(data: BoardData, editing: RunEditing, options: { dragging: RefObject<boolean>; setNotice: (notice: Notice) => void }) {
@@ -57,13 +88,25 @@ export function useRunDrag(data: BoardData, editing: RunEditing, options: { drag
     if (!still) return [];
     const moved = toScheduleRun({ ...base, ...target });
     return computeRunWarnings(moved, {
-      still: toScheduleStill(still), runs: board.runs.map(toScheduleRun),
-      ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])), timeZone: tz, now: board.now,
+      still: toScheduleStill(still),
+      runs: board.runs.map(toScheduleRun),
+      ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])),
+      timeZone: tz,
+      now: board.now,
     });
   };
 
   const runTarget = (run: BoardRun, e: DragMoveEvent | DragEndEvent): MoveTarget =>
-    moveTarget({ run, deltaX: e.delta.x, deltaY: e.delta.y, rowHeight: ROW_HEIGHT, stillIds, pxPerHour: spec.pxPerHour, slotMinutes: spec.slotMinutes, timeZone: tz });
+    moveTarget({
+      run,
+      deltaX: e.delta.x,
+      deltaY: e.delta.y,
+      rowHeight: ROW_HEIGHT,
+      stillIds,
+      pxPerHour: spec.pxPerHour,
+      slotMinutes: spec.slotMinutes,
+      timeZone: tz,
+    });
 
   /** The slot under a dragged wash's left edge, on the still row it is over. */
   const fermentTarget = (e: DragMoveEvent | DragEndEvent): MoveTarget | null => {
@@ -97,11 +140,24 @@ export function useRunDrag(data: BoardData, editing: RunEditing, options: { drag
       next = { kind: 'run', id: run.id, ...target, warnings: candidateWarnings(run, target) };
     } else {
       const t = fermentTarget(e);
-      if (!t) { if (previewRef.current) { previewRef.current = null; setPreview(null); } return; }
+      if (!t) {
+        if (previewRef.current) {
+          previewRef.current = null;
+          setPreview(null);
+        }
+        return;
+      }
       const prev = previewRef.current;
       if (prev && prev.stillId === t.stillId && prev.startsAt.getTime() === t.startsAt.getTime()) return;
       const draft = draftFor(d.fermentId, t);
-      next = { kind: 'ferment', id: d.fermentId, stillId: t.stillId, startsAt: draft.startsAt, endsAt: draft.endsAt, warnings: candidateWarnings(draft, draft) };
+      next = {
+        kind: 'ferment',
+        id: d.fermentId,
+        stillId: t.stillId,
+        startsAt: draft.startsAt,
+        endsAt: draft.endsAt,
+        warnings: candidateWarnings(draft, draft),
+      };
     }
     previewRef.current = next;
     setPreview(next);
@@ -131,44 +187,55 @@ export function useRunDrag(data: BoardData, editing: RunEditing, options: { drag
     } else {
       const t = fermentTarget(e);
       finishDrag();
-      if (!t) { endMessage.current = 'Wash dropped outside the stills; nothing booked.'; return; }
+      if (!t) {
+        endMessage.current = 'Wash dropped outside the stills; nothing booked.';
+        return;
+      }
       const draft = draftFor(d.fermentId, t);
       endMessage.current = `Booking wash ${fermentById.get(d.fermentId)?.code} on ${names.still(t.stillId)}, ${dayAndTime(t.startsAt, tz)}: check the details and confirm.`;
       openDialog({ run: null, stillId: t.stillId, startsAt: t.startsAt, type: 'stripping', ferments: draft.ferments });
     }
   };
 
-  const announcements: Announcements = useMemo(() => ({
-    onDragStart: ({ active }) => {
-      const d = active.data.current as { kind: string; runId?: number; fermentId?: number };
-      if (d.kind === 'run') {
-        const run = board.runs.find((r) => r.id === d.runId);
-        return run ? pickedUpMessage(run.type, names.still(run.stillId), run.startsAt, tz) : undefined;
-      }
-      return `Picked up wash ${fermentById.get(d.fermentId!)?.code}. Drop it on a still to book it.`;
-    },
-    onDragMove: () => {
-      const p = previewRef.current;
-      if (!p) return undefined;
-      const type = p.kind === 'run' ? board.runs.find((r) => r.id === p.id)?.type ?? 'stripping' : 'stripping';
-      const warn = p.warnings.filter((w) => w.severity !== 'info');
-      return `${overMessage(type, names.still(p.stillId), p.startsAt, tz)}${warn.length ? `. Warning: ${warn.map((w) => WARNING_BADGES[w.code]).join(', ')}` : ''}`;
-    },
-    onDragOver: () => undefined,
-    onDragEnd: () => endMessage.current,
-    onDragCancel: ({ active }) => {
-      finishDrag();
-      const d = active.data.current as { kind: string; runId?: number };
-      const run = d.kind === 'run' ? board.runs.find((r) => r.id === d.runId) : undefined;
-      return run ? cancelledDragMessage(run.type, names.still(run.stillId), run.startsAt, tz) : 'Cancelled; nothing booked.';
-    },
-  }), [board, names, tz, fermentById]);
+  const announcements: Announcements = useMemo(
+    () => ({
+      onDragStart: ({ active }) => {
+        const d = active.data.current as { kind: string; runId?: number; fermentId?: number };
+        if (d.kind === 'run') {
+          const run = board.runs.find((r) => r.id === d.runId);
+          return run ? pickedUpMessage(run.type, names.still(run.stillId), run.startsAt, tz) : undefined;
+        }
+        return `Picked up wash ${fermentById.get(d.fermentId!)?.code}. Drop it on a still to book it.`;
+      },
+      onDragMove: () => {
+        const p = previewRef.current;
+        if (!p) return undefined;
+        const type = p.kind === 'run' ? (board.runs.find((r) => r.id === p.id)?.type ?? 'stripping') : 'stripping';
+        const warn = p.warnings.filter((w) => w.severity !== 'info');
+        return `${overMessage(type, names.still(p.stillId), p.startsAt, tz)}${warn.length ? `. Warning: ${warn.map((w) => WARNING_BADGES[w.code]).join(', ')}` : ''}`;
+      },
+      onDragOver: () => undefined,
+      onDragEnd: () => endMessage.current,
+      onDragCancel: ({ active }) => {
+        finishDrag();
+        const d = active.data.current as { kind: string; runId?: number };
+        const run = d.kind === 'run' ? board.runs.find((r) => r.id === d.runId) : undefined;
+        return run ? cancelledDragMessage(run.type, names.still(run.stillId), run.startsAt, tz) : 'Cancelled; nothing booked.';
+      },
+    }),
+    [board, names, tz, fermentById],
+  );
 
   return {
     preview,
     /** Everything DndContext takes but its id, which stays fixed in the island. */
     contextProps: {
-      sensors, collisionDetection, onDragStart, onDragMove, onDragEnd, onDragCancel: finishDrag,
+      sensors,
+      collisionDetection,
+      onDragStart,
+      onDragMove,
+      onDragEnd,
+      onDragCancel: finishDrag,
       accessibility: { announcements, screenReaderInstructions },
     },
   };

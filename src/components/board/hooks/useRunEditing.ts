@@ -5,8 +5,18 @@
  */
 import { useCallback, useRef, useState, type Dispatch, type SetStateAction } from 'react';
 import {
-  dayAndTime, describeChanges, fermentBooking, firstBookableHour, hydrateRun, movedMessage, resizeTarget, slotAtX, slotWidth, RUN_TYPE_LABELS,
-  type BoardRun, type MoveTarget,
+  dayAndTime,
+  describeChanges,
+  fermentBooking,
+  firstBookableHour,
+  hydrateRun,
+  movedMessage,
+  resizeTarget,
+  slotAtX,
+  slotWidth,
+  RUN_TYPE_LABELS,
+  type BoardRun,
+  type MoveTarget,
 } from '../../../lib/board';
 import { api, type ApiError } from '../api';
 import type { DialogDraft } from '../RunDialog';
@@ -31,70 +41,101 @@ export function useRunEditing(data: BoardData, messages: { setNotice: Dispatch<S
     setDialog(draft);
   }, []);
 
-  const explain = useCallback((error: ApiError, mine?: BoardRun) => {
-    if (error.status === 409 && error.current && mine) {
-      const theirs = hydrateRun(error.current);
-      const changes = describeChanges(mine, theirs, names, tz);
-      setNotice({ tone: 'error', text: `Someone else changed this ${RUN_TYPE_LABELS[mine.type].toLowerCase()} while you had the board open${changes.length ? `: ${changes.join('; ')}` : ''}. The board now shows their version; nothing of yours was saved.` });
-    } else {
-      setNotice({ tone: 'error', text: error.message });
-    }
-  }, [names, tz]);
+  const explain = useCallback(
+    (error: ApiError, mine?: BoardRun) => {
+      if (error.status === 409 && error.current && mine) {
+        const theirs = hydrateRun(error.current);
+        const changes = describeChanges(mine, theirs, names, tz);
+        setNotice({
+          tone: 'error',
+          text: `Someone else changed this ${RUN_TYPE_LABELS[mine.type].toLowerCase()} while you had the board open${changes.length ? `: ${changes.join('; ')}` : ''}. The board now shows their version; nothing of yours was saved.`,
+        });
+      } else {
+        setNotice({ tone: 'error', text: error.message });
+      }
+    },
+    [names, tz],
+  );
 
-  const saveMove = useCallback(async (run: BoardRun, target: MoveTarget) => {
-    const snapshot = board;
-    setBoard((b) => ({ ...b, runs: b.runs.map((r) => (r.id === run.id ? { ...r, ...target } : r)) }));
-    const res = await api.updateRun(run.id, { version: run.version, stillId: target.stillId, startsAt: target.startsAt.toISOString(), endsAt: target.endsAt.toISOString() });
-    if (res.ok) {
-      const saved = hydrateRun(res.data.run);
-      setBoard((b) => ({ ...b, runs: b.runs.map((r) => (r.id === saved.id ? saved : r)) }));
-      setLive(`${movedMessage(saved.type, names.still(saved.stillId), saved.startsAt, tz)}. Saved.`);
-      setNotice(null);
-    } else {
-      setBoard(snapshot);
-      setLive(`Not saved: ${res.error.message}`);
-      explain(res.error, run);
-    }
-    void refresh();
-  }, [board, names, tz, explain, refresh]);
+  const saveMove = useCallback(
+    async (run: BoardRun, target: MoveTarget) => {
+      const snapshot = board;
+      setBoard((b) => ({ ...b, runs: b.runs.map((r) => (r.id === run.id ? { ...r, ...target } : r)) }));
+      const res = await api.updateRun(run.id, {
+        version: run.version,
+        stillId: target.stillId,
+        startsAt: target.startsAt.toISOString(),
+        endsAt: target.endsAt.toISOString(),
+      });
+      if (res.ok) {
+        const saved = hydrateRun(res.data.run);
+        setBoard((b) => ({ ...b, runs: b.runs.map((r) => (r.id === saved.id ? saved : r)) }));
+        setLive(`${movedMessage(saved.type, names.still(saved.stillId), saved.startsAt, tz)}. Saved.`);
+        setNotice(null);
+      } else {
+        setBoard(snapshot);
+        setLive(`Not saved: ${res.error.message}`);
+        explain(res.error, run);
+      }
+      void refresh();
+    },
+    [board, names, tz, explain, refresh],
+  );
 
-  const onResize = useCallback((runId: number, deltaX: number) => {
-    const run = board.runs.find((r) => r.id === runId);
-    if (!run) return;
-    const endsAt = resizeTarget(run, deltaX, spec.pxPerHour, spec.slotMinutes, tz);
-    if (endsAt.getTime() !== run.endsAt.getTime()) void saveMove(run, { stillId: run.stillId, startsAt: run.startsAt, endsAt });
-  }, [board.runs, spec, tz, saveMove]);
+  const onResize = useCallback(
+    (runId: number, deltaX: number) => {
+      const run = board.runs.find((r) => r.id === runId);
+      if (!run) return;
+      const endsAt = resizeTarget(run, deltaX, spec.pxPerHour, spec.slotMinutes, tz);
+      if (endsAt.getTime() !== run.endsAt.getTime()) void saveMove(run, { stillId: run.stillId, startsAt: run.startsAt, endsAt });
+    },
+    [board.runs, spec, tz, saveMove],
+  );
 
   const slotPx = slotWidth(spec);
   const onResizeKey = useCallback((runId: number, steps: number) => onResize(runId, steps * slotPx), [onResize, slotPx]);
 
-  const openRun = useCallback((runId: number) => {
-    if (Date.now() - dragEndedAt.current < CLICK_AFTER_DRAG_MS) return;
-    const run = board.runs.find((r) => r.id === runId);
-    if (!run) return;
-    setDialogError(null);
-    setDialog({ run, stillId: run.stillId, startsAt: run.startsAt, type: run.type, ferments: run.ferments });
-  }, [board.runs]);
+  const openRun = useCallback(
+    (runId: number) => {
+      if (Date.now() - dragEndedAt.current < CLICK_AFTER_DRAG_MS) return;
+      const run = board.runs.find((r) => r.id === runId);
+      if (!run) return;
+      setDialogError(null);
+      setDialog({ run, stillId: run.stillId, startsAt: run.startsAt, type: run.type, ferments: run.ferments });
+    },
+    [board.runs],
+  );
 
-  const onEmptyClick = useCallback((stillId: number, x: number) => {
-    if (Date.now() - dragEndedAt.current < CLICK_AFTER_DRAG_MS) return;
-    const startsAt = slotAtX(x, win.start, spec.pxPerHour, spec.slotMinutes, tz);
-    setDialogError(null);
-    setDialog({ run: null, stillId, startsAt, type: 'stripping', ferments: [] });
-  }, [win.start, spec, tz]);
+  const onEmptyClick = useCallback(
+    (stillId: number, x: number) => {
+      if (Date.now() - dragEndedAt.current < CLICK_AFTER_DRAG_MS) return;
+      const startsAt = slotAtX(x, win.start, spec.pxPerHour, spec.slotMinutes, tz);
+      setDialogError(null);
+      setDialog({ run: null, stillId, startsAt, type: 'stripping', ferments: [] });
+    },
+    [win.start, spec, tz],
+  );
 
-  const bookFerment = useCallback((fermentId: number) => {
-    const f = fermentById.get(fermentId);
-    if (!f) return;
-    const booking = fermentBooking(f, board.stills, board.now, win.start, spec.pxPerHour, tz);
-    if (!booking) return;
-    setDialogError(null);
-    setDialog({ run: null, type: 'stripping', ...booking });
-  }, [fermentById, board, win.start, spec, tz]);
+  const bookFerment = useCallback(
+    (fermentId: number) => {
+      const f = fermentById.get(fermentId);
+      if (!f) return;
+      const booking = fermentBooking(f, board.stills, board.now, win.start, spec.pxPerHour, tz);
+      if (!booking) return;
+      setDialogError(null);
+      setDialog({ run: null, type: 'stripping', ...booking });
+    },
+    [fermentById, board, win.start, spec, tz],
+  );
 
-  const bookRun = () => openDialog({
-    run: null, stillId: board.stills[0]?.id ?? 0, startsAt: firstBookableHour(board.now, win.start, spec.pxPerHour, tz), type: 'stripping', ferments: [],
-  });
+  const bookRun = () =>
+    openDialog({
+      run: null,
+      stillId: board.stills[0]?.id ?? 0,
+      startsAt: firstBookableHour(board.now, win.start, spec.pxPerHour, tz),
+      type: 'stripping',
+      ferments: [],
+    });
 
   const onSave = async (body: Record<string, unknown>, run: BoardRun | null) => {
     setBusy(true);
@@ -104,21 +145,36 @@ export function useRunEditing(data: BoardData, messages: { setNotice: Dispatch<S
       const saved = hydrateRun(res.data.run);
       setDialog(null);
       setLive(`${RUN_TYPE_LABELS[saved.type]} ${run ? 'saved' : 'booked'} on ${names.still(saved.stillId)}, ${dayAndTime(saved.startsAt, tz)}.`);
-      setNotice({ tone: 'info', text: `${RUN_TYPE_LABELS[saved.type]} ${run ? 'saved' : 'booked'} on ${names.still(saved.stillId)}, ${dayAndTime(saved.startsAt, tz)}.` });
+      setNotice({
+        tone: 'info',
+        text: `${RUN_TYPE_LABELS[saved.type]} ${run ? 'saved' : 'booked'} on ${names.still(saved.stillId)}, ${dayAndTime(saved.startsAt, tz)}.`,
+      });
       void refresh();
     } else if (res.error.status === 409 && res.error.current && run) {
       setDialog(null);
       explain(res.error, run);
       void refresh();
     } else {
-      setDialogError(res.error.message + (res.error.fields ? ` ${Object.values(res.error.fields).filter((m) => m !== res.error.message).join(' ')}` : ''));
+      setDialogError(
+        res.error.message +
+          (res.error.fields
+            ? ` ${Object.values(res.error.fields)
+                .filter((m) => m !== res.error.message)
+                .join(' ')}`
+            : ''),
+      );
     }
   };
 
   const onAction = async (action: 'cancel' | 'start' | 'finish', run: BoardRun) => {
     if (action === 'cancel' && !window.confirm(`Cancel this ${RUN_TYPE_LABELS[run.type].toLowerCase()}? The still time is freed.`)) return;
     setBusy(true);
-    const res = action === 'cancel' ? await api.cancelRun(run.id, run.version) : action === 'start' ? await api.startRun(run.id, run.version) : await api.finishRun(run.id, run.version);
+    const res =
+      action === 'cancel'
+        ? await api.cancelRun(run.id, run.version)
+        : action === 'start'
+          ? await api.startRun(run.id, run.version)
+          : await api.finishRun(run.id, run.version);
     setBusy(false);
     setDialog(null);
     if (res.ok) {
@@ -130,8 +186,21 @@ export function useRunEditing(data: BoardData, messages: { setNotice: Dispatch<S
   };
 
   return {
-    dialog, dialogError, busy, dragEndedAt, openDialog, closeDialog: () => setDialog(null),
-    saveMove, onResize, onResizeKey, openRun, onEmptyClick, bookFerment, bookRun, onSave, onAction,
+    dialog,
+    dialogError,
+    busy,
+    dragEndedAt,
+    openDialog,
+    closeDialog: () => setDialog(null),
+    saveMove,
+    onResize,
+    onResizeKey,
+    openRun,
+    onEmptyClick,
+    bookFerment,
+    bookRun,
+    onSave,
+    onAction,
   };
 }
 

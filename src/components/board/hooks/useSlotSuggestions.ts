@@ -19,13 +19,21 @@ export function useSlotSuggestions(saveMove: (run: BoardRun, target: MoveTarget)
     setSuggestions((s) => ({
       ...s,
       [runId]: res.ok
-        ? { loading: false, notBefore: res.data.notBefore, slots: res.data.slots.map((x) => ({ stillId: x.stillId, startsAt: new Date(x.startsAt), endsAt: new Date(x.endsAt) })) }
+        ? {
+            loading: false,
+            notBefore: res.data.notBefore,
+            slots: res.data.slots.map((x) => ({ stillId: x.stillId, startsAt: new Date(x.startsAt), endsAt: new Date(x.endsAt) })),
+          }
         : { loading: false, slots: [], error: res.error.message },
     }));
   };
 
   const moveHere = async (run: BoardRun, slot: MoveTarget) => {
-    setSuggestions((s) => { const n = { ...s }; delete n[run.id]; return n; });
+    setSuggestions((s) => {
+      const n = { ...s };
+      delete n[run.id];
+      return n;
+    });
     await saveMove(run, slot);
   };
 

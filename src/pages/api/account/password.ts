@@ -15,5 +15,9 @@ export const POST = route({ auth: 'user', body: Body }, async ({ me, body }) => 
   const r = await changePassword(me, body.currentPassword, body.newPassword);
   await forgive('password_change', `user:${me.userId}`);
   await refund('password_change', [`ip:${me.ip}`]);
-  return json({ ok: true, endedSessions: r.endedSessions, message: `Password changed. ${r.endedSessions === 1 ? '1 other session was' : `${r.endedSessions} other sessions were`} signed out.` });
+  return json({
+    ok: true,
+    endedSessions: r.endedSessions,
+    message: `Password changed. ${r.endedSessions === 1 ? '1 other session was' : `${r.endedSessions} other sessions were`} signed out.`,
+  });
 });

@@ -13,7 +13,9 @@ export const AuditQuery = z.object({
 /** Dates are whole UTC days; `to` is inclusive. */
 export const GET = route({ auth: 'audit.read', query: AuditQuery }, async ({ ctx, query }) => {
   const r = await listAudit(ctx, {
-    action: query.action || undefined, userId: query.userId, page: query.page,
+    action: query.action || undefined,
+    userId: query.userId,
+    page: query.page,
     from: query.from ? new Date(`${query.from}T00:00:00Z`) : undefined,
     to: query.to ? new Date(new Date(`${query.to}T00:00:00Z`).getTime() + 86400_000) : undefined,
   });

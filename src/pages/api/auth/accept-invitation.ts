@@ -18,7 +18,13 @@ const Body = z.object({
 /** Existing account: must be signed in as the invited address. New address: name + password here. */
 export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) => {
   await takeAttempt('accept_invitation', [`ip:${clientIp(req)}`]);
-  const r = await acceptInvitation(body.token, { signedInUserId: req.locals.user?.id ?? null, name: body.name, password: body.password, ip: clientIp(req), userAgent: req.request.headers.get('user-agent') });
+  const r = await acceptInvitation(body.token, {
+    signedInUserId: req.locals.user?.id ?? null,
+    name: body.name,
+    password: body.password,
+    ip: clientIp(req),
+    userAgent: req.request.headers.get('user-agent'),
+  });
   if (r.newSession) setSessionCookie(req.cookies, r.newSession.token);
   else if (req.locals.sessionId) await getDb().update(sessions).set({ workspaceId: r.workspaceId }).where(eq(sessions.id, req.locals.sessionId));
   return json({ ok: true, workspaceId: r.workspaceId, redirect: '/' });

@@ -17,7 +17,11 @@ const Body = z.object({
 export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) => {
   // Each confirmation hashes a password (argon2): bounded per address.
   await takeAttempt('confirm', [`ip:${clientIp(req)}`]);
-  const { session } = await confirmSignUp(body.token, { name: body.name, workspaceName: body.workspaceName, password: body.password }, { ip: clientIp(req), userAgent: req.request.headers.get('user-agent') });
+  const { session } = await confirmSignUp(
+    body.token,
+    { name: body.name, workspaceName: body.workspaceName, password: body.password },
+    { ip: clientIp(req), userAgent: req.request.headers.get('user-agent') },
+  );
   setSessionCookie(req.cookies, session.token);
   return json({ ok: true, redirect: '/settings' });
 });

@@ -18,5 +18,8 @@ export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) 
   // Each sign-up mails an address anyone may type: a few per address and per e-mail an hour.
   await takeAttempt('sign_up', [`email:${body.email.trim().toLowerCase()}`, `ip:${ip}`]);
   await requestSignUp({ ...body, ip });
-  return json({ ok: true, message: `Check ${body.email.trim().toLowerCase()} for a link to confirm your address; you choose your password on the page it opens.` }, 202);
+  return json(
+    { ok: true, message: `Check ${body.email.trim().toLowerCase()} for a link to confirm your address; you choose your password on the page it opens.` },
+    202,
+  );
 });

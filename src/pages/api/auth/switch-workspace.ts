@@ -11,7 +11,14 @@ export const POST = route({ auth: 'user', body: Body }, async ({ req, me, body }
   if (isForm) {
     const back = req.request.headers.get('referer');
     let to = '/';
-    try { if (back) { const u = new URL(back); if (u.host === req.url.host) to = u.pathname + u.search; } } catch { /* keep / */ }
+    try {
+      if (back) {
+        const u = new URL(back);
+        if (u.host === req.url.host) to = u.pathname + u.search;
+      }
+    } catch {
+      /* keep / */
+    }
     return req.redirect(to, 303);
   }
   return json({ ok: true, workspaceId: body.workspaceId });

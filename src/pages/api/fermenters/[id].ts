@@ -6,7 +6,8 @@ export const PATCH = route({ auth: 'vessels.manage', body: nonEmpty(fermenterInp
   const id = idParam(params.id);
   const { capacity, ...rest } = body;
   const fermenter = await updateFermenter(ctx, id, {
-    ...rest, ...(capacity !== undefined ? { capacityLitres: parseVolumeToLitres(capacity, volumeUnitFor(ctx.ws.units)) } : {}),
+    ...rest,
+    ...(capacity !== undefined ? { capacityLitres: parseVolumeToLitres(capacity, volumeUnitFor(ctx.ws.units)) } : {}),
   });
   return json({ fermenter });
 });

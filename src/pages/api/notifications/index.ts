@@ -9,12 +9,14 @@ export const GET = route({ auth: 'board.read' }, async ({ ctx }) => {
   return json({ prefs: mine.prefs, kinds: mine.kinds.map((k) => ({ kind: k.kind, label: k.label, hint: k.hint })) });
 });
 
-const prefsSchema = z.object({
-  ferment_trouble: z.boolean().optional(),
-  run_early: z.boolean().optional(),
-  run_changes: z.boolean().optional(),
-  digest: z.boolean().optional(),
-}).strict();
+const prefsSchema = z
+  .object({
+    ferment_trouble: z.boolean().optional(),
+    run_early: z.boolean().optional(),
+    run_changes: z.boolean().optional(),
+    digest: z.boolean().optional(),
+  })
+  .strict();
 
 export const PUT = route({ auth: 'board.read', body: prefsSchema }, async ({ ctx, body }) => {
   const prefs = await setNotifyPrefs(ctx, body);

@@ -5,7 +5,12 @@ import { clearSessionCookie } from '../../../server/auth/session';
 import { UNIT_SYSTEMS } from '../../../lib/vocabulary';
 
 function validZone(tz: string): boolean {
-  try { new Intl.DateTimeFormat('en', { timeZone: tz }); return true; } catch { return false; }
+  try {
+    new Intl.DateTimeFormat('en', { timeZone: tz });
+    return true;
+  } catch {
+    return false;
+  }
 }
 
 export const SettingsBody = z.object({

@@ -3,5 +3,4 @@ import { addClosure, closureInputSchema, listClosures } from '../../../../server
 
 export const GET = route({ auth: 'board.read' }, async ({ ctx }) => json({ closures: await listClosures(ctx) }));
 
-export const POST = route({ auth: 'vessels.manage', body: closureInputSchema }, async ({ ctx, body }) =>
-  json({ closure: await addClosure(ctx, body) }, 201));
+export const POST = route({ auth: 'vessels.manage', body: closureInputSchema }, async ({ ctx, body }) => json({ closure: await addClosure(ctx, body) }, 201));
