@@ -15,7 +15,12 @@ export default tseslint.config(
   {
     files: ['**/*.{ts,tsx,js,mjs}'],
     plugins: { 'import-x': importX },
-    settings: { 'import-x/resolver-next': [createNodeResolver({ extensions: ['.ts', '.tsx', '.js', '.mjs', '.d.ts'] })] },
+    settings: {
+      'import-x/resolver-next': [createNodeResolver({ extensions: ['.ts', '.tsx', '.js', '.mjs', '.d.ts'] })],
+      // Dependencies are TypeScript too: parse them with the TypeScript parser, or cycles through them go unseen.
+      'import-x/parsers': { '@typescript-eslint/parser': ['.ts', '.tsx'] },
+      'import-x/extensions': ['.ts', '.tsx', '.js', '.mjs'],
+    },
     rules: {
       'import-x/no-cycle': ['error', { ignoreExternal: true }],
     },
