@@ -22,7 +22,7 @@ import { hashToken, newToken } from './auth/tokens';
 import { listStills } from './stills';
 import { systemCtx, type Ctx } from './context';
 import { toSettings } from './workspaces';
-import type { Role } from '../lib/vocabulary';
+import { FEED_SCOPES, type FeedScope, type Role } from '../lib/vocabulary';
 import { SnapshotCache } from './snapshot-cache';
 import { selectRuns } from './run-query';
 import { buildFeedWithStore } from './feed-blocks';
@@ -37,10 +37,10 @@ const FETCH_STAMP_EVERY_MS = 5 * 60_000;
 /** A token as newToken() makes it: 32 bytes, base64url. */
 const TOKEN_SHAPE = /^[A-Za-z0-9_-]{43}$/;
 
-export type FeedScope = 'workspace' | 'still' | 'person';
+export type { FeedScope } from '../lib/vocabulary';
 
 export const createFeedSchema = z.object({
-  scope: z.enum(['workspace', 'still', 'person']),
+  scope: z.enum(FEED_SCOPES),
   stillId: z.number().int().positive().optional(),
   personId: z.number().int().positive().optional(),
   name: z.string().trim().min(1, 'Give the feed a name.').max(120).optional(),

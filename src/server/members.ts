@@ -6,11 +6,11 @@
 import { and, eq, isNull, gt, asc, desc, sql, gte, lt, type SQL } from 'drizzle-orm';
 import { getDb } from '../db/client';
 import { memberships, users, invitations, workspaces, sessions, auditLog } from '../db/schema';
-import type { Role } from '../lib/vocabulary';
+import type { Role, UnitSystem } from '../lib/vocabulary';
 import type { Ctx } from './context';
 import { HttpError, conflict, notFound } from './http';
 import { audit } from './audit';
-import { inRetriedTransaction } from './runs';
+import { inRetriedTransaction, type Tx } from './tx';
 import { enqueue } from './mail/outbox';
 import { invitationMail } from './mail/templates';
 import { newToken, hashToken } from './auth/tokens';
@@ -125,8 +125,6 @@ export async function revokeInvitation(ctx: Ctx, invitationId: number): Promise<
     );
   });
 }
-
-type Tx = Parameters<Parameters<ReturnType<typeof getDb>['transaction']>[0]>[0];
 
 /**
  * Bump the workspace row, then lock the workspace's memberships and return the target's row
@@ -307,7 +305,7 @@ export async function acceptInvitation(
 export interface SettingsInput {
   name: string;
   timeZone: string;
-  units: 'metric' | 'us';
+  units: UnitSystem;
   calibrationTempC: number;
   stableDays: number;
   stableTolerance: number;

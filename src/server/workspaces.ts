@@ -1,13 +1,13 @@
 import { and, eq, asc } from 'drizzle-orm';
 import { getDb } from '../db/client';
 import { memberships, workspaces } from '../db/schema';
-import type { Role } from '../lib/vocabulary';
+import type { Role, UnitSystem } from '../lib/vocabulary';
 
 export interface WorkspaceSettings {
   id: number;
   name: string;
   timeZone: string;
-  units: 'metric' | 'us';
+  units: UnitSystem;
   calibrationTempC: number;
   stableDays: number;
   stableTolerance: number;

@@ -28,6 +28,8 @@ import {
   TEMPERATURE_UNITS,
   UNIT_SYSTEMS,
   WASH_CATEGORIES,
+  FEED_SCOPES,
+  FEED_SCOPE_LABELS,
 } from '../../src/lib/vocabulary';
 
 const labelled: Array<[string, readonly string[], Record<string, string>]> = [
@@ -41,6 +43,7 @@ const labelled: Array<[string, readonly string[], Record<string, string>]> = [
   ['still kind', STILL_KINDS, STILL_KIND_LABELS],
   ['forecast status', FORECAST_STATUSES, FORECAST_STATUS_LABELS],
   ['role', ROLES, ROLE_LABELS],
+  ['feed scope', FEED_SCOPES, FEED_SCOPE_LABELS],
 ];
 
 describe.each(labelled)('%s labels', (_name, values, labels) => {
@@ -77,6 +80,7 @@ const columns: Array<[string, { enumValues: readonly string[] }, readonly string
   ['runs.type', schema.runs.type, RUN_TYPES],
   ['runs.status', schema.runs.status, RUN_STATUSES],
   ['run_outcomes.fraction', schema.runOutcomes.fraction, OUTCOME_FRACTIONS],
+  ['calendar_feeds.scope', schema.calendarFeeds.scope, FEED_SCOPES],
 ];
 
 describe('Drizzle enum columns', () => {

@@ -1,9 +1,10 @@
 import { useState, type FormEvent } from 'react';
+import type { FeedScope } from '../../lib/vocabulary';
 
 export interface FeedRowJson {
   id: number;
   name: string;
-  scope: 'workspace' | 'still' | 'person';
+  scope: FeedScope;
   stillId: number | null;
   stillName: string | null;
   personId: number | null;

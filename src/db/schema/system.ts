@@ -3,6 +3,7 @@ import { sql } from 'drizzle-orm';
 import { fk, utc, timestamps, id } from './_shared';
 import { workspaces, users } from './accounts';
 import { stills } from './production';
+import { FEED_SCOPES } from '../../lib/vocabulary';
 
 /** Calendar subscriptions: a read-only capability token (stored hashed) for one scope. */
 export const calendarFeeds = mysqlTable(
@@ -12,7 +13,7 @@ export const calendarFeeds = mysqlTable(
     workspaceId: fk('workspace_id')
       .notNull()
       .references(() => workspaces.id, { onDelete: 'cascade' }),
-    scope: mysqlEnum('scope', ['workspace', 'still', 'person']).notNull(),
+    scope: mysqlEnum('scope', FEED_SCOPES).notNull(),
     stillId: fk('still_id').references(() => stills.id, { onDelete: 'cascade' }),
     personId: fk('person_id').references(() => users.id, { onDelete: 'cascade' }),
     name: varchar('name', { length: 120 }).notNull(),
