@@ -7,28 +7,9 @@ import type { Browser } from 'playwright-core';
 import { like } from 'drizzle-orm';
 import { launch, newPage, checkPage, signInUi, PHONE, DESKTOP } from '../helpers/browser';
 import { createTestWorkspace, TEST_PASSWORD } from '../helpers/api';
-import { readMailbox, type StoredMail } from '../../src/server/mail/fake-smtp';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
-
-const MAILBOX = process.env.MAILBOX_DIR ?? '.data/mailbox';
-const unique = (p: string) => `${p}-${Date.now().toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}@test.example`;
-
-async function waitForMail(to: string, subjectPart: string, timeoutMs = 20000): Promise<StoredMail> {
-  const until = Date.now() + timeoutMs;
-  for (;;) {
-    const m = readMailbox(MAILBOX).find((x) => x.to.includes(to) && x.subject.includes(subjectPart));
-    if (m) return m;
-    if (Date.now() > until) throw new Error(`no mail "${subjectPart}" to ${to}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
-}
-/** The link's path (the browser's base URL is the test server). */
-const pathIn = (m: StoredMail, kind: string) => {
-  const match = new RegExp(`https?://[^\\s/]+(/${kind}/[A-Za-z0-9_-]+)`).exec(m.text);
-  if (!match) throw new Error(`no ${kind} link in ${m.text}`);
-  return match[1]!;
-};
+import { linkIn, unique, waitForMail } from '../helpers/mail';
 
 describe('account flows end to end in Chromium', () => {
   let browser: Browser;
@@ -50,7 +31,7 @@ describe('account flows end to end in Chromium', () => {
     await tr.page.getByLabel('E-mail').fill(email);
     await tr.page.getByRole('button', { name: 'Send the confirmation link' }).click();
     await expect.poll(() => tr.page.getByRole('status').textContent(), { timeout: 15000 }).toContain('Check');
-    const confirm = pathIn(await waitForMail(email, 'Confirm'), 'confirm');
+    const confirm = linkIn(await waitForMail(email, 'Confirm'), '/confirm').path;
     await tr.page.goto(confirm);
     expect(await tr.page.getByLabel('Your name').inputValue()).toBe('Wren Adeyemi');
     await tr.page.getByLabel('Choose a password').fill('saltmarsh wash 2026');
@@ -72,7 +53,7 @@ describe('account flows end to end in Chromium', () => {
     await tr.page.getByLabel('E-mail').fill(email);
     await tr.page.getByRole('button', { name: 'Send the link' }).click();
     await expect.poll(() => tr.page.getByRole('status').textContent(), { timeout: 15000 }).toContain('If that address has a Plateau account');
-    await tr.page.goto(pathIn(await waitForMail(email, 'new Plateau password'), 'reset-password'));
+    await tr.page.goto(linkIn(await waitForMail(email, 'new Plateau password'), '/reset-password').path);
     await tr.page.getByLabel('New password').fill('cold still new password');
     await tr.page.getByRole('button', { name: 'Save the new password' }).click();
     await tr.page.waitForURL('**/sign-in**');
@@ -91,7 +72,7 @@ describe('account flows end to end in Chromium', () => {
     await mgr.page.getByLabel('Role', { exact: true }).selectOption('distiller');
     await mgr.page.getByRole('button', { name: 'Send invitation' }).click();
     await expect.poll(() => mgr.page.getByTestId('invitation-list').getByRole('listitem').count(), { timeout: 15000 }).toBe(1);
-    const invite = pathIn(await waitForMail(email, 'Join'), 'invite');
+    const invite = linkIn(await waitForMail(email, 'Join'), '/invite').path;
     // The manager's mailbox lists the invitation without its link.
     await mgr.page.goto('/settings/mailbox');
     expect(await mgr.page.content()).not.toContain(invite);

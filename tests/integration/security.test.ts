@@ -9,29 +9,12 @@ import { execFileSync } from 'node:child_process';
 import { eq, like } from 'drizzle-orm';
 import { getDb } from '../../src/db/client';
 import * as t from '../../src/db/schema';
-import { readMailbox, type StoredMail } from '../../src/server/mail/fake-smtp';
 import { hashToken } from '../../src/server/auth/tokens';
 import { createSession } from '../../src/server/auth/session';
 import { Client, createTestWorkspace, TEST_PASSWORD, BASE } from '../helpers/api';
 import { spawnApp, type SpawnedApp } from '../helpers/spawn-app';
+import { linkIn, unique, waitForMail } from '../helpers/mail';
 
-const MAILBOX = process.env.MAILBOX_DIR ?? '.data/mailbox';
-const unique = (p: string) => `${p}-${Date.now().toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}@test.example`;
-
-async function waitForMail(to: string, subjectPart: string, timeoutMs = 20000): Promise<StoredMail> {
-  const until = Date.now() + timeoutMs;
-  for (;;) {
-    const m = readMailbox(MAILBOX).find((x) => x.to.includes(to) && x.subject.includes(subjectPart));
-    if (m) return m;
-    if (Date.now() > until) throw new Error(`no mail "${subjectPart}" to ${to} in ${MAILBOX}`);
-    await new Promise((r) => setTimeout(r, 200));
-  }
-}
-const linkIn = (m: StoredMail, path: string) => {
-  const match = new RegExp(`https?://[^\\s]+${path}/([A-Za-z0-9_-]+)`).exec(m.text);
-  if (!match) throw new Error(`no ${path} link in: ${m.text}`);
-  return { url: match[0], token: match[1]! };
-};
 /** The throttle counts per client address; these tests all come from 127.0.0.1. */
 async function clearThrottle() {
   await getDb().delete(t.signInThrottle).where(like(t.signInThrottle.key, '%'));

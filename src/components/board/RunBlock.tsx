@@ -109,6 +109,8 @@ function RunBlockInner(p: RunBlockProps) {
         {...attributes}
         {...listeners}
         aria-roledescription={movable ? 'movable run' : 'run'}
+        // dnd-kit marks a block it may not drag as disabled, but every block still opens its run (and a done run's record) with Enter or a click.
+        aria-disabled={undefined}
         aria-label={label}
         title={label}
         onKeyDown={(e) => {

@@ -4,6 +4,7 @@ import { defaultRunMinutes, RUN_STATUS_LABELS, RUN_TYPE_LABELS, SAFETY_CAUTIONS,
 import { computeRunWarnings, wallClock, zonedDateTime, type RunType, type Warning } from '../../lib/schedule';
 import { formatVolume, parseVolumeToLitres, volumeForDisplay, volumeUnitFor, type UnitSystem } from '../../lib/units';
 import { RUN_TYPES } from '../../lib/vocabulary';
+import { runRecordHref, runRecordLinkText, takesRecord } from '../runs/record-link';
 
 export interface DialogDraft {
   /** Null when booking a new run. */
@@ -65,6 +66,24 @@ export function RunDialog(p: RunDialogProps) {
     const d = ref.current;
     if (d && !d.open) d.showModal();
   }, []);
+
+  // A done run links to its record for those who may record; the words depend on whether fractions are saved yet.
+  const recordRunId = existing && p.canOperate && existing.status === 'done' && takesRecord(existing.type) ? existing.id : null;
+  const [recorded, setRecorded] = useState<boolean | null>(null);
+  useEffect(() => {
+    if (recordRunId === null) return;
+    let current = true;
+    fetch(`/api/runs/${recordRunId}/outcomes`, { headers: { accept: 'application/json' }, credentials: 'same-origin' })
+      .then((res) => (res.ok ? res.json() : null))
+      .then((body: { record?: { fractions?: unknown[] } } | null) => {
+        if (current && body?.record?.fractions) setRecorded(body.record.fractions.length > 0);
+      })
+      // Unknown: the link stays, worded "Run record".
+      .catch(() => undefined);
+    return () => {
+      current = false;
+    };
+  }, [recordRunId]);
 
   const startsAt = fromLocalInput(start, tz);
   const preview: Warning[] = useMemo(() => {
@@ -335,6 +354,11 @@ export function RunDialog(p: RunDialogProps) {
           </ul>
         </details>
         <div className="flex flex-wrap gap-2">
+          {recordRunId !== null && (
+            <a className="btn" href={runRecordHref(recordRunId)} data-testid={`run-record-link-${recordRunId}`}>
+              {runRecordLinkText(recorded !== false)}
+            </a>
+          )}
           {editable && (
             <button type="submit" className="btn" disabled={p.busy}>
               {existing ? 'Save changes' : 'Book run'}

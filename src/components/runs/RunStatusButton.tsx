@@ -5,9 +5,11 @@ export interface RunStatusButtonProps {
   version: number;
   status: 'planned' | 'confirmed' | 'running' | 'done' | 'cancelled';
   label: string;
+  /** Where to go after a finish (the run's record form), for those who may record; without it the page reloads with the new status. */
+  recordHref?: string;
 }
 
-/** Start or finish a run from the floor; reloads the page with the server's answer. */
+/** Start or finish a run from the floor; after a finish opens the record form when given, else reloads the page with the server's answer. */
 export default function RunStatusButton(p: RunStatusButtonProps) {
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
@@ -23,7 +25,8 @@ export default function RunStatusButton(p: RunStatusButtonProps) {
         body: JSON.stringify({ version: p.version }),
       });
       if (res.ok) {
-        window.location.reload();
+        if (action === 'finish' && p.recordHref) window.location.assign(p.recordHref);
+        else window.location.reload();
         return;
       }
       const body = await res.json().catch(() => null);
