@@ -6,7 +6,7 @@
 import { and, eq, isNull, gt, asc, desc, sql, gte, lt, type SQL } from 'drizzle-orm';
 import { getDb } from '../db/client';
 import { memberships, users, invitations, workspaces, sessions, auditLog } from '../db/schema';
-import type { Role, UnitSystem } from '../lib/vocabulary';
+import type { FermenterReleaseMoment, NumberFormat, Role, UnitSystem } from '../lib/vocabulary';
 import type { Ctx } from './context';
 import { HttpError, conflict, notFound } from './http';
 import { audit } from './audit';
@@ -310,6 +310,11 @@ export interface SettingsInput {
   stableDays: number;
   stableTolerance: number;
   wortCorrectionFactor: number;
+  numberFormat?: NumberFormat;
+  atRiskThreshold?: number;
+  startEarlyMarginMinutes?: number;
+  releaseFermentersOn?: FermenterReleaseMoment;
+  bookingHorizonDays?: number;
 }
 
 export async function updateWorkspaceSettings(ctx: Ctx, input: SettingsInput): Promise<void> {
@@ -320,6 +325,7 @@ export async function updateWorkspaceSettings(ctx: Ctx, input: SettingsInput): P
     if (!before) throw notFound();
     const changed: Record<string, { from: unknown; to: unknown }> = {};
     for (const k of Object.keys(input) as Array<keyof SettingsInput>) {
+      if (input[k] === undefined) continue;
       if (before[k] !== input[k]) changed[k] = { from: before[k], to: input[k] };
     }
     if (!Object.keys(changed).length) return;

@@ -1,7 +1,7 @@
 import { and, eq, asc } from 'drizzle-orm';
 import { getDb } from '../db/client';
 import { memberships, workspaces } from '../db/schema';
-import type { Role, UnitSystem } from '../lib/vocabulary';
+import type { FermenterReleaseMoment, NumberFormat, Role, UnitSystem } from '../lib/vocabulary';
 
 export interface WorkspaceSettings {
   id: number;
@@ -13,6 +13,18 @@ export interface WorkspaceSettings {
   stableTolerance: number;
   wortCorrectionFactor: number;
   isDemo: boolean;
+  /** How typed numbers are read: decimal point or decimal comma. */
+  numberFormat: NumberFormat;
+  /** At-risk threshold: a run is at risk when its wash is less likely than this (0–1) to be confirmable by its start. */
+  atRiskThreshold: number;
+  /** Starting a run more than this many minutes before its booking asks for confirmation. */
+  startEarlyMarginMinutes: number;
+  /** When a stripping run marks the washes it charged as emptied. */
+  releaseFermentersOn: FermenterReleaseMoment;
+  /** Runs and closures may be booked at most this many days ahead. */
+  bookingHorizonDays: number;
+  /** When the getting-started checklist was put away; null = shown until complete. */
+  setupDismissedAt: Date | null;
 }
 
 export async function membershipsOf(userId: number): Promise<Array<{ workspaceId: number; name: string; role: Role }>> {
@@ -36,6 +48,12 @@ export function toSettings(row: typeof workspaces.$inferSelect): WorkspaceSettin
     stableTolerance: row.stableTolerance,
     wortCorrectionFactor: row.wortCorrectionFactor,
     isDemo: row.isDemo,
+    numberFormat: row.numberFormat,
+    atRiskThreshold: row.atRiskThreshold,
+    startEarlyMarginMinutes: row.startEarlyMarginMinutes,
+    releaseFermentersOn: row.releaseFermentersOn,
+    bookingHorizonDays: row.bookingHorizonDays,
+    setupDismissedAt: row.setupDismissedAt,
   };
 }
 

@@ -1,6 +1,6 @@
 import { mysqlTable, varchar, mysqlEnum, int, double, json, uniqueIndex, index, boolean } from 'drizzle-orm/mysql-core';
 import { fk, utc, timestamps, id } from './_shared';
-import { ROLES, UNIT_SYSTEMS } from '../../lib/vocabulary';
+import { FERMENTER_RELEASE_MOMENTS, NUMBER_FORMATS, ROLES, UNIT_SYSTEMS } from '../../lib/vocabulary';
 
 /** One distillery. Settings that change how readings are interpreted live here. */
 export const workspaces = mysqlTable('workspaces', {
@@ -15,6 +15,18 @@ export const workspaces = mysqlTable('workspaces', {
   /** Refractometer wort correction factor. */
   wortCorrectionFactor: double('wort_correction_factor').notNull().default(1.04),
   isDemo: boolean('is_demo').notNull().default(false),
+  /** How typed numbers are read (decimal point or comma). */
+  numberFormat: mysqlEnum('number_format', NUMBER_FORMATS).notNull().default('point'),
+  /** A run is at risk when its wash is less likely than this to be confirmable by the run's start. */
+  atRiskThreshold: double('at_risk_threshold').notNull().default(0.8),
+  /** Starting a run more than this many minutes before its booking asks for confirmation. */
+  startEarlyMarginMinutes: int('start_early_margin_minutes').notNull().default(60),
+  /** When a stripping run marks the washes it charged as emptied. */
+  releaseFermentersOn: mysqlEnum('release_fermenters_on', FERMENTER_RELEASE_MOMENTS).notNull().default('finish'),
+  /** Runs and closures may be booked at most this many days ahead. */
+  bookingHorizonDays: int('booking_horizon_days').notNull().default(365),
+  /** When a manager put the getting-started checklist away (null = still shown until complete). */
+  setupDismissedAt: utc('setup_dismissed_at'),
   ...timestamps,
 });
 

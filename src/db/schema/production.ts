@@ -1,4 +1,18 @@
-import { mysqlTable, varchar, mysqlEnum, int, double, json, uniqueIndex, index, text, boolean, date, primaryKey } from 'drizzle-orm/mysql-core';
+import {
+  type AnyMySqlColumn,
+  mysqlTable,
+  varchar,
+  mysqlEnum,
+  int,
+  double,
+  json,
+  uniqueIndex,
+  index,
+  text,
+  boolean,
+  date,
+  primaryKey,
+} from 'drizzle-orm/mysql-core';
 import { fk, utc, timestamps, id } from './_shared';
 import { workspaces, users } from './accounts';
 import {
@@ -114,6 +128,10 @@ export const ferments = mysqlTable(
     notes: text('notes'),
     emptiedAt: utc('emptied_at'),
     emptiedReason: mysqlEnum('emptied_reason', EMPTIED_REASONS),
+    /** The stripping run that emptied the fermenter (null when emptied by hand). */
+    emptiedByRunId: fk('emptied_by_run_id').references((): AnyMySqlColumn => runs.id, { onDelete: 'set null' }),
+    /** Why a wash was dumped or emptied by hand, in the person's words. */
+    emptiedNote: varchar('emptied_note', { length: 200 }),
     createdBy: fk('created_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },
@@ -179,6 +197,12 @@ export const readings = mysqlTable(
     /** SG referred to the workspace's hydrometer calibration temperature. */
     correctedSg: double('corrected_sg').notNull(),
     lowConfidence: boolean('low_confidence').notNull().default(false),
+    /**
+     * Why a reading is held for review (implausible against the ferment, a likely duplicate of
+     * another at the same minute...); null = nothing to review. Held readings are stored and
+     * shown but not fed to the forecast until someone accepts them.
+     */
+    reviewReason: varchar('review_reason', { length: 200 }),
     source: mysqlEnum('source', READING_SOURCES).notNull().default('manual'),
     uploadId: varchar('upload_id', { length: 64 }),
     fermentTempC: double('ferment_temp_c'),
@@ -257,8 +281,11 @@ export const runs = mysqlTable(
     /** iCalendar SEQUENCE: bumped on every change of time, still or status. */
     sequence: int('sequence').notNull().default(0),
     notes: text('notes'),
+    /** Actual moments (the booking stays in startsAt/endsAt for comparison). */
     startedAt: utc('started_at'),
     finishedAt: utc('finished_at'),
+    /** Whether the run was at risk when it was last booked or moved (so "wash late" can be told from "booked early"). */
+    bookedAtRisk: boolean('booked_at_risk').notNull().default(false),
     createdBy: fk('created_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },

@@ -5,3 +5,15 @@ export type UnitSystem = (typeof UNIT_SYSTEMS)[number];
 
 export const TEMPERATURE_UNITS = ['C', 'F'] as const;
 export type TemperatureUnit = (typeof TEMPERATURE_UNITS)[number];
+
+/**
+ * How a distillery types numbers: `point` reads "1,200.5" as one thousand two hundred and a
+ * half; `comma` reads "1.200,5" the same way. Every typed number is parsed by this setting.
+ */
+export const NUMBER_FORMATS = ['point', 'comma'] as const;
+export type NumberFormat = (typeof NUMBER_FORMATS)[number];
+
+export const NUMBER_FORMAT_LABELS: Record<NumberFormat, string> = {
+  point: 'Decimal point (1,200.5)',
+  comma: 'Decimal comma (1.200,5)',
+};
