@@ -1,7 +1,8 @@
 import { defineMiddleware } from 'astro:middleware';
-import { lucia, SESSION_ABSOLUTE_MS, setSessionCookie, clearSessionCookie, sessionTokenFrom, sessionIdFor, cookiesSecure } from './server/auth/session';
+import { lucia, SESSION_ABSOLUTE_MS, setSessionCookie, clearSessionCookie, sessionTokenFrom, sessionIdFor } from './server/auth/session';
+import { cookiesMustBeSecure } from './server/request';
 import { demoAllowed } from './config';
-import { cspForHtml, BASE_SECURITY_HEADERS } from './server/csp';
+import { contentSecurityPolicy, BASE_SECURITY_HEADERS } from './server/csp';
 import { jsonError } from './server/http';
 import { isSameOrigin } from './server/request';
 import { isDbUnavailable } from './server/db-errors';
@@ -107,29 +108,29 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
 
 /** Sent on every response, redirects and errors included; HSTS only when we are served over HTTPS. */
 function securityHeaders(): Record<string, string> {
-  return cookiesSecure() ? { ...BASE_SECURITY_HEADERS, 'strict-transport-security': 'max-age=31536000; includeSubDomains' } : BASE_SECURITY_HEADERS;
+  return cookiesMustBeSecure() ? { ...BASE_SECURITY_HEADERS, 'strict-transport-security': 'max-age=31536000; includeSubDomains' } : BASE_SECURITY_HEADERS;
 }
 
-async function withHeadersAsync(response: Response): Promise<Response> {
-  const html = await response.text();
-  const headers = new Headers(response.headers);
-  headers.set('content-security-policy', cspForHtml(html));
-  for (const [k, v] of Object.entries(securityHeaders())) if (!headers.has(k)) headers.set(k, v);
-  return new Response(html, { status: response.status, statusText: response.statusText, headers });
-}
+const NOTHING_ALLOWED = "default-src 'none'; frame-ancestors 'none'";
 
-function withHeaders(response: Response, isStatic = false): Response | Promise<Response> {
-  const type = response.headers.get('content-type') ?? '';
-  if (!isStatic && type.includes('text/html')) return withHeadersAsync(response);
+/**
+ * Security headers on a response. An HTML page gets the page policy (the same for every page,
+ * so the body is streamed through unread); anything else gets a policy that allows nothing.
+ */
+function withHeaders(response: Response, isStatic = false): Response {
+  const html = !isStatic && (response.headers.get('content-type') ?? '').includes('text/html');
+  const csp = html ? contentSecurityPolicy() : NOTHING_ALLOWED;
   try {
     for (const [k, v] of Object.entries(securityHeaders())) if (!response.headers.has(k)) response.headers.set(k, v);
-    if (!response.headers.has('content-security-policy')) response.headers.set('content-security-policy', "default-src 'none'; frame-ancestors 'none'");
+    if (html) response.headers.set('content-security-policy', csp);
+    else if (!response.headers.has('content-security-policy')) response.headers.set('content-security-policy', csp);
     return response;
   } catch {
     // Immutable headers (e.g. a fetched response): copy.
     const headers = new Headers(response.headers);
     for (const [k, v] of Object.entries(securityHeaders())) if (!headers.has(k)) headers.set(k, v);
-    return new Response(response.body, { status: response.status, headers });
+    if (html || !headers.has('content-security-policy')) headers.set('content-security-policy', csp);
+    return new Response(response.body, { status: response.status, statusText: response.statusText, headers });
   }
 }
 

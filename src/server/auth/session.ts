@@ -112,17 +112,9 @@ declare module 'lucia' {
   }
 }
 
-/**
- * Whether cookies are Secure (and carry the __Host- prefix) and responses send HSTS: decided
- * once from PUBLIC_URL's scheme, never from a header the client could send.
- */
-export function cookiesSecure(): boolean {
-  return cookiesMustBeSecure();
-}
-
 /** `__Host-` binds the cookie to this exact host, path / and HTTPS (browsers enforce it). */
 export function sessionCookieName(): string {
-  return cookiesSecure() ? '__Host-plateau_session' : 'plateau_session';
+  return cookiesMustBeSecure() ? '__Host-plateau_session' : 'plateau_session';
 }
 
 /**
@@ -133,11 +125,11 @@ export const sessionIdFor = (token: string) => hashToken(token);
 
 /** Host-only (no Domain), HttpOnly, SameSite=Lax, path /; Secure when PUBLIC_URL is https. */
 export function setSessionCookie(cookies: AstroCookies, token: string): void {
-  cookies.set(sessionCookieName(), token, { path: '/', httpOnly: true, sameSite: 'lax', secure: cookiesSecure(), maxAge: SESSION_ABSOLUTE_MS / 1000 });
+  cookies.set(sessionCookieName(), token, { path: '/', httpOnly: true, sameSite: 'lax', secure: cookiesMustBeSecure(), maxAge: SESSION_ABSOLUTE_MS / 1000 });
 }
 
 export function clearSessionCookie(cookies: AstroCookies): void {
-  cookies.set(sessionCookieName(), '', { path: '/', httpOnly: true, sameSite: 'lax', secure: cookiesSecure(), maxAge: 0 });
+  cookies.set(sessionCookieName(), '', { path: '/', httpOnly: true, sameSite: 'lax', secure: cookiesMustBeSecure(), maxAge: 0 });
 }
 
 /** The session token sent by the browser, if any (bounded: a token is 43 characters). */
