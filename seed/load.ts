@@ -10,6 +10,7 @@ import { hashPassword } from '../src/server/auth/password';
 import { newToken, hashToken } from '../src/server/auth/tokens';
 import { correctReading } from '../src/lib/gravity';
 import { getForecasts, replayForecastHistory } from '../src/server/forecasts';
+import { recordRiskAtBooking } from '../src/server/run-risk';
 import { systemCtx } from '../src/server/context';
 import { workspaceSettings } from '../src/server/workspaces';
 import { alcoholmeterCorrection, laa } from '../src/lib/alcohol';
@@ -217,6 +218,15 @@ export async function loadDemo(
     await getForecasts(ctx, ids, now);
     await getForecasts(ctx, ids, now); // again, now that finished washes inform the running ones
     await replayForecastHistory(ctx, ids, now);
+    // Whether each run ahead was at risk as booked, judged like a booking made now, so the board
+    // tells a run booked early from one whose wash fell late.
+    const ahead = await db
+      .select({ id: t.runs.id })
+      .from(t.runs)
+      .where(and(eq(t.runs.workspaceId, workspaceId), inArray(t.runs.status, ['planned', 'confirmed'])));
+    await db.transaction(async (tx) => {
+      for (const r of ahead) await recordRiskAtBooking(tx, ctx, r.id);
+    });
   }
   const tokenFile = opts.tokenFile === undefined ? demoFeedTokenFile() : opts.tokenFile;
   if (tokenFile) {

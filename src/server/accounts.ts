@@ -15,8 +15,49 @@ import { takeAttempt, forgive, refund } from './throttle';
 import { audit } from './audit';
 import { membershipsOf, roleIn, isDemoMember } from './workspaces';
 import { insertDefaultWashTypes } from './vessels';
+import { NUMBER_FORMATS, UNIT_SYSTEMS, type NumberFormat, type UnitSystem } from '../lib/vocabulary';
 
 export const normaliseEmail = (email: string) => email.trim().toLowerCase();
+
+/**
+ * Carries the typed e-mail back to the sign-in page after a refused plain form post, for a few
+ * minutes and for that page only (not in the URL, so not in logs or the browser's history).
+ */
+export const SIGN_IN_EMAIL_COOKIE = 'plateau_signin_email';
+
+/** The time zone a distillery gets when none is chosen (the workspaces.time_zone column default). */
+export const DEFAULT_TIME_ZONE = 'Europe/London';
+
+/** The IANA name of a time zone this server knows, in its canonical spelling ("europe/paris" -> "Europe/Paris"), or null. */
+export function canonicalTimeZone(tz: string): string | null {
+  if (!tz || tz.length > 64) return null;
+  try {
+    return new Intl.DateTimeFormat('en', { timeZone: tz }).resolvedOptions().timeZone;
+  } catch {
+    return null;
+  }
+}
+
+/** The zones a sign-up may choose from (IANA names this server knows), with `include` added if missing. */
+export function timeZoneOptions(include: string = DEFAULT_TIME_ZONE): string[] {
+  const list = (Intl as unknown as { supportedValuesOf?: (k: string) => string[] }).supportedValuesOf?.('timeZone') ?? [];
+  return list.includes(include) ? list : [include, ...list].sort();
+}
+
+/** What a new distillery is set up with: chosen at sign-up, kept in the e-mailed token until confirmed. */
+export interface SignUpChoices {
+  timeZone?: string;
+  units?: UnitSystem;
+  numberFormat?: NumberFormat;
+}
+
+/** The choices stored with a sign-up token, read back defensively (an old token may lack them). */
+export function signUpChoicesOf(payload: Record<string, string> | null | undefined): Required<SignUpChoices> {
+  const zone = canonicalTimeZone(payload?.timeZone ?? '') ?? DEFAULT_TIME_ZONE;
+  const units = (UNIT_SYSTEMS as readonly string[]).includes(payload?.units ?? '') ? (payload!.units as UnitSystem) : 'metric';
+  const numberFormat = (NUMBER_FORMATS as readonly string[]).includes(payload?.numberFormat ?? '') ? (payload!.numberFormat as NumberFormat) : 'point';
+  return { timeZone: zone, units, numberFormat };
+}
 
 /**
  * Check a password and open a new session. Unknown e-mail and wrong password give the
@@ -66,7 +107,7 @@ export const MIN_PASSWORD = 10;
  * chosen on the page the confirmation link opens (a stranger who signs up with someone
  * else's address can never hand that person an account with the stranger's password).
  */
-export async function requestSignUp(input: { email: string; name: string; workspaceName: string; ip: string }): Promise<void> {
+export async function requestSignUp(input: { email: string; name: string; workspaceName: string; ip: string } & SignUpChoices): Promise<void> {
   const email = normaliseEmail(input.email);
   const db = getDb();
   await db.transaction(async (tx) => {
@@ -82,7 +123,13 @@ export async function requestSignUp(input: { email: string; name: string; worksp
       tokenHash: hashToken(token),
       email,
       userId: null,
-      payload: { name: input.name, workspaceName: input.workspaceName },
+      payload: {
+        name: input.name,
+        workspaceName: input.workspaceName,
+        ...(input.timeZone ? { timeZone: input.timeZone } : {}),
+        ...(input.units ? { units: input.units } : {}),
+        ...(input.numberFormat ? { numberFormat: input.numberFormat } : {}),
+      },
       expiresAt: new Date(Date.now() + SIGNUP_TOKEN_HOURS * 3600_000),
     });
     const mail = signUpConfirmMail({ name: input.name, workspaceName: input.workspaceName, link: publicUrl(`/confirm/${token}`), hours: SIGNUP_TOKEN_HOURS });
@@ -130,6 +177,7 @@ export async function confirmSignUp(
   if (!row || !row.payload) throw expiredLink();
   const name = input.name ?? row.payload.name ?? 'Manager';
   const workspaceName = input.workspaceName ?? row.payload.workspaceName ?? 'My distillery';
+  const choices = signUpChoicesOf(row.payload);
   const passwordHash = await hashPassword(input.password);
   const db = getDb();
   const { userId, workspaceId } = await db.transaction(async (tx) => {
@@ -137,7 +185,10 @@ export async function confirmSignUp(
     const [exists] = await tx.select({ id: users.id }).from(users).where(eq(users.email, row.email)).limit(1);
     if (exists) throw new HttpError(409, 'conflict', 'This address already has an account. Sign in instead.');
     const [u] = await tx.insert(users).values({ email: row.email, name, passwordHash, emailVerifiedAt: new Date() }).$returningId();
-    const [w] = await tx.insert(workspaces).values({ name: workspaceName }).$returningId();
+    const [w] = await tx
+      .insert(workspaces)
+      .values({ name: workspaceName, ...choices })
+      .$returningId();
     await tx.insert(memberships).values({ workspaceId: w!.id, userId: u!.id, role: 'manager' });
     // A new distillery starts with the trade's usual wash types, editable later.
     await insertDefaultWashTypes(w!.id, tx);
@@ -148,7 +199,7 @@ export async function confirmSignUp(
         action: 'workspace.created',
         entityType: 'workspace',
         entityId: w!.id,
-        details: { name: workspaceName },
+        details: { name: workspaceName, ...choices },
         ip: meta.ip,
       },
       tx,

@@ -8,10 +8,15 @@ export const ACTIONS = {
   'board.read': ['manager', 'planner', 'distiller', 'staff'],
   'ferments.read': ['manager', 'planner', 'distiller', 'staff'],
   'ferments.write': ['manager', 'planner'],
+  /** Starting a ferment and marking a fermenter emptied are floor work too (PRODUCT.md: distillers start ferments and mark them emptied). */
+  'ferments.start': ['manager', 'planner', 'distiller'],
+  'ferments.empty': ['manager', 'planner', 'distiller'],
   'readings.write': ['manager', 'planner', 'distiller'],
   'runs.book': ['manager', 'planner'],
   'runs.move': ['manager', 'planner', 'distiller'],
   'runs.operate': ['manager', 'planner', 'distiller'],
+  /** Correcting when a run really started or finished, afterwards, with a reason (audited). */
+  'runs.correct_times': ['manager', 'planner'],
   'feeds.own': ['manager', 'planner', 'distiller', 'staff'],
   'feeds.manage': ['manager'],
   'reports.read': ['manager', 'planner'],
@@ -22,6 +27,7 @@ export const ACTIONS = {
   'members.manage': ['manager'],
   'audit.read': ['manager'],
   'mailbox.read': ['manager'],
+  'setup.read': ['manager', 'planner'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof ACTIONS;

@@ -9,7 +9,6 @@ import { getDb } from '../db/client';
 import { fermentForecasts, fermenters, ferments, memberships, runFerments, runs, users, washTypes } from '../db/schema';
 import {
   dehydrateRun,
-  notBeforeForRisk,
   toFermentState,
   toScheduleRun,
   toScheduleStill,
@@ -18,7 +17,7 @@ import {
   type BoardRun,
   type BoardStill,
 } from '../lib/board';
-import { computeRunWarnings, findEarliestSlots, runChargeLitres, type FermentStatus, type Slot, type Warning } from '../lib/schedule';
+import { computeRunWarnings, earliestStartNotAtRisk, findEarliestSlots, runChargeLitres, type FermentStatus, type Slot, type Warning } from '../lib/schedule';
 import { getForecasts } from './forecasts';
 import { fermentJson } from './ferment-lookup';
 import { notFound } from './http';
@@ -211,7 +210,7 @@ function boardBody(payload: BoardPayload): BoardBody {
  */
 export async function getBoardBody(ctx: Ctx, from: Date, to: Date, now = new Date(), opts: { fresh?: boolean } = {}): Promise<BoardBody> {
   const { ws } = ctx;
-  const key = `${ws.id}|${ws.timeZone}|${ws.stableDays}|${from.getTime()}|${to.getTime()}`;
+  const key = `${ws.id}|${ws.timeZone}|${ws.stableDays}|${ws.atRiskThreshold}|${from.getTime()}|${to.getTime()}`;
   return boardCache.get(ws.id, key, now, async () => boardBody(await getBoard(ctx, from, to, now)), opts);
 }
 
@@ -222,6 +221,7 @@ export async function getBoard(ctx: Ctx, from: Date, to: Date, now = new Date())
     timeZone: ctx.ws.timeZone,
     now: now.toISOString(),
     stableDays: ctx.ws.stableDays,
+    atRiskThreshold: ctx.ws.atRiskThreshold,
     stills: data.stills.map(({ id, name, kind, capacityLitres, heatingKw, operatingHours, closures, cleaningAfterRunMinutes, typicalMinutes, position }) => ({
       id,
       name,
@@ -257,6 +257,7 @@ export async function warningsForRun(ctx: Ctx, run: BoardRun, now = new Date()):
     ferments: new Map(data.ferments.map((f) => [f.id, toFermentState(f)])),
     timeZone: ctx.ws.timeZone,
     now,
+    atRiskThreshold: ctx.ws.atRiskThreshold,
   });
 }
 
@@ -268,16 +269,17 @@ export interface Suggestions {
 
 /**
  * Earliest feasible slots for a run at risk: on its still or another that takes the
- * charge, after its washes' ready windows (a fresh stability period for a stalled or
- * souring wash), inside operating hours, without overlapping anything (cleaning slots
- * included). The run's own still comes first on equal start times.
+ * charge, from when it is no longer at risk (the at-risk threshold quantile of its washes'
+ * ready times; a fresh stability period for a stalled or souring wash), inside operating
+ * hours with room for the run and its cleaning before closing, without overlapping anything
+ * (cleaning slots included). The run's own still comes first on equal start times.
  */
 export async function suggestSlots(ctx: Ctx, runId: number, now = new Date(), limit = 3): Promise<Suggestions> {
   const run = await getRun(ctx, runId);
   if (run.status === 'cancelled' || run.status === 'done' || run.status === 'running') throw notFound('That run is not open to a move.');
   const horizonDays = 28;
   const probe = await loadBoardData(ctx, now, new Date(now.getTime() + (horizonDays + 2) * DAY_MS), now);
-  const notBefore = notBeforeForRisk(run, probe.ferments.length ? probe.ferments : [], now, ctx.ws.stableDays);
+  const notBefore = earliestStartNotAtRisk(run, probe.ferments, now, ctx.ws.stableDays, ctx.ws.atRiskThreshold);
   const data =
     notBefore.getTime() > now.getTime() + DAY_MS ? await loadBoardData(ctx, notBefore, new Date(notBefore.getTime() + (horizonDays + 2) * DAY_MS), now) : probe;
   const own = data.stills.find((s) => s.id === run.stillId);

@@ -12,7 +12,7 @@ import { getDb } from '../db/client';
 import { calendarFeeds, ferments, memberships, readings, runs, stills, users, workspaces } from '../db/schema';
 import { toScheduleStill } from '../lib/board';
 import { describeRunEvent, runEventStatus, runEventTitle, uidForRun, type EventStatus, type FeedEvent } from '../lib/calendar';
-import { computeRunWarnings, runChargeLitres, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
+import { actualSpan, computeRunWarnings, runChargeLitres, timingWords, type FermentState, type Run, type RunStatus, type RunType } from '../lib/schedule';
 import { env, publicUrl } from '../config';
 import { audit } from './audit';
 import { ACTIONS, can } from './authz';
@@ -425,6 +425,8 @@ export interface RenderedFeed {
 interface LoadedRun extends Run {
   sequence: number;
   updatedAt: Date;
+  startedAt?: Date | null;
+  finishedAt?: Date | null;
 }
 
 /** Build the calendar of one feed. */
@@ -557,15 +559,25 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
     // Warnings matter while a run is still to come; a run under way or done keeps its record only.
     const warnings =
       still && (run.status === 'planned' || run.status === 'confirmed')
-        ? computeRunWarnings(run, { still: toScheduleStill(still), runs: scheduleRuns, ferments: states, timeZone: wsRow.timeZone, now })
+        ? computeRunWarnings(run, {
+            still: toScheduleStill(still),
+            runs: scheduleRuns,
+            ferments: states,
+            timeZone: wsRow.timeZone,
+            now,
+            atRiskThreshold: wsRow.atRiskThreshold,
+          })
         : [];
     const url = publicUrl(`/runs/${run.id}`);
     const modified = changedAt(run);
     lastModified = maxDate(lastModified, modified)!;
+    // A started or done run sits at its actual times (a running one until its booked end, or its start when it overran).
+    const span = actualSpan(run);
     events.push({
       uid: uidForRun(run.id, ws, host),
-      start: run.startsAt,
-      end: run.endsAt,
+      start: span.start,
+      // DTEND must come after DTSTART in whole seconds (RFC 5545 §3.8.2.2): a run finished within seconds is shown a minute long.
+      end: Math.floor(span.end.getTime() / 1000) > Math.floor(span.start.getTime() / 1000) ? span.end : new Date(span.start.getTime() + 60_000),
       title: runEventTitle(run.type as RunType, stillName),
       description: describeRunEvent({
         runType: run.type as RunType,
@@ -587,6 +599,7 @@ export async function renderFeed(feed: FeedRecord, now = new Date()): Promise<Re
         warnings,
         url,
         timeZone: wsRow.timeZone,
+        actual: timingWords(run) ? { words: timingWords(run), bookedStart: run.startsAt, bookedEnd: run.endsAt } : undefined,
       }),
       location: stillName,
       url,

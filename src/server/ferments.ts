@@ -1,27 +1,32 @@
 import { and, asc, desc, eq, isNull, isNotNull, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb } from '../db/client';
-import { fermentIngredients, fermenters, ferments, readings, washTypes } from '../db/schema';
+import { fermentIngredients, fermenters, ferments, readings, runFerments, runs, stills, washTypes } from '../db/schema';
 import { parseMassToKg, parseVolumeToLitres, massUnitFor, volumeUnitFor, volumeForDisplay } from '../lib/units';
-import { EMPTIED_REASONS, type EmptiedReason } from '../lib/vocabulary';
+import { EMPTIED_REASONS, type EmptiedReason, type RunType } from '../lib/vocabulary';
 import { audit } from './audit';
 import { HttpError, conflict, invalid } from './http';
 import type { Ctx } from './context';
+import { typedNumber } from './numbers';
 import type { Tx } from './tx';
 import { CLOCK_SKEW_MS, parseWorkspaceTime } from './workspace-time';
 import { getFerment, type FermentRecord } from './ferment-lookup';
 import { recorrectFermentReadings } from './readings';
 import { getForecasts, recomputeForecast, type ForecastSummary } from './forecasts';
+import { releaseInstant } from './fermenter-release';
 
 // The lookup and the time parsing live in their own modules (readings.ts needs them too); re-exported here.
 export { CLOCK_SKEW_MS, parseWorkspaceTime } from './workspace-time';
 export { fermentForPage, fermentJson, getFerment, type FermentRecord } from './ferment-lookup';
 
 const sgField = (what: string) =>
-  z
-    .number({ error: `Enter the ${what} as an SG, e.g. 1.060.` })
-    .min(1, `The ${what} must be at least 1.000.`)
-    .max(1.2, `The ${what} must be at most 1.200.`);
+  typedNumber(
+    z
+      .number({ error: `Enter the ${what} as an SG, e.g. 1.060.` })
+      .min(1, `The ${what} must be at least 1.000.`)
+      .max(1.2, `The ${what} must be at most 1.200.`),
+    { grouping: false },
+  );
 
 /** A ferment as a person sends it (POST /api/ferments; PATCH takes it partial). */
 export const fermentInputSchema = z.object({
@@ -29,7 +34,7 @@ export const fermentInputSchema = z.object({
   washTypeId: z.number({ error: 'Choose a wash type.' }).int().positive('Choose a wash type.'),
   fermenterId: z.number().int().positive().nullable(),
   /** In the workspace's volume unit. */
-  volume: z.number({ error: 'Enter the volume as a number.' }).positive('The volume must be above zero.').max(1_000_000),
+  volume: typedNumber(z.number({ error: 'Enter the volume as a number.' }).positive('The volume must be above zero.').max(1_000_000)),
   pitchedAt: z.string({ error: 'Give the pitch time.' }).min(1, 'Give the pitch time.').max(40),
   og: sgField('OG'),
   yeast: z.string().trim().max(120).nullable().optional(),
@@ -39,18 +44,67 @@ export const fermentInputSchema = z.object({
     .array(
       z.object({
         name: z.string().trim().max(120),
-        quantity: z.number({ error: 'Enter the quantity as a number.' }).min(0).max(1_000_000),
+        quantity: typedNumber(z.number({ error: 'Enter the quantity as a number.' }).min(0).max(1_000_000)),
       }),
     )
     .max(30)
     .optional(),
 });
 
-/** Marking a fermenter emptied: the wash went to the still (distilled) or was dumped. */
+const blankToUndefined = (v: unknown) => (v === null || (typeof v === 'string' && v.trim() === '') ? undefined : v);
+
+/** The longest note kept about an emptying (the column is varchar 200). */
+export const EMPTIED_NOTE_MAX = 200;
+
+/**
+ * Marking a fermenter emptied: the wash went to the still (distilled) or was dumped. A dump needs
+ * a note (why); `runId` names the stripping run that took the last of it (the "Is FV3 empty?"
+ * answer). Read from JSON (islands, tests) and from plain form posts alike.
+ */
 export const emptyInputSchema = z.object({
   reason: z.enum(EMPTIED_REASONS, { error: 'Say whether the wash went to the still or was dumped.' }),
-  at: z.string().max(40).optional(),
+  note: z.preprocess(
+    blankToUndefined,
+    z.string({ error: 'Write the note as text.' }).trim().max(EMPTIED_NOTE_MAX, `Keep the note to ${EMPTIED_NOTE_MAX} characters.`).optional(),
+  ),
+  runId: z.preprocess(blankToUndefined, z.coerce.number({ error: 'Name the run by its number.' }).int().positive('Name the run by its number.').optional()),
+  at: z.preprocess(blankToUndefined, z.string({ error: 'Give a date and time, e.g. 2026-11-04T08:30.' }).max(40).optional()),
 });
+export type EmptyInput = z.infer<typeof emptyInputSchema>;
+
+/** What the page says when a dumped wash comes without its reason. */
+export const DUMP_NOTE_MESSAGE = 'Why was it dumped? Say in a few words (e.g. soured, infected, spilled).';
+
+/** Why a plain form post to mark a fermenter emptied was sent back (the page shows the words). */
+export const EMPTY_ERROR_CODES = ['note', 'reason', 'at', 'runId', 'confirm', 'conflict', 'invalid'] as const;
+export type EmptyErrorCode = (typeof EMPTY_ERROR_CODES)[number];
+
+export function emptyErrorMessage(code: string | null, fermenter: string | null): string | null {
+  const vessel = fermenter ?? 'the fermenter';
+  switch (code) {
+    case 'note':
+      return DUMP_NOTE_MESSAGE;
+    case 'reason':
+      return 'Say whether the wash went to the still or was dumped.';
+    case 'at':
+      return 'Check the time it was emptied: not in the future, not before the pitch.';
+    case 'runId':
+      return 'That run did not take wash from this ferment.';
+    case 'confirm':
+      return `Tick the box to confirm ${vessel} is empty, then mark it emptied.`;
+    case 'conflict':
+      return 'It was already marked emptied.';
+    case 'invalid':
+      return 'That could not be saved; check the form and try again.';
+    default:
+      return null;
+  }
+}
+
+/** Where a plain form post goes back to: the ferment page, or a run's page or record page; nothing else. */
+export function emptyBackPath(back: string | undefined, fermentId: number): string {
+  return back && /^\/(ferments\/\d{1,15}|runs\/\d{1,15}(\/record)?)$/.test(back) ? back : `/ferments/${fermentId}`;
+}
 
 /** Filters of the ferments list (GET /api/ferments). */
 export const fermentListQuery = z.object({
@@ -117,9 +171,9 @@ export async function listFerments(ctx: Ctx, filters: FermentFilters = {}, now =
     SELECT r.ferment_id AS fermentId, r.taken_at AS takenAt, r.corrected_sg AS sg, x.n AS n
     FROM ${readings} r
     JOIN (SELECT ferment_id, MAX(taken_at) AS m, COUNT(*) AS n FROM ${readings}
-          WHERE workspace_id = ${workspaceId} AND deleted_at IS NULL GROUP BY ferment_id) x
+          WHERE workspace_id = ${workspaceId} AND deleted_at IS NULL AND review_reason IS NULL GROUP BY ferment_id) x
       ON x.ferment_id = r.ferment_id AND x.m = r.taken_at
-    WHERE r.workspace_id = ${workspaceId} AND r.deleted_at IS NULL`)) as unknown as [
+    WHERE r.workspace_id = ${workspaceId} AND r.deleted_at IS NULL AND r.review_reason IS NULL`)) as unknown as [
     Array<{ fermentId: number; takenAt: Date | string; sg: number; n: number }>,
   ];
   const last = new Map<number, { takenAt: Date; sg: number; n: number }>();
@@ -334,21 +388,41 @@ export async function updateFerment(ctx: Ctx, id: number, input: Partial<Ferment
   return getFerment(ctx, id);
 }
 
-export async function emptyFerment(ctx: Ctx, id: number, input: z.infer<typeof emptyInputSchema>, now = new Date()): Promise<FermentRecord> {
+/**
+ * Mark a fermenter emptied by hand (or by answering "Is FV3 empty?" for a run): frees the
+ * fermenter and freezes the ferment's forecast at that time. Checked in route order: the ferment
+ * (404), already emptied (409), then the rules that need it: a dump needs a note, a run named must
+ * be a stripping run of this distillery that took wash from this ferment.
+ */
+export async function emptyFerment(ctx: Ctx, id: number, input: EmptyInput, now = new Date()): Promise<FermentRecord> {
   const {
     ws,
     actor: { userId },
   } = ctx;
   const before = await getFerment(ctx, id);
   if (before.emptiedAt) throw conflict(`${before.code} was already marked emptied.`);
-  const at = input.at ? parseWorkspaceTime(input.at, ws.timeZone, 'at') : now;
+  const note = input.note ?? null;
+  if (input.reason === 'dumped' && !note) throw invalid('note', DUMP_NOTE_MESSAGE);
+  let runAt: Date | null = null;
+  if (input.runId !== undefined) {
+    if (input.reason !== 'distilled') throw invalid('runId', 'A dumped wash did not go to a run; leave the run out.');
+    const [run] = await getDb()
+      .select({ id: runs.id, type: runs.type, status: runs.status, startedAt: runs.startedAt, finishedAt: runs.finishedAt })
+      .from(runs)
+      .innerJoin(runFerments, and(eq(runFerments.runId, runs.id), eq(runFerments.workspaceId, runs.workspaceId), eq(runFerments.fermentId, id)))
+      .where(and(eq(runs.id, input.runId), eq(runs.workspaceId, ws.id)))
+      .limit(1);
+    if (!run || run.type !== 'stripping') throw invalid('runId', `That is not a stripping run that took wash from ${before.code}.`);
+    runAt = releaseInstant(run, ws.releaseFermentersOn);
+  }
+  const at = input.at ? parseWorkspaceTime(input.at, ws.timeZone, 'at') : (runAt ?? now);
   if (at.getTime() > now.getTime() + CLOCK_SKEW_MS) throw invalid('at', 'That time is in the future.');
   if (at.getTime() < before.pitchedAt.getTime()) throw invalid('at', 'That time is before the ferment was pitched.');
   const db = getDb();
   await db.transaction(async (tx) => {
     const res = await tx
       .update(ferments)
-      .set({ emptiedAt: at, emptiedReason: input.reason })
+      .set({ emptiedAt: at, emptiedReason: input.reason, emptiedByRunId: input.runId ?? null, emptiedNote: note })
       .where(and(eq(ferments.id, id), eq(ferments.workspaceId, ws.id), isNull(ferments.emptiedAt)));
     if ((res as unknown as [{ affectedRows: number }])[0].affectedRows !== 1) throw conflict(`${before.code} was already marked emptied.`);
     await audit(
@@ -358,11 +432,33 @@ export async function emptyFerment(ctx: Ctx, id: number, input: z.infer<typeof e
         action: 'ferment.empty',
         entityType: 'ferment',
         entityId: id,
-        details: { reason: input.reason, at: at.toISOString(), fermenterId: before.fermenterId },
+        details: { reason: input.reason, at: at.toISOString(), fermenterId: before.fermenterId, runId: input.runId ?? null, note, by: 'hand' },
+        ip: ctx.actor.ip,
       },
       tx,
     );
   });
   await recomputeForecast(ctx, id, now);
   return getFerment(ctx, id);
+}
+
+/** How a ferment was emptied: by which run (with its type and still) and the person's note. */
+export interface Emptying {
+  byRun: { id: number; type: RunType; stillName: string } | null;
+  note: string | null;
+}
+
+export async function emptyingOf(ctx: Ctx, fermentId: number): Promise<Emptying> {
+  const [row] = await getDb()
+    .select({ runId: ferments.emptiedByRunId, note: ferments.emptiedNote, type: runs.type, stillName: stills.name })
+    .from(ferments)
+    .leftJoin(runs, and(eq(runs.id, ferments.emptiedByRunId), eq(runs.workspaceId, ferments.workspaceId)))
+    .leftJoin(stills, eq(stills.id, runs.stillId))
+    .where(and(eq(ferments.id, fermentId), eq(ferments.workspaceId, ctx.ws.id)))
+    .limit(1);
+  if (!row) return { byRun: null, note: null };
+  return {
+    byRun: row.runId !== null && row.type !== null ? { id: row.runId, type: row.type, stillName: row.stillName ?? 'a still' } : null,
+    note: row.note,
+  };
 }

@@ -185,7 +185,8 @@ async function loadAll(ctx: Ctx, fermentIds: number[]) {
       updatedAt: readings.updatedAt,
     })
     .from(readings)
-    .where(and(eq(readings.workspaceId, workspaceId), inArray(readings.fermentId, fermentIds), isNull(readings.deletedAt)));
+    // A reading held for review (implausible, or a likely duplicate) feeds neither the fit nor the stability rule until accepted.
+    .where(and(eq(readings.workspaceId, workspaceId), inArray(readings.fermentId, fermentIds), isNull(readings.deletedAt), isNull(readings.reviewReason)));
   const byFerment = new Map<number, ReadingInput[]>();
   for (const r of rs) {
     const list = byFerment.get(r.fermentId) ?? [];

@@ -36,22 +36,49 @@ export const notFound = (what = 'Not found') => new HttpError(404, 'not_found', 
 export const conflict = (message: string, extra?: Record<string, unknown>) => new HttpError(409, 'conflict', message, undefined, extra);
 export const invalid = (field: string, message: string) => new HttpError(400, 'invalid', message, { [field]: message });
 
+const EXPECTED_WORDS: Record<string, string> = {
+  number: 'Enter a number.',
+  int: 'Enter a whole number.',
+  string: 'Fill this in.',
+  boolean: 'Choose yes or no.',
+  array: 'Give a list here.',
+  object: 'Give the details here.',
+  date: 'Enter a date.',
+};
+
+/**
+ * An issue's message in words. Our schemas word their own messages; where zod's default wording
+ * would reach a person ("Invalid input: expected number, received null") it says what to do instead.
+ */
+function issueInWords(issue: z.core.$ZodIssue): string {
+  if (!issue.message.startsWith('Invalid input')) return issue.message;
+  if (issue.code === 'invalid_type') {
+    const expected = String((issue as { expected?: unknown }).expected ?? '');
+    return EXPECTED_WORDS[expected] ?? 'Check this value.';
+  }
+  if (issue.code === 'invalid_value') return 'Choose one of the options offered.';
+  return 'Check this value.';
+}
+
 /** Map zod issues to { "path.to.field": "message" }. */
 export function zodFields(error: z.ZodError): Record<string, string> {
   const fields: Record<string, string> = {};
   for (const issue of error.issues) {
     const key = issue.path.length ? issue.path.join('.') : '_';
-    if (!fields[key]) fields[key] = issue.message;
+    if (!fields[key]) fields[key] = issueInWords(issue);
   }
   return fields;
 }
 
-/** The one 400 answer for input that does not parse (what route() sends). */
+/**
+ * The one 400 answer for input that does not parse (what route() sends). The message is the
+ * first field's message in words ("Give the still a name."), never prefixed with the field's
+ * key: `fields` names the field, and forms show each message beside its own input.
+ */
 export function invalidResponse(error: z.ZodError): Response {
   const fields = zodFields(error);
-  const first = Object.entries(fields)[0];
-  const message = first ? (first[0] === '_' ? first[1] : `${first[0]}: ${first[1]}`) : 'Invalid input';
-  return jsonError(400, 'invalid', message, fields);
+  const first = Object.values(fields)[0];
+  return jsonError(400, 'invalid', first ?? 'Check the form and try again.', fields);
 }
 
 export const MAX_JSON_BYTES = 256 * 1024;

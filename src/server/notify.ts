@@ -4,7 +4,7 @@
  * makes it happen once.
  *
  * - a ferment turned stalled or souring -> managers and planners;
- * - a run is now booked before its wash's predicted ready time -> planners;
+ * - a run is now booked before its wash is likely ready (at risk by the distillery's threshold) -> planners;
  * - a run moved, was cancelled, or got a new operator -> its operator (old and new) and
  *   planners, never the person who made the change;
  * - the daily digest (src/server/digest.ts).
@@ -14,9 +14,9 @@ import { and, eq, inArray, isNull } from 'drizzle-orm';
 import { getDb, type Db } from '../db/client';
 import { fermentForecasts, ferments, jobClaims, memberships, runs, stills, users, workspaces } from '../db/schema';
 import type { Role } from '../lib/vocabulary';
-import { RUN_TYPE_LABELS, shortDate } from '../lib/board';
+import { RUN_TYPE_LABELS } from '../lib/board';
 import type { BoardRun } from '../lib/board';
-import { wallClock } from '../lib/schedule';
+import { fermentRisk, formatMoment, formatReadyWindow, isAtRisk, readyQuantile, wallClock, type FermentState } from '../lib/schedule';
 import { env, publicUrl } from '../config';
 import { enqueue } from './mail/outbox';
 import { escapeHtml, shell, type MailContent } from './mail/templates';
@@ -48,8 +48,8 @@ export const NOTIFY_KIND_INFO: readonly NotifyKindInfo[] = [
   },
   {
     kind: 'run_early',
-    label: 'A run is booked before its wash is ready',
-    hint: 'When someone books or moves a run to start before the predicted ready time of a wash it takes.',
+    label: 'A run is booked before its wash is likely ready',
+    hint: "When someone books or moves a run to start before a wash it takes is likely to be confirmed stable (the distillery's at-risk threshold).",
     roles: ['manager', 'planner'],
     onByDefault: ['planner'],
   },
@@ -139,10 +139,9 @@ export async function membersOf(db: Pick<Db, 'select'>, workspaceId: number): Pr
 // ---------------------------------------------------------------------------------------
 // Words and mail bodies
 
-/** 'Tue 3 Dec 06:00' on the distillery's clock. */
-export function mailWhen(date: Date, timeZone: string): string {
-  const w = wallClock(date, timeZone);
-  return `${shortDate(w.ymd, w.weekday)} ${w.hm}`;
+/** 'Tue 3 Dec 06:00' on the distillery's clock ('Wed 8 Jan 3000, 08:00' in another year): mail is read later, so always dated. */
+export function mailWhen(date: Date, timeZone: string, now?: Date): string {
+  return formatMoment(date, timeZone, { now, dated: true });
 }
 
 type MailParts = MailContent;
@@ -186,11 +185,16 @@ export function movedSentence(before: RunWords, after: RunWords, timeZone: strin
 interface WorkspaceInfo {
   name: string;
   timeZone: string;
+  atRiskThreshold: number;
 }
 
 async function workspaceInfo(db: Pick<Db, 'select'>, workspaceId: number): Promise<WorkspaceInfo> {
-  const [w] = await db.select({ name: workspaces.name, timeZone: workspaces.timeZone }).from(workspaces).where(eq(workspaces.id, workspaceId)).limit(1);
-  return w ?? { name: 'your distillery', timeZone: 'UTC' };
+  const [w] = await db
+    .select({ name: workspaces.name, timeZone: workspaces.timeZone, atRiskThreshold: workspaces.atRiskThreshold })
+    .from(workspaces)
+    .where(eq(workspaces.id, workspaceId))
+    .limit(1);
+  return w ?? { name: 'your distillery', timeZone: 'UTC', atRiskThreshold: 0.8 };
 }
 
 async function stillNames(db: Pick<Db, 'select'>, workspaceId: number, ids: number[]): Promise<Map<number, string>> {
@@ -272,7 +276,12 @@ export async function notifyRunChanged(tx: Tx, change: RunChange): Promise<void>
   if (earlyCheck && after.ferments.length) await notifyBookedEarly(tx, change, ws, members, afterWords, link);
 }
 
-/** Planners hear when a run now starts before a linked wash's predicted ready time (and did not before). */
+/**
+ * Planners hear when a run is now booked before a linked wash is likely ready: at risk by
+ * the one test (it starts before the distillery's threshold quantile of the wash's ready
+ * time), and it was not at risk for that wash before the change. Stalled and souring washes
+ * have their own notice.
+ */
 async function notifyBookedEarly(
   tx: Tx,
   change: RunChange,
@@ -284,30 +293,52 @@ async function notifyBookedEarly(
   const { before, after, actorId, workspaceId } = change;
   const ids = after.ferments.map((c) => c.fermentId);
   const rows = await tx
-    .select({ fermentId: fermentForecasts.fermentId, status: fermentForecasts.status, readyAt: fermentForecasts.readyAt, code: ferments.code })
+    .select({
+      fermentId: fermentForecasts.fermentId,
+      status: fermentForecasts.status,
+      readyAt: fermentForecasts.readyAt,
+      readyP10: fermentForecasts.readyP10,
+      readyP90: fermentForecasts.readyP90,
+      ruleMetAt: fermentForecasts.ruleMetAt,
+      code: ferments.code,
+    })
     .from(fermentForecasts)
     .innerJoin(ferments, eq(ferments.id, fermentForecasts.fermentId))
     .where(and(eq(fermentForecasts.workspaceId, workspaceId), inArray(fermentForecasts.fermentId, ids), isNull(ferments.emptiedAt)));
-  const wasEarly = (fermentId: number, readyAt: Date) =>
+  const threshold = ws.atRiskThreshold;
+  const state = (r: (typeof rows)[number]): Parameters<typeof fermentRisk>[1] => ({
+    id: r.fermentId,
+    status: r.status as FermentState['status'],
+    emptiedAt: null,
+    confirmedAt: r.status === 'finished' ? r.ruleMetAt : null,
+    readyAt: r.readyAt,
+    readyP10: r.readyP10,
+    readyP90: r.readyP90,
+  });
+  const wasAtRisk = (r: (typeof rows)[number]) =>
     before !== null &&
     (before.status === 'planned' || before.status === 'confirmed') &&
-    before.ferments.some((c) => c.fermentId === fermentId) &&
-    before.startsAt.getTime() < readyAt.getTime();
-  const early = rows.filter(
-    (r) =>
-      r.readyAt &&
-      !['finished', 'stalled', 'souring'].includes(r.status) &&
-      after.startsAt.getTime() < r.readyAt.getTime() &&
-      !wasEarly(r.fermentId, r.readyAt),
-  );
+    before.ferments.some((c) => c.fermentId === r.fermentId) &&
+    isAtRisk(fermentRisk(before.startsAt, state(r), threshold));
+  const early = rows
+    .map((r) => ({ r, risk: fermentRisk(after.startsAt, state(r), threshold) }))
+    .filter(({ r, risk }) => (risk === 'early' || risk === 'at_risk') && !wasAtRisk(r));
   if (!early.length) return;
   const label = RUN_TYPE_LABELS[after.type];
   const actor = members.find((m) => m.id === actorId)?.name ?? 'Someone';
-  const subject = `${label} on ${words.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}, starts before its wash is ready`;
+  const pct = Math.round(threshold * 100);
+  const subject = `${label} on ${words.stillName}, ${mailWhen(after.startsAt, ws.timeZone)}, booked before its wash is likely ready`;
   const lines = [
     `${actor} ${change.kind === 'create' ? 'booked' : 'moved'} the ${label.toLowerCase()} on ${words.stillName} to start ${mailWhen(after.startsAt, ws.timeZone)}.`,
-    ...early.map((r) => `Wash ${r.code} is predicted ready only at ${mailWhen(r.readyAt!, ws.timeZone)}: it will most likely still be fermenting.`),
-    'Check the readings, or move the run after the ready window.',
+    ...early.map(({ r, risk }) => {
+      const window = formatReadyWindow(r, ws.timeZone, new Date()) ?? 'no window yet';
+      const safe = readyQuantile(r, threshold);
+      const when = safe ? ` It is ${pct} % likely to be confirmed by ${mailWhen(safe, ws.timeZone)}.` : '';
+      return risk === 'early'
+        ? `Wash ${r.code} will very likely still be fermenting then (${window}).${when}`
+        : `Wash ${r.code} is less than ${pct} % likely to be confirmed stable by then (${window}).${when}`;
+    }),
+    'Check the readings, or move the run to when its wash is likely ready.',
   ];
   const mail = noticeMail(subject, lines, link, prefsFooter(ws.name));
   for (const m of members) {

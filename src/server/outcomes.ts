@@ -31,6 +31,7 @@ import { audit } from './audit';
 import { getForecasts } from './forecasts';
 import { HttpError, conflict, notFound } from './http';
 import type { Ctx } from './context';
+import { typedNumber } from './numbers';
 import { getRun, inRetriedTransaction, onRunChanged, runJson } from './runs';
 import { operatorName, selectRun, stillCapacityLitres, stillName } from './run-query';
 
@@ -38,15 +39,15 @@ type Reader = Pick<Db, 'select'>;
 
 export const outcomesBodySchema = z.object({
   version: z.number().int().positive(),
-  chargeLitres: z.number().nullable().optional(),
-  chargeAbv: z.number().nullable().optional(),
+  chargeLitres: typedNumber(z.number()).nullable().optional(),
+  chargeAbv: typedNumber(z.number(), { grouping: false }).nullable().optional(),
   fractions: z
     .array(
       z.object({
         fraction: z.enum(OUTCOME_FRACTIONS),
-        volumeLitres: z.number(),
-        alcoholmeterReading: z.number(),
-        readingTempC: z.number(),
+        volumeLitres: typedNumber(z.number()),
+        alcoholmeterReading: typedNumber(z.number(), { grouping: false }),
+        readingTempC: typedNumber(z.number(), { grouping: false }),
         cutNote: z.string().trim().max(200).nullable().optional(),
       }),
     )
@@ -80,6 +81,7 @@ export interface RunRecord {
     stillCapacityLitres: number;
     startsAt: Date;
     endsAt: Date;
+    startedAt: Date | null;
     finishedAt: Date | null;
     operatorName: string | null;
     chargeLitres: number | null;
@@ -159,7 +161,7 @@ const FRACTION_ORDER: Record<Fraction, number> = { low_wines: 0, heads: 1, heart
 export async function getRunRecord(ctx: Ctx, runId: number): Promise<RunRecord> {
   const db = getDb();
   const workspaceId = ctx.ws.id;
-  const run = await selectRun(db, workspaceId, runId, { stillName, stillCapacityLitres, operatorName, finishedAt: runs.finishedAt });
+  const run = await selectRun(db, workspaceId, runId, { stillName, stillCapacityLitres, operatorName, startedAt: runs.startedAt, finishedAt: runs.finishedAt });
   if (!run) throw notFound('No such run in this distillery.');
   const row: RunRecord['run'] = {
     id: run.id,
@@ -171,6 +173,7 @@ export async function getRunRecord(ctx: Ctx, runId: number): Promise<RunRecord> 
     stillCapacityLitres: run.stillCapacityLitres,
     startsAt: run.startsAt,
     endsAt: run.endsAt,
+    startedAt: run.startedAt,
     finishedAt: run.finishedAt,
     operatorName: run.operatorName,
     chargeLitres: run.chargeLitres,
@@ -263,8 +266,9 @@ export async function saveRunRecord(ctx: Ctx, runId: number, body: OutcomesBody)
     };
     const fields = validateRunRecord({ runType: locked.type, stillCapacityLitres: locked.capacity, charge, fractions: body.fractions });
     if (Object.keys(fields).length) {
-      const [key, message] = Object.entries(fields)[0]!;
-      throw new HttpError(400, 'invalid', `${key}: ${message}`, fields);
+      // The message in words; `fields` names the field (forms show each message beside its field).
+      const [, message] = Object.entries(fields)[0]!;
+      throw new HttpError(400, 'invalid', message, fields);
     }
     const computed = body.fractions.map(computeFraction);
     await tx.delete(runOutcomes).where(and(eq(runOutcomes.workspaceId, workspaceId), eq(runOutcomes.runId, runId)));

@@ -33,11 +33,14 @@ export type Gate = ({ ok: true } & PageAccess) | Refused;
 export const ACTION_WORDS: Record<Action, { what: string; verb: 'is' | 'are' }> = {
   'board.read': { what: 'The board', verb: 'is' },
   'ferments.read': { what: 'Ferments', verb: 'are' },
-  'ferments.write': { what: 'Starting and editing ferments', verb: 'is' },
+  'ferments.write': { what: 'Editing ferments', verb: 'is' },
+  'ferments.start': { what: 'Starting ferments', verb: 'is' },
+  'ferments.empty': { what: 'Marking a fermenter emptied', verb: 'is' },
   'readings.write': { what: 'Logging readings', verb: 'is' },
   'runs.book': { what: 'Booking runs', verb: 'is' },
   'runs.move': { what: 'Moving runs', verb: 'is' },
   'runs.operate': { what: 'Recording what a run gave', verb: 'is' },
+  'runs.correct_times': { what: 'Correcting when a run started or finished', verb: 'is' },
   'feeds.own': { what: 'Calendar feeds', verb: 'are' },
   'feeds.manage': { what: 'Managing everyone’s calendar feeds', verb: 'is' },
   'reports.read': { what: 'Reports', verb: 'are' },
@@ -48,6 +51,7 @@ export const ACTION_WORDS: Record<Action, { what: string; verb: 'is' | 'are' }> 
   'members.manage': { what: 'Members and invitations', verb: 'are' },
   'audit.read': { what: 'The audit log', verb: 'is' },
   'mailbox.read': { what: 'The test mailbox', verb: 'is' },
+  'setup.read': { what: 'The getting-started checklist', verb: 'is' },
 };
 
 const ROLE_PLURAL: Record<Role, string> = { manager: 'managers', planner: 'planners', distiller: 'distillers', staff: 'staff' };

@@ -247,7 +247,15 @@ export async function getReport(ctx: Ctx, filters: ReportFilters, now = new Date
   const fractionsOf = (id: number) => outcomeRows.filter((o) => o.runId === id);
   const washLitres = (r: (typeof doneRuns)[number]) => runChargeLitres(r) ?? 0;
   const throughput = throughputByWeek(
-    doneRuns.map((r) => ({ type: r.type, finishedAt: r.finishedAt ?? r.endsAt, washLitres: washLitres(r), fractions: fractionsOf(r.id) })),
+    doneRuns.map((r) => ({
+      type: r.type,
+      finishedAt: r.finishedAt ?? r.endsAt,
+      startsAt: r.startsAt,
+      endsAt: r.endsAt,
+      startedAt: r.startedAt ?? null,
+      washLitres: washLitres(r),
+      fractions: fractionsOf(r.id),
+    })),
     weeksIn(range, tz).map((w) => w.week),
     tz,
   );

@@ -34,6 +34,9 @@ export const runColumns = {
   version: runs.version,
   sequence: runs.sequence,
   notes: runs.notes,
+  startedAt: runs.startedAt,
+  finishedAt: runs.finishedAt,
+  bookedAtRisk: runs.bookedAtRisk,
 };
 
 /** A run row before its lines are attached. */

@@ -13,7 +13,7 @@ import { getDb } from '../db/client';
 import { memberships, ferments, runFeeds, runFerments, runs, stills } from '../db/schema';
 import { BOOKABLE_RUN_STATUSES, RUN_TYPES } from '../lib/vocabulary';
 import { defaultRunMinutes, dehydrateRun, type BoardRun, type BoardRunJson } from '../lib/board';
-import { findOverlap, runChargeLitres, type RunType } from '../lib/schedule';
+import { correctionProblems, findOverlap, finishQuestion, runChargeLitres, type RunType } from '../lib/schedule';
 import { audit } from './audit';
 import { conflict, HttpError, invalid, notFound } from './http';
 import type { Ctx } from './context';
@@ -22,6 +22,8 @@ import { selectRun, type Reader, type RunChange } from './run-query';
 export type { RunChange };
 import { getStill } from './stills';
 import { notifyRunChanged } from './notify';
+import { recordRiskAtBooking } from './run-risk';
+import { releaseFermentersForRun, retimeReleasesForRun } from './fermenter-release';
 
 import { inRetriedTransaction, type Tx } from './tx';
 
@@ -32,8 +34,29 @@ const MINUTE_MS = 60_000;
 const MAX_RUN_MINUTES = 7 * 24 * 60;
 const isoDate = z.iso.datetime({ offset: true, message: 'Use an ISO date-time with its offset.' }).transform((s) => new Date(s));
 
-const chargeLines = z.array(z.object({ fermentId: z.number().int().positive(), litres: z.number().positive().max(1_000_000) })).max(20);
-const feedLines = z.array(z.object({ runId: z.number().int().positive(), litres: z.number().positive().max(1_000_000) })).max(20);
+const chargeLines = z
+  .array(
+    z.object({
+      fermentId: z.number().int().positive(),
+      litres: z
+        .number({ error: 'Say how many litres of this wash go into the charge, or remove the wash from the run.' })
+        .positive('Say how many litres of this wash go into the charge, or remove the wash from the run.')
+        .max(1_000_000),
+    }),
+  )
+  .max(20);
+/** A spirit run's link to a stripping run without litres is refused in words, never dropped. */
+const feedLines = z
+  .array(
+    z.object({
+      runId: z.number().int().positive(),
+      litres: z
+        .number({ error: 'Say how many litres of low wines come from this stripping run, or remove the link.' })
+        .positive('Say how many litres of low wines come from this stripping run, or remove the link.')
+        .max(1_000_000),
+    }),
+  )
+  .max(20);
 
 /** What a booking and a change of it may both set. */
 const runDetails = {
@@ -69,6 +92,19 @@ export const updateRunSchema = z.object({
 export type UpdateRunInput = z.infer<typeof updateRunSchema>;
 
 export const versionSchema = z.object({ version: z.number().int().positive(), reason: z.string().max(500).optional() });
+
+/** Start and Finish: the version seen, and `confirm: true` once the person has read and accepted the questions asked. */
+export const operateSchema = z.object({ version: z.number().int().positive(), confirm: z.literal(true).optional() });
+export type OperateInput = z.infer<typeof operateSchema>;
+
+/** A planner's correction of a run's actual times, with the reason kept in the audit log. */
+export const actualTimesSchema = z.object({
+  version: z.number().int().positive(),
+  startedAt: isoDate.optional(),
+  finishedAt: isoDate.optional(),
+  reason: z.string().trim().min(3, 'Say why the times are corrected (at least a few words).').max(500),
+});
+export type ActualTimesInput = z.infer<typeof actualTimesSchema>;
 
 /** Fields a distiller may change (moving and resizing); the rest are booking decisions. */
 export const MOVE_FIELDS = ['version', 'stillId', 'startsAt', 'endsAt'] as const;
@@ -188,6 +224,19 @@ function assertTimes(startsAt: Date, endsAt: Date): void {
   if (minutes > MAX_RUN_MINUTES) throw invalid('endsAt', 'A run can be at most a week long.');
 }
 
+/** Refuse (400) a booking further ahead, or further back, than the distillery's booking horizon: usually a mistyped year. */
+function assertHorizon(ctx: Ctx, startsAt: Date, endsAt: Date, now = new Date()): void {
+  const days = ctx.ws.bookingHorizonDays;
+  const limit = days * 24 * 60 * MINUTE_MS;
+  for (const [field, at] of [
+    ['startsAt', startsAt],
+    ['endsAt', endsAt],
+  ] as const) {
+    if (at.getTime() > now.getTime() + limit) throw invalid(field, `Runs can be booked at most ${days} days ahead; check the year.`);
+    if (at.getTime() < now.getTime() - limit) throw invalid(field, `Runs can be booked at most ${days} days back; check the year.`);
+  }
+}
+
 async function writeLines(
   tx: Tx,
   workspaceId: number,
@@ -231,6 +280,7 @@ export async function createRun(ctx: Ctx, input: CreateRunInput): Promise<BoardR
   const minutes = input.durationMinutes ?? defaultRunMinutes(still, input.type, chargeLitres, input.chargeAbv ?? null);
   const endsAt = input.endsAt ?? new Date(input.startsAt.getTime() + minutes * MINUTE_MS);
   assertTimes(input.startsAt, endsAt);
+  assertHorizon(ctx, input.startsAt, endsAt);
 
   return inRetriedTransaction(async (tx) => {
     const locked = await lockStills(tx, workspaceId, [input.stillId]);
@@ -255,6 +305,7 @@ export async function createRun(ctx: Ctx, input: CreateRunInput): Promise<BoardR
       .$returningId();
     const id = row!.id;
     await writeLines(tx, workspaceId, id, input);
+    await recordRiskAtBooking(tx, ctx, id);
     const after = await getRun(ctx, id, tx);
     await audit({ workspaceId, userId, action: 'run.create', entityType: 'run', entityId: id, details: { after: auditRun(after) } }, tx);
     await onRunChanged(tx, { kind: 'create', workspaceId, before: null, after, actorId: userId });
@@ -309,6 +360,7 @@ export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Pr
     if (input.startsAt && !input.endsAt) endsAt = new Date(startsAt.getTime() + (before.endsAt.getTime() - before.startsAt.getTime()));
     if (input.endsAt && !input.startsAt) startsAt = before.startsAt;
     assertTimes(startsAt, endsAt);
+    if (moving) assertHorizon(ctx, startsAt, endsAt);
     const status = input.status ?? before.status;
     const locked = await lockStills(tx, workspaceId, [before.stillId, stillId]);
     const target = locked.get(stillId)!;
@@ -336,6 +388,7 @@ export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Pr
       .set(set)
       .where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
     await writeLines(tx, workspaceId, id, input);
+    if (timeOrStillChanged || input.ferments) await recordRiskAtBooking(tx, ctx, id);
     const after = await getRun(ctx, id, tx);
     const kind = timeOrStillChanged ? 'move' : 'update';
     await audit(
@@ -354,7 +407,16 @@ export async function updateRun(ctx: Ctx, id: number, input: UpdateRunInput): Pr
   });
 }
 
-async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel' | 'start' | 'finish', reason?: string): Promise<BoardRun> {
+/** What a status change may carry: a cancel's reason; the questions a start or finish asks, and whether the person accepted them. */
+export interface StatusOptions {
+  reason?: string;
+  confirm?: boolean;
+  /** Sentences to accept before the change, from the run as locked and the moment of the change. */
+  questions?: (before: BoardRun, now: Date) => string[];
+}
+
+async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel' | 'start' | 'finish', opts: StatusOptions = {}): Promise<BoardRun> {
+  const { reason } = opts;
   const {
     ws: { id: workspaceId },
     actor: { userId },
@@ -366,8 +428,13 @@ async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel
       const verb = kind === 'cancel' ? 'cancelled' : kind === 'start' ? 'started' : 'finished';
       throw conflict(`A ${before.status} run cannot be ${verb}.`, { current: runJson(before) });
     }
-    await lockStills(tx, workspaceId, [before.stillId]);
     const now = new Date();
+    // Asked before anything is written; with `confirm` the person has read them and they go into the audit row.
+    const asked = opts.questions?.(before, now) ?? [];
+    if (asked.length && !opts.confirm) {
+      throw new HttpError(409, 'confirm_required', `Please confirm: ${asked.join(' ')}`, undefined, { warnings: asked });
+    }
+    await lockStills(tx, workspaceId, [before.stillId]);
     const next = kind === 'cancel' ? 'cancelled' : kind === 'start' ? 'running' : 'done';
     await tx
       .update(runs)
@@ -380,8 +447,16 @@ async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel
       })
       .where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
     const after = await getRun(ctx, id, tx);
+    if (kind !== 'cancel') await releaseFermentersForRun(tx, ctx, after, kind, now);
     await audit(
-      { workspaceId, userId, action: `run.${kind}`, entityType: 'run', entityId: id, details: { before: auditRun(before), ...(reason ? { reason } : {}) } },
+      {
+        workspaceId,
+        userId,
+        action: `run.${kind}`,
+        entityType: 'run',
+        entityId: id,
+        details: { before: auditRun(before), ...(reason ? { reason } : {}), ...(asked.length ? { accepted: asked } : {}) },
+      },
       tx,
     );
     await onRunChanged(tx, { kind, workspaceId, before, after, actorId: userId });
@@ -389,6 +464,79 @@ async function changeStatus(ctx: Ctx, id: number, version: number, kind: 'cancel
   });
 }
 
-export const cancelRun = (ctx: Ctx, id: number, version: number, reason?: string) => changeStatus(ctx, id, version, 'cancel', reason);
-export const startRun = (ctx: Ctx, id: number, version: number) => changeStatus(ctx, id, version, 'start');
-export const finishRun = (ctx: Ctx, id: number, version: number) => changeStatus(ctx, id, version, 'finish');
+export const cancelRun = (ctx: Ctx, id: number, version: number, reason?: string) => changeStatus(ctx, id, version, 'cancel', { reason });
+/** Start a run now; `questions` come from its washes and booking (src/server/run-times.ts asks them). */
+export const startRun = (ctx: Ctx, id: number, version: number, opts: Pick<StatusOptions, 'confirm' | 'questions'> = {}) =>
+  changeStatus(ctx, id, version, 'start', opts);
+/** Finish a running run now; a finish less than MIN_RUN_MINUTES after its start is questioned first. */
+export const finishRun = (ctx: Ctx, id: number, version: number, opts: Pick<StatusOptions, 'confirm'> = {}) =>
+  changeStatus(ctx, id, version, 'finish', {
+    confirm: opts.confirm,
+    questions: (before, now) => {
+      const q = finishQuestion(before.startedAt, now);
+      return q ? [q] : [];
+    },
+  });
+
+const auditTimes = (r: Pick<BoardRun, 'startedAt' | 'finishedAt'>) => ({
+  startedAt: r.startedAt?.toISOString() ?? null,
+  finishedAt: r.finishedAt?.toISOString() ?? null,
+});
+
+/**
+ * A planner's or manager's correction of when a run really started or finished (the booking
+ * stays). Checked against now, the booking and each other; audited with before, after and the
+ * reason; version and calendar SEQUENCE bumped so feeds move the event.
+ * Signed-off production periods do not exist in Plateau yet: when they do, a run with a record
+ * inside one must be refused here with 409.
+ */
+export async function correctActualTimes(ctx: Ctx, id: number, input: ActualTimesInput, now = new Date()): Promise<BoardRun> {
+  const {
+    ws: { id: workspaceId },
+    actor: { userId },
+  } = ctx;
+  if (!input.startedAt && !input.finishedAt) throw invalid('startedAt', 'Give the corrected start, the corrected finish, or both.');
+  return inRetriedTransaction(async (tx) => {
+    const before = await lockRun(tx, ctx, id, input.version);
+    if (before.status !== 'running' && before.status !== 'done') {
+      throw conflict(`A ${before.status} run has not started, so it has no actual times to correct.`, { current: runJson(before) });
+    }
+    if (input.finishedAt && before.status !== 'done') throw invalid('finishedAt', 'This run is still running: finish it first, then correct its finish.');
+    const startedAt = input.startedAt ?? before.startedAt ?? null;
+    const finishedAt = input.finishedAt ?? before.finishedAt ?? null;
+    const changed = (['startedAt', 'finishedAt'] as const).filter((k) => input[k] !== undefined);
+    const problems = correctionProblems({ ...before, startedAt, finishedAt, changed, now, timeZone: ctx.ws.timeZone });
+    const first = Object.values(problems)[0];
+    if (first) throw new HttpError(400, 'invalid', first, problems);
+    await tx
+      .update(runs)
+      .set({
+        startedAt,
+        finishedAt,
+        version: sql`${runs.version} + 1` as unknown as number,
+        sequence: sql`${runs.sequence} + 1` as unknown as number,
+      })
+      .where(and(eq(runs.id, id), eq(runs.workspaceId, workspaceId)));
+    const after = await getRun(ctx, id, tx);
+    // The washes this run emptied follow its corrected moment, so the fermenter's occupancy matches the record.
+    const washesMoved = await retimeReleasesForRun(tx, ctx, { id, status: after.status, startedAt, finishedAt });
+    await audit(
+      {
+        workspaceId,
+        userId,
+        action: 'run.correct_times',
+        entityType: 'run',
+        entityId: id,
+        details: {
+          booked: { startsAt: before.startsAt.toISOString(), endsAt: before.endsAt.toISOString() },
+          before: auditTimes(before),
+          after: auditTimes(after),
+          reason: input.reason,
+          ...(washesMoved ? { washesMoved } : {}),
+        },
+      },
+      tx,
+    );
+    return after;
+  });
+}

@@ -5,10 +5,11 @@ import { getDb } from '../db/client';
 import { runs, stillClosures, stills } from '../db/schema';
 import { RUN_TYPES, STILL_KINDS } from '../lib/vocabulary';
 import type { BoardStill } from '../lib/board';
-import { isPlanningDate, type RunType } from '../lib/schedule';
+import { addDaysYmd, formatYmd, isPlanningDate, wallClock, type RunType } from '../lib/schedule';
 import { audit } from './audit';
 import { invalid, notFound } from './http';
 import type { Ctx } from './context';
+import { typedNumber } from './numbers';
 
 const hm = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$|^24:00$/, 'Use HH:MM (00:00 to 24:00).');
 const ymd = z
@@ -16,10 +17,25 @@ const ymd = z
   .regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-24.')
   .refine(isPlanningDate, 'Use a real date, like 2026-12-24.');
 
+/**
+ * One opening on a weekday. A closing time at or before the opening time closes the next
+ * day (an overnight shift, e.g. 22:00–06:00); the same time for both is refused, since it
+ * could mean no hours or all of them (use 00:00–24:00 for round the clock).
+ */
 export const operatingHoursSchema = z
-  .array(z.object({ weekday: z.number().int().min(0).max(6), open: hm, close: hm }))
-  .max(21)
-  .refine((hours) => hours.every((h) => h.close > h.open), 'Each closing time must be after its opening time.');
+  .array(
+    z
+      .object({
+        weekday: z.number().int().min(0).max(6),
+        open: hm.refine((v) => v !== '24:00', 'Opening time runs from 00:00 to 23:59.'),
+        close: hm,
+      })
+      .refine((h) => h.open !== h.close && !(h.open === '00:00' && h.close === '00:00'), {
+        message: 'Opening and closing time are the same: use 00:00 to 24:00 for round the clock, or a closing time after midnight for a night shift.',
+        path: ['close'],
+      }),
+  )
+  .max(21);
 
 export const typicalMinutesSchema = z.object(
   Object.fromEntries(
@@ -37,14 +53,16 @@ export const typicalMinutesSchema = z.object(
 export const stillInputSchema = z.object({
   name: z.string().trim().min(1, 'Give the still a name.').max(80),
   kind: z.enum(STILL_KINDS),
-  capacityLitres: z.number().positive('The working charge must be above zero.').max(1_000_000),
-  heatingKw: z.number().positive('Heating power must be above zero.').max(100_000),
+  capacityLitres: typedNumber(z.number().positive('The working charge must be above zero.').max(1_000_000)),
+  heatingKw: typedNumber(z.number().positive('Heating power must be above zero.').max(100_000)),
   operatingHours: operatingHoursSchema,
-  cleaningAfterRunMinutes: z
-    .number()
-    .int()
-    .min(0)
-    .max(24 * 60),
+  cleaningAfterRunMinutes: typedNumber(
+    z
+      .number()
+      .int()
+      .min(0)
+      .max(24 * 60),
+  ),
   typicalMinutes: typicalMinutesSchema,
   active: z.boolean().optional(),
 });
@@ -232,11 +250,31 @@ export async function setStillOrder(ctx: Ctx, ids: number[]): Promise<StillRow[]
   return listStills(ctx, { includeInactive: true });
 }
 
+/** How far back a closure may start: history for reports, not decades. */
+export const CLOSURE_PAST_DAYS = 2 * 366;
+
+/** Refuse (400, naming the field) a closure ending beyond the booking horizon or starting absurdly far back. */
+export function assertClosureDates(ctx: Ctx, input: Pick<ClosureInput, 'startsOn' | 'endsOn'>, now = new Date()): void {
+  const today = wallClock(now, ctx.ws.timeZone).ymd;
+  const latest = addDaysYmd(today, ctx.ws.bookingHorizonDays);
+  if (input.endsOn > latest) {
+    throw invalid(
+      'endsOn',
+      `A closure can end at most ${ctx.ws.bookingHorizonDays} days ahead, by ${longYmd(latest)} (the booking horizon in the distillery settings).`,
+    );
+  }
+  const earliest = addDaysYmd(today, -CLOSURE_PAST_DAYS);
+  if (input.startsOn < earliest) throw invalid('startsOn', `A closure can start at most two years back, from ${longYmd(earliest)}.`);
+}
+
+const longYmd = (ymd: string) => `${formatYmd(ymd)} ${ymd.slice(0, 4)}`;
+
 export async function addClosure(ctx: Ctx, input: ClosureInput): Promise<ClosureRow> {
   const {
     ws: { id: workspaceId },
     actor: { userId },
   } = ctx;
+  assertClosureDates(ctx, input);
   if (input.stillId !== null) await getStill(ctx, input.stillId);
   const db = getDb();
   const id = await db.transaction(async (tx) => {

@@ -8,7 +8,7 @@ import { audit } from './audit';
 import { HttpError, conflict, notFound, readLimitedBytes } from './http';
 import type { Ctx } from './context';
 import { getFerment } from './ferment-lookup';
-import { deriveCorrected } from './readings';
+import { clockTime, deriveCorrected, DUPLICATE_WINDOW_MS, plausibilityBasis, readingDoubt, type PlausibilityBasis } from './readings';
 import { recomputeForecast } from './forecasts';
 
 /** A staged preview lives this long before it must be uploaded again. */
@@ -63,16 +63,35 @@ export interface StagedRow {
   correctedSg: number;
   lowConfidence: boolean;
   duplicate: boolean;
+  /** Stored held for review with this reason (implausible, or a likely duplicate of a manual reading); null when it counts. */
+  review: string | null;
 }
 
 export interface UploadPreview {
   uploadId: string;
   expiresAt: string;
   delimiter: string;
-  counts: { accepted: number; rejected: number; duplicates: number; toImport: number };
+  counts: { accepted: number; rejected: number; duplicates: number; toImport: number; held: number };
   accepted: StagedRow[];
   rejected: Array<{ line: number; reason: string; raw: string }>;
   truncated: { accepted: boolean; rejected: boolean };
+}
+
+/**
+ * Why an uploaded row is held for review: the plausibility checks a person would be asked about
+ * (a file cannot answer), or a manual reading within a minute of it.
+ */
+function reviewOf(
+  ws: Ctx['ws'],
+  basis: PlausibilityBasis,
+  manualTimes: Date[],
+  row: { value: number; unit: LoggerRow['unit']; takenAt: Date },
+  sg: number,
+): string | null {
+  const doubt = readingDoubt(ws.numberFormat, basis, row, sg);
+  if (doubt) return doubt.reason;
+  const near = manualTimes.find((t) => Math.abs(t.getTime() - row.takenAt.getTime()) < DUPLICATE_WINDOW_MS);
+  return near ? `likely duplicate of a manual reading at ${clockTime(near, ws.timeZone)}` : null;
 }
 
 /** Parse, check and stage a logger CSV for one ferment; nothing is written to readings. */
@@ -90,10 +109,12 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
   }
   const db = getDb();
   const existing = await db
-    .select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg })
+    .select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg, source: readings.source })
     .from(readings)
     .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, fermentId), isNull(readings.deletedAt)));
   const existingTimes = new Set(existing.map((r) => r.takenAt.getTime()));
+  const manualTimes = existing.filter((r) => r.source === 'manual').map((r) => r.takenAt);
+  const basis = await plausibilityBasis(ctx, ferment, now);
   const rejected = [...parsed.rejected];
   const accepted: StagedRow[] = [];
   const seenInFile = new Set<number>();
@@ -122,6 +143,7 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
         correctedSg: c.sg,
         lowConfidence: c.lowConfidence,
         duplicate,
+        review: duplicate ? null : reviewOf(ws, basis, manualTimes, row, c.sg),
       });
       if (!duplicate) history.push({ takenAt: row.takenAt, correctedSg: c.sg });
     } catch (err) {
@@ -132,7 +154,8 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
   accepted.sort((a, b) => a.line - b.line);
   rejected.sort((a, b) => a.line - b.line);
   const duplicates = accepted.filter((r) => r.duplicate).length;
-  const counts = { accepted: accepted.length, rejected: rejected.length, duplicates, toImport: accepted.length - duplicates };
+  const held = accepted.filter((r) => r.review !== null).length;
+  const counts = { accepted: accepted.length, rejected: rejected.length, duplicates, toImport: accepted.length - duplicates, held };
   const uploadId = randomBytes(24).toString('base64url');
   const expiresAt = new Date(now.getTime() + UPLOAD_TTL_MS);
   await db.delete(readingUploads).where(and(eq(readingUploads.workspaceId, ws.id), lt(readingUploads.expiresAt, now)));
@@ -162,12 +185,18 @@ export async function stageUpload(ctx: Ctx, fermentId: number, text: string, now
  * as they are now; if any fails, nothing is written. Duplicates (same time as a reading
  * already there) are skipped, not imported twice.
  */
-export async function commitUpload(ctx: Ctx, fermentId: number, uploadId: string, now = new Date()): Promise<{ imported: number; skippedDuplicates: number }> {
+export async function commitUpload(
+  ctx: Ctx,
+  fermentId: number,
+  uploadId: string,
+  now = new Date(),
+): Promise<{ imported: number; skippedDuplicates: number; held: number }> {
   const {
     ws,
     actor: { userId },
   } = ctx;
   const ferment = await getFerment(ctx, fermentId);
+  const basis = await plausibilityBasis(ctx, ferment, now);
   const db = getDb();
   const result = await db.transaction(async (tx) => {
     const [staged] = await tx
@@ -181,10 +210,11 @@ export async function commitUpload(ctx: Ctx, fermentId: number, uploadId: string
     if (ferment.emptiedAt) throw conflict(`${ferment.code} has been emptied; readings can no longer be added.`);
     const rows = (staged.accepted as StagedRow[]).map((r) => ({ ...r, at: new Date(r.takenAt) })).sort((a, b) => a.at.getTime() - b.at.getTime());
     const existing = await tx
-      .select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg })
+      .select({ takenAt: readings.takenAt, correctedSg: readings.correctedSg, source: readings.source })
       .from(readings)
       .where(and(eq(readings.workspaceId, ws.id), eq(readings.fermentId, fermentId), isNull(readings.deletedAt)));
     const times = new Set(existing.map((r) => r.takenAt.getTime()));
+    const manualTimes = existing.filter((r) => r.source === 'manual').map((r) => r.takenAt);
     const history = existing.map((r) => ({ takenAt: r.takenAt, correctedSg: r.correctedSg }));
     const values: Array<typeof readings.$inferInsert> = [];
     let skipped = 0;
@@ -217,6 +247,7 @@ export async function commitUpload(ctx: Ctx, fermentId: number, uploadId: string
         source: 'upload',
         uploadId,
         takenBy: userId,
+        reviewReason: reviewOf(ws, basis, manualTimes, { value: r.value, unit: r.unit, takenAt: r.at }, c.sg),
       });
     }
     for (let i = 0; i < values.length; i += 1000) await tx.insert(readings).values(values.slice(i, i + 1000));
@@ -232,11 +263,11 @@ export async function commitUpload(ctx: Ctx, fermentId: number, uploadId: string
         action: 'reading.upload',
         entityType: 'ferment',
         entityId: fermentId,
-        details: { uploadId, imported: values.length, skippedDuplicates: skipped },
+        details: { uploadId, imported: values.length, skippedDuplicates: skipped, held: values.filter((v) => v.reviewReason).length },
       },
       tx,
     );
-    return { imported: values.length, skippedDuplicates: skipped };
+    return { imported: values.length, skippedDuplicates: skipped, held: values.filter((v) => v.reviewReason).length };
   });
   await recomputeForecast(ctx, fermentId, now);
   return result;

@@ -6,21 +6,25 @@ import { WASH_CATEGORIES, type WashCategory } from '../lib/vocabulary';
 import { audit } from './audit';
 import { conflict, invalid, notFound } from './http';
 import type { Ctx } from './context';
+import { typedNumber } from './numbers';
 
 /** A fermenter as a manager sends it (POST /api/fermenters; PATCH takes it partial). */
 export const fermenterInputSchema = z.object({
   name: z.string().trim().min(1, 'Give the fermenter a name.').max(80),
   /** In the workspace's volume unit (L or US gal). */
-  capacity: z.number({ error: 'Enter the capacity as a number.' }).positive('Capacity must be above zero.').max(1_000_000),
+  capacity: typedNumber(z.number({ error: 'Enter the capacity as a number.' }).positive('Capacity must be above zero.').max(1_000_000)),
   active: z.boolean().optional(),
   position: z.number().int().min(0).max(10_000).optional(),
 });
 
 const sg = (what: string) =>
-  z
-    .number({ error: `Enter the ${what} as an SG, e.g. 1.004.` })
-    .min(0.98, `The ${what} must be at least 0.980.`)
-    .max(1.2, `The ${what} must be at most 1.200.`);
+  typedNumber(
+    z
+      .number({ error: `Enter the ${what} as an SG, e.g. 1.004.` })
+      .min(0.98, `The ${what} must be at least 0.980.`)
+      .max(1.2, `The ${what} must be at most 1.200.`),
+    { grouping: false },
+  );
 
 /** A wash type as a manager sends it (POST /api/wash-types; PATCH takes it partial). */
 export const washTypeInputSchema = z.object({

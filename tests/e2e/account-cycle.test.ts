@@ -36,7 +36,7 @@ describe('account flows end to end in Chromium', () => {
     expect(await tr.page.getByLabel('Your name').inputValue()).toBe('Wren Adeyemi');
     await tr.page.getByLabel('Choose a password').fill('saltmarsh wash 2026');
     await checkPage(tr, 'confirm-choose-password-phone');
-    await Promise.all([tr.page.waitForURL('**/settings'), tr.page.getByRole('button', { name: 'Confirm and open the distillery' }).click()]);
+    await Promise.all([tr.page.waitForURL('**/setup'), tr.page.getByRole('button', { name: 'Confirm and open the distillery' }).click()]);
     expect(await tr.page.content()).toContain('Saltmarsh Spirits');
     await tr.context.close();
     const again = await newPage(browser, DESKTOP);

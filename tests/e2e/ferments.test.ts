@@ -61,6 +61,8 @@ describe('ferments in Chromium at phone width', () => {
       unit: 'brix',
       method: 'refractometer',
       takenAt: new Date(pitched.getTime() + 2.2 * DAY).toISOString(),
+      // 6.4 °Bx reads as about 1.009 SG (Terrill 2011), more than 0.010 below the fitted fall: held unless confirmed.
+      confirm: true,
     });
   });
   afterAll(async () => {
@@ -93,8 +95,17 @@ describe('ferments in Chromium at phone width', () => {
     await t.page.getByRole('button', { name: 'Save reading' }).click();
     await expect.poll(() => t.page.getByTestId('error-value').textContent()).toMatch(/between 0.980 and 1.200/);
     await value.fill('1.050');
-    t.errors.length = 0; // the browser logs the refused request's 400 status
-    await Promise.all([t.page.waitForURL(/logged=/), t.page.getByRole('button', { name: 'Save reading' }).click()]);
+    // Understood as typed, beside the field.
+    expect(await t.page.getByTestId('value-understood').textContent()).toBe('= 1.050 SG');
+    await t.page.getByRole('button', { name: 'Save reading' }).click();
+    // 1.050 at 28 °C lies far above the fitted fall from 1.062 to 1.024: held, naming the value and unit entered.
+    const doubt = t.page.getByTestId('reading-doubt');
+    await doubt.waitFor();
+    expect(await doubt.textContent()).toContain('You entered 1.050 SG');
+    expect(await doubt.textContent()).toMatch(/SG off the fitted curve/);
+    t.errors.length = 0; // the browser logs the refused requests' 400 and 409 statuses
+    await checkPage(t, 'reading-doubt-phone');
+    await Promise.all([t.page.waitForURL(/logged=/), doubt.getByRole('button', { name: /Save as entered/ }).click()]);
     const expected = ((1.05 * tanaka(20)) / tanaka(28)).toFixed(4); // Tanaka et al. 2001
     await expect.poll(() => t.page.getByTestId('logged-message').textContent()).toContain(expected);
     const row = t.page.getByTestId('readings-table').locator('tbody tr').first();

@@ -76,3 +76,9 @@ export async function checkPage(t: Tracked, name: string): Promise<void> {
   expect(t.errors, `${name}: console errors`).toEqual([]);
   await t.page.screenshot({ path: path.join(SCREENSHOT_DIR, `${name}.png`), fullPage: true });
 }
+
+/** Open `path` and wait until every React island on it has hydrated (typing before that is lost). */
+export async function openHydrated(page: Page, path: string): Promise<void> {
+  await page.goto(path);
+  await page.waitForFunction(() => document.querySelectorAll('astro-island[ssr]').length === 0);
+}

@@ -49,7 +49,7 @@ describe('logger CSV upload', () => {
     expect(r.status, r.text).toBe(201);
     const p = r.json.preview;
     expect(p.uploadId).toMatch(/^[A-Za-z0-9_-]{32}$/);
-    expect(p.counts).toEqual({ accepted: 5, rejected: 0, duplicates: 1, toImport: 4 });
+    expect(p.counts).toEqual({ accepted: 5, rejected: 0, duplicates: 1, toImport: 4, held: 0 });
     expect(p.accepted.find((x: any) => x.line === 3).duplicate).toBe(true);
     expect(p.accepted.find((x: any) => x.line === 6).lowConfidence).toBe(true);
     expect(await count(s.ws.workspaceId, id)).toBe(1); // staged, nothing imported yet

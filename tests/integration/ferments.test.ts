@@ -65,7 +65,8 @@ describe('fermenters, wash types and ferments', () => {
       yeast: 'M strain',
       ingredients: [{ name: 'Malt', quantity: 700 }],
     };
-    expect((await distiller.post('/api/ferments', body)).status).toBe(403);
+    // Distillers may start ferments (PRODUCT.md roles); staff may not.
+    expect((await (await ws.client('staff')).post('/api/ferments', body)).status).toBe(403);
     const r = await planner.post('/api/ferments', body);
     expect(r.status, r.text).toBe(201);
     // A wall-clock time is read in the distillery's zone (Europe/London, BST on 1 April).

@@ -243,7 +243,8 @@ describe('notifications through the outbox', () => {
     expect(moved.status, moved.text).toBe(200);
     const mails = (await mailSince(ws.workspaceId, mark)).filter((m) => m.kind === 'run_early');
     expect(mails.map((m) => m.toAddress)).toEqual([ws.users.planner.email]);
-    expect(mails[0]!.subject).toBe(`Stripping run on Wash Still 1, ${londonWhen(early)}, starts before its wash is ready`);
-    expect(mails[0]!.textBody).toContain('Wash S-3 is predicted ready only at');
+    expect(mails[0]!.subject).toBe(`Stripping run on Wash Still 1, ${londonWhen(early)}, booked before its wash is likely ready`);
+    expect(mails[0]!.textBody).toMatch(/Wash S-3 (will very likely still be fermenting then|is less than 80 % likely to be confirmed stable by then)/);
+    expect(mails[0]!.textBody).not.toMatch(/wash late/i);
   });
 });

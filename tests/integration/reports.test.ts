@@ -192,7 +192,8 @@ describe('reports on a hand-worked week', () => {
 
   it('throughput, recovery and yield of R1', () => {
     // Week 2025-W02: 3 done runs (R1, cleaning, maintenance); 2000 L of wash; 140 LAA of low wines.
-    expect(report.throughput).toEqual([{ week: '2025-W02', washLitres: 2000, lowWinesLaa: 140, heartsLaa: 0, runs: 3 }]);
+    // Still hours of the three done runs: R1 4 h + C 1 h + M 2 h = 7 h booked; no start stamped, finished at the booked end, so 7 h actual too.
+    expect(report.throughput).toEqual([{ week: '2025-W02', washLitres: 2000, lowWinesLaa: 140, heartsLaa: 0, runs: 3, bookedHours: 7, actualHours: 7 }]);
     const r1 = report.recoveries.find((r: any) => r.runId === ids.r1);
     // Charged 2000 L × 7.5 % = 150 LAA; recovery 140 / 150 = 0.93333
     expect(r1.chargedLaa).toBeCloseTo(150, 9);

@@ -112,12 +112,13 @@ describe('runs API', () => {
     expect((await distiller.post(`/api/runs/${run.id}/cancel`, { version: run.version })).status).toBe(403);
     const moved = await distiller.patch(`/api/runs/${run.id}`, { version: run.version, startsAt: iso(at(6, 7)) });
     expect(moved.status, moved.text).toBe(200);
-    const started = await distiller.post(`/api/runs/${run.id}/start`, { version: moved.json.run.version });
+    // Booked days ahead and finished at once: both questions are accepted here (run-actual-times.test.ts checks them).
+    const started = await distiller.post(`/api/runs/${run.id}/start`, { version: moved.json.run.version, confirm: true });
     expect(started.status).toBe(200);
     expect(started.json.run.status).toBe('running');
     // A running run stays where it is.
     expect((await planner.patch(`/api/runs/${run.id}`, { version: started.json.run.version, startsAt: iso(at(6, 9)) })).status).toBe(409);
-    const finished = await distiller.post(`/api/runs/${run.id}/finish`, { version: started.json.run.version });
+    const finished = await distiller.post(`/api/runs/${run.id}/finish`, { version: started.json.run.version, confirm: true });
     expect(finished.status).toBe(200);
     expect(finished.json.run.status).toBe('done');
     expect(finished.json.run.sequence).toBe(run.sequence + 3);

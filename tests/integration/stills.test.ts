@@ -37,7 +37,7 @@ describe('stills API', () => {
 
   it.each([
     ['a duplicate name', { name: 'Wash Still 1' }, 'name'],
-    ['closing before opening', { operatingHours: [{ weekday: 1, open: '18:00', close: '06:00' }] }, 'operatingHours'],
+    ['the same opening and closing time', { operatingHours: [{ weekday: 1, open: '06:00', close: '06:00' }] }, 'operatingHours.0.close'],
     ['zero capacity', { capacityLitres: 0 }, 'capacityLitres'],
     ['a bad time', { operatingHours: [{ weekday: 1, open: '6am', close: '18:00' }] }, 'operatingHours.0.open'],
   ])('refuses %s with 400 and the field', async (_what, over, field) => {
@@ -46,25 +46,34 @@ describe('stills API', () => {
     expect(Object.keys(r.json.error.fields ?? {})).toContain(field);
   });
 
+  it('accepts an overnight shift: a closing time before the opening time closes the next day', async () => {
+    const r = await manager.post('/api/stills', { ...still, name: 'Night Shift Still', operatingHours: [{ weekday: 5, open: '22:00', close: '06:00' }] });
+    expect(r.status, r.text).toBe(201);
+    expect(r.json.still.operatingHours).toEqual([{ weekday: 5, open: '22:00', close: '06:00' }]);
+    expect((await manager.del(`/api/stills/${r.json.still.id}`)).status).toBe(200);
+  });
+
   it('records closures for one still or the whole distillery and shows them on the board', async () => {
-    const c1 = await manager.post('/api/stills/closures', { stillId: fx.stills.ws1, startsOn: '2031-03-02', endsOn: '2031-03-03', reason: 'Boiler service' });
+    // Dates within the booking horizon (365 days by default): about three and six months ahead.
+    const ymd = (days: number) => new Date(Date.now() + days * 86_400_000).toISOString().slice(0, 10);
+    const [a1, a2, b1, b2] = [ymd(90), ymd(91), ymd(180), ymd(181)];
+    const c1 = await manager.post('/api/stills/closures', { stillId: fx.stills.ws1, startsOn: a1, endsOn: a2, reason: 'Boiler service' });
     expect(c1.status, c1.text).toBe(201);
-    const c2 = await manager.post('/api/stills/closures', { stillId: null, startsOn: '2031-12-25', endsOn: '2031-12-26', reason: 'Christmas closure' });
+    // The distillery-wide closure overlaps the first one's window on the board.
+    const c2 = await manager.post('/api/stills/closures', { stillId: null, startsOn: a2, endsOn: b2, reason: 'Distillery shutdown' });
     expect(c2.status).toBe(201);
-    expect((await manager.post('/api/stills/closures', { stillId: null, startsOn: '2031-12-26', endsOn: '2031-12-25', reason: 'Backwards' })).status).toBe(400);
-    expect((await planner.post('/api/stills/closures', { stillId: null, startsOn: '2031-12-25', endsOn: '2031-12-26', reason: 'x' })).status).toBe(403);
-    const board = await planner.get(`/api/board?from=${encodeURIComponent('2031-03-01T00:00:00Z')}&to=${encodeURIComponent('2031-03-08T00:00:00Z')}`);
+    expect((await manager.post('/api/stills/closures', { stillId: null, startsOn: b2, endsOn: b1, reason: 'Backwards' })).status).toBe(400);
+    expect((await planner.post('/api/stills/closures', { stillId: null, startsOn: b1, endsOn: b2, reason: 'x' })).status).toBe(403);
+    const board = await planner.get(`/api/board?from=${encodeURIComponent(`${ymd(89)}T00:00:00Z`)}&to=${encodeURIComponent(`${ymd(96)}T00:00:00Z`)}`);
     const ws1 = board.json.stills.find((s: { id: number }) => s.id === fx.stills.ws1);
     const ws2 = board.json.stills.find((s: { id: number }) => s.id === fx.stills.ws2);
-    expect(ws1.closures.map((c: { reason: string }) => c.reason).sort()).toEqual(['Boiler service', 'Christmas closure']);
-    expect(ws2.closures.map((c: { reason: string }) => c.reason)).toEqual(['Christmas closure']);
+    expect(ws1.closures.map((c: { reason: string }) => c.reason).sort()).toEqual(['Boiler service', 'Distillery shutdown']);
+    expect(ws2.closures.map((c: { reason: string }) => c.reason)).toEqual(['Distillery shutdown']);
     expect((await manager.del(`/api/stills/closures/${c1.json.closure.id}`)).status).toBe(204);
     const other = await boardFixture('Other Stills Distillery');
     const outsider = await other.client('manager');
     expect((await outsider.del(`/api/stills/closures/${c2.json.closure.id}`)).status).toBe(404);
     expect((await outsider.patch(`/api/stills/${fx.stills.ws1}`, { heatingKw: 1 })).status).toBe(404);
-    expect((await outsider.post('/api/stills/closures', { stillId: fx.stills.ws1, startsOn: '2031-01-01', endsOn: '2031-01-01', reason: 'x' })).status).toBe(
-      404,
-    );
+    expect((await outsider.post('/api/stills/closures', { stillId: fx.stills.ws1, startsOn: a1, endsOn: a1, reason: 'x' })).status).toBe(404);
   });
 });

@@ -1,4 +1,4 @@
-import { describe, it, expect } from 'vitest';
+import { afterAll, beforeAll, describe, it, expect, vi } from 'vitest';
 import {
   axisDayLabel,
   axisTicks,
@@ -34,6 +34,15 @@ const utc = (s: string) => new Date(`${s}Z`);
 const TZ = 'Europe/London';
 const week = boardWindow('2026-12-03', 'week', TZ); // Mon 30 Nov 00:00 UTC to Mon 7 Dec
 const px = ZOOMS.week.pxPerHour; // 12 px an hour
+
+// Moments within six days of now read as a weekday and time, farther ones with their date: the
+// layouts below read the clock, so it is held in the week drawn.
+beforeAll(() => {
+  vi.useFakeTimers({ toFake: ['Date'], now: utc('2026-12-02T12:00') });
+});
+afterAll(() => {
+  vi.useRealTimers();
+});
 
 describe('board sizes', () => {
   it('draws a winter week 168 h × 12 px wide', () => expect(canvasWidth(week, px)).toBe(2016));
@@ -271,14 +280,33 @@ describe('drafts', () => {
     expect(firstBookableHour(utc('2026-12-03T06:40'), week.start, px, TZ).toISOString()).toBe('2026-12-03T06:00:00.000Z');
     expect(firstBookableHour(utc('2026-11-20T06:40'), week.start, px, TZ).toISOString()).toBe(week.start.toISOString());
   });
-  it('books a wash on the first still that takes it, after its ready window', () => {
+  it('books a wash on the first still that takes it, from when it is no longer at risk', () => {
     const stills = [still(1, { capacityLitres: 1000 }), still(2)];
+    // Median 2 Dec 12:00, P90 4 Dec 12:00: the 80 % quantile lies 48 h × 0.8416/1.2816 (normal table) = 31.5 h on,
+    // 3 Dec 19:31; bookings start on the hour.
     expect(fermentBooking(ferment(1), stills, utc('2026-12-01T00:00'), week.start, px, TZ)).toEqual({
       stillId: 2,
-      startsAt: utc('2026-12-04T12:00'),
+      startsAt: utc('2026-12-03T20:00'),
       ferments: [{ fermentId: 1, litres: 2400 }],
     });
     expect(fermentBooking(ferment(1, { volumeLitres: 9000 }), stills, utc('2026-12-01T00:00'), week.start, px, TZ)?.stillId).toBe(1);
     expect(fermentBooking(ferment(1), [], utc('2026-12-01T00:00'), week.start, px, TZ)).toBeNull();
+  });
+  it('books a wash inside the still hours, off a closure, with room for the run and its cleaning before closing', () => {
+    // Weekdays 06:00–18:00, closed Friday 4 Dec. A 2400 L run: heat-up 2400 kg × 4.18 kJ/(kg·K) × (94 − 20) K / (60 kW × 0.85)
+    // ≈ 242 min, plus 300 typical minutes, about 9 h 03 min; then 60 min of cleaning, so it must start by 07:57.
+    const dayShift = still(2, {
+      operatingHours: ([1, 2, 3, 4, 5] as const).map((weekday) => ({ weekday, open: '06:00', close: '18:00' })),
+      closures: [{ startsOn: '2026-12-04', endsOn: '2026-12-04', reason: 'Boiler inspection' }],
+      cleaningAfterRunMinutes: 60,
+    });
+    const booking = fermentBooking(ferment(1), [dayShift], utc('2026-12-01T00:00'), week.start, px, TZ)!;
+    // Not at risk from 3 Dec 19:31, after Thursday's closing; Friday is closed, the weekend has no hours: Monday 06:00.
+    expect(booking.startsAt.toISOString()).toBe('2026-12-07T06:00:00.000Z');
+    // Maintenance booked Monday 06:00–07:00 moves it to 07:00; until 08:00, the run and its cleaning no longer fit Monday.
+    const busy = (end: string) => run(9, { stillId: 2, type: 'maintenance', startsAt: utc('2026-12-07T06:00'), endsAt: utc(end) });
+    const book = (end: string) => fermentBooking(ferment(1), [dayShift], utc('2026-12-01T00:00'), week.start, px, TZ, { runs: [busy(end)] })!;
+    expect(book('2026-12-07T07:00').startsAt.toISOString()).toBe('2026-12-07T07:00:00.000Z');
+    expect(book('2026-12-07T08:00').startsAt.toISOString()).toBe('2026-12-08T06:00:00.000Z');
   });
 });

@@ -110,12 +110,30 @@ describe('washes to book and runs at risk', () => {
     expect(list.find((b) => b.ferment.code === 'LATE')!.unbookedLitres).toBe(1400);
     expect(list.find((b) => b.ferment.code === 'SOON')!.unbookedLitres).toBe(2400); // a cancelled run books nothing
   });
-  it('flags runs on a stalled wash or before the late edge of the window, soonest first', () => {
+  it('flags runs on a stalled wash or starting before the 80 % quantile of the ready time, soonest first', () => {
+    // LATE: P10 1 Dec 12:00, median 6 Dec 00:00, P90 7 Dec 00:00, so its 80 % quantile is near 6 Dec 15:46; run 12 starts 5 Dec 07:00.
     const risk = runsAtRisk(runs, fs, now);
     expect(risk.map((r) => [r.run.id, r.reasons.map((x) => x.why)])).toEqual([
       [11, ['stalled']],
-      [12, ['late']],
+      [12, ['at_risk']],
     ]);
+  });
+  it('says early before P10, and late only for a run that was not at risk when booked', () => {
+    const early = run(20, { ferments: [{ fermentId: 1, litres: 100 }], startsAt: utc('2026-12-01T08:00'), endsAt: utc('2026-12-01T12:00') });
+    const late = { ...runs[2]!, bookedAtRisk: false };
+    const bookedEarly = { ...runs[2]!, bookedAtRisk: true };
+    const why = (list: typeof runs) => runsAtRisk(list, fs, now).map((r) => r.reasons.map((x) => x.why)[0]);
+    expect(why([early])).toEqual(['early']);
+    expect(why([late])).toEqual(['late']);
+    expect(why([bookedEarly])).toEqual(['at_risk']);
+  });
+  it('follows the threshold setting: at 60 % the same run is no longer at risk', () => {
+    // Normal table: z(0.6) = 0.2533, z(0.8) = 0.8416, z(0.9) = 1.2816. From the median (6 Dec 00:00) towards P90 (24 h later),
+    // the 60 % quantile lies 24 h × 0.2533 / 1.2816 = 4.7 h on (04:45), the 80 % one 15.8 h on (15:46): a 6 Dec 08:00 start
+    // is at risk at 80 % only.
+    const later = run(21, { ferments: [{ fermentId: 1, litres: 100 }], startsAt: utc('2026-12-06T08:00'), endsAt: utc('2026-12-06T12:00') });
+    expect(runsAtRisk([later], fs, now, 0.8).map((r) => r.run.id)).toEqual([21]);
+    expect(runsAtRisk([later], fs, now, 0.6)).toEqual([]);
   });
   it.each([
     ['a stalled wash waits a fresh stable period from now (3 days, the product default)', [{ fermentId: 3, litres: 1 }], now.getTime() + 3 * D],
@@ -170,18 +188,21 @@ describe('defaultRunMinutes', () => {
 
 describe('words', () => {
   it("announces a move in the product's own words, on the distillery's clock", () => {
-    expect(movedMessage('stripping', 'Wash Still 2', utc('2026-12-01T06:00'), TZ)).toBe('Stripping run moved to Wash Still 2, Tuesday 06:00');
+    const now = utc('2026-11-30T12:00');
+    expect(movedMessage('stripping', 'Wash Still 2', utc('2026-12-01T06:00'), TZ, now)).toBe('Stripping run moved to Wash Still 2, Tuesday 06:00');
     // 06:00 BST on Tuesday 2 June 2026 is 05:00 UTC.
-    expect(movedMessage('spirit', 'Spirit Still', utc('2026-06-02T05:00'), TZ)).toBe('Spirit run moved to Spirit Still, Tuesday 06:00');
+    expect(movedMessage('spirit', 'Spirit Still', utc('2026-06-02T05:00'), TZ, utc('2026-06-01T12:00'))).toBe(
+      'Spirit run moved to Spirit Still, Tuesday 06:00',
+    );
+    // More than six days away, the day is named with its date.
+    expect(movedMessage('spirit', 'Spirit Still', utc('2026-06-02T05:00'), TZ, now)).toBe('Spirit run moved to Spirit Still, Tue 2 Jun 06:00');
   });
   it('says what another person changed', () => {
     const mine = run(1);
     const theirs = run(1, { stillId: 2, startsAt: utc('2026-12-03T08:00'), operatorId: 5 });
-    expect(describeChanges(mine, theirs, { still: (id) => `Still ${id}`, person: (id) => (id === 5 ? 'Ines' : 'nobody') }, TZ)).toEqual([
-      'still is now Still 2',
-      'starts Thursday 08:00',
-      'operator is now Ines',
-    ]);
+    expect(
+      describeChanges(mine, theirs, { still: (id) => `Still ${id}`, person: (id) => (id === 5 ? 'Ines' : 'nobody') }, TZ, utc('2026-12-01T00:00')),
+    ).toEqual(['still is now Still 2', 'starts Thursday 08:00', 'operator is now Ines']);
   });
 });
 

@@ -255,26 +255,55 @@ describe('throughput and yield per tonne (hand-worked)', () => {
   it('wash litres and LAA by ISO week of finish', () => {
     const rows = throughputByWeek(
       [
-        { type: 'stripping', finishedAt: utc('2025-03-04T13:00'), washLitres: 2400, fractions: [{ fraction: 'low_wines', laa: 176 }] },
-        { type: 'stripping', finishedAt: utc('2025-03-06T13:00'), washLitres: 1800, fractions: [{ fraction: 'low_wines', laa: 150 }] },
+        {
+          type: 'stripping',
+          finishedAt: utc('2025-03-04T13:00'),
+          startsAt: utc('2025-03-04T08:00'),
+          endsAt: utc('2025-03-04T13:00'),
+          startedAt: utc('2025-03-04T08:30'),
+          washLitres: 2400,
+          fractions: [{ fraction: 'low_wines', laa: 176 }],
+        },
+        {
+          type: 'stripping',
+          finishedAt: utc('2025-03-06T13:00'),
+          startsAt: utc('2025-03-06T08:00'),
+          endsAt: utc('2025-03-06T12:00'),
+          startedAt: utc('2025-03-06T08:00'),
+          washLitres: 1800,
+          fractions: [{ fraction: 'low_wines', laa: 150 }],
+        },
         {
           type: 'spirit',
           finishedAt: utc('2025-03-07T16:00'),
+          startsAt: utc('2025-03-07T08:00'),
+          endsAt: utc('2025-03-07T16:00'),
+          startedAt: null,
           washLitres: 0,
           fractions: [
             { fraction: 'heads', laa: 14 },
             { fraction: 'hearts', laa: 200 },
           ],
         },
-        { type: 'stripping', finishedAt: utc('2025-03-12T13:00'), washLitres: 2000, fractions: [] },
+        {
+          type: 'stripping',
+          finishedAt: utc('2025-03-12T13:00'),
+          startsAt: utc('2025-03-12T09:00'),
+          endsAt: utc('2025-03-12T14:00'),
+          startedAt: utc('2025-03-12T09:00'),
+          washLitres: 2000,
+          fractions: [],
+        },
       ],
       ['2025-W10', '2025-W11'],
       TZ,
     );
-    // W10 (3–9 Mar): 2400 + 1800 = 4200 L; low wines 176 + 150 = 326 LAA; hearts 200 LAA; 3 runs. W11: 2000 L, 1 run.
+    // W10 (3–9 Mar): 2400 + 1800 = 4200 L; low wines 176 + 150 = 326 LAA; hearts 200 LAA; 3 runs.
+    //   Booked 5 + 4 + 8 = 17 h; actual 4.5 (08:30–13:00) + 5 (08:00–13:00) + 8 (no start stamped: booked start to finish) = 17.5 h.
+    // W11: 2000 L, 1 run, booked 5 h, actual 4 h (09:00–13:00).
     expect(rows).toEqual([
-      { week: '2025-W10', washLitres: 4200, lowWinesLaa: 326, heartsLaa: 200, runs: 3 },
-      { week: '2025-W11', washLitres: 2000, lowWinesLaa: 0, heartsLaa: 0, runs: 1 },
+      { week: '2025-W10', washLitres: 4200, lowWinesLaa: 326, heartsLaa: 200, runs: 3, bookedHours: 17, actualHours: 17.5 },
+      { week: '2025-W11', washLitres: 2000, lowWinesLaa: 0, heartsLaa: 0, runs: 1, bookedHours: 5, actualHours: 4 },
     ]);
   });
   it('LAA per tonne of ingredients', () => {

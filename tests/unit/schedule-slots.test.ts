@@ -54,9 +54,19 @@ const slots = (over: Partial<Parameters<typeof findEarliestSlots>[0]> = {}) =>
 describe('findEarliestSlots', () => {
   it.each([
     {
-      what: 'the grid starts at 09:30; Still 1 is free after its cleaning at 14:00; Still 2 has no 4 h left on Tuesday',
+      what: 'the grid starts at 09:30; after its cleaning at 14:00 Still 1 has 4 h but no hour left to clean before 18:00; Still 2 has no 4 h left on Tuesday',
       over: {},
-      expected: ['1 2026-12-01T14:00–18:00', '1 2026-12-02T08:00–12:00', '2 2026-12-02T08:00–12:00'],
+      expected: ['1 2026-12-02T08:00–12:00', '2 2026-12-02T08:00–12:00', '1 2026-12-02T12:00–16:00'],
+    },
+    {
+      what: "Still 1's run and its hour of cleaning must both fit before 18:00: 13:00–17:00 does, 14:00–18:00 does not",
+      over: { stills: [still1], runs: [], notBefore: utc('2026-12-01T13:00'), limit: 1 },
+      expected: ['1 2026-12-01T13:00–17:00'],
+    },
+    {
+      what: 'no room for cleaning before closing after 13:30: the next morning',
+      over: { stills: [still1], runs: [], notBefore: utc('2026-12-01T13:10'), limit: 1 },
+      expected: ['1 2026-12-02T08:00–12:00'],
     },
     {
       what: 'a 1500 L charge fits only Still 2; its suggestions do not overlap each other',

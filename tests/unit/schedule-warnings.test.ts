@@ -83,15 +83,15 @@ const cases: Array<{ code: WarningCode; severity: string; fires: Scenario; nearM
   {
     code: 'booked_before_ready',
     severity: 'danger',
-    why: 'start before P10 vs start inside the window after the median',
+    why: 'start before P10 vs start after the 80 % quantile of the ready time',
     fires: { run: run({ startsAt: at('2026-12-03T05:00'), endsAt: at('2026-12-03T11:00') }), ferment: fermenting() },
-    nearMiss: { run: run({ startsAt: at('2026-12-03T12:00'), endsAt: at('2026-12-03T18:00') }), ferment: fermenting() },
+    nearMiss: { run: run({ startsAt: at('2026-12-04T08:00'), endsAt: at('2026-12-04T14:00') }), ferment: fermenting() },
   },
   {
     code: 'booked_before_stable',
     severity: 'warning',
-    why: 'start between median and P90, unconfirmed vs the same time on a confirmed wash',
-    fires: { run: run(), ferment: fermenting() },
+    why: 'a finished wash confirmed only after the start vs one confirmed before it',
+    fires: { run: run(), ferment: finishedWash({ confirmedAt: at('2026-12-03T15:00') }) },
     nearMiss: { run: run(), ferment: finishedWash() },
   },
   {
@@ -232,11 +232,14 @@ describe('computeRunWarnings: each rule fires, and not on a near miss', () => {
 });
 
 describe('computeRunWarnings: readiness ladder against the forecast window', () => {
-  // Window: P10 3 Dec 06:00, median 3 Dec 12:00, P90 4 Dec 18:00.
+  // Window: P10 3 Dec 06:00, median 3 Dec 12:00, P90 4 Dec 18:00. At the default 80 % threshold a run is at risk
+  // before the 80 % quantile: 30 h × z(0.8)/z(0.9) = 30 h × 0.8416/1.2816 (normal table) = 19.7 h after the median, 4 Dec 07:42.
   it.each([
     { start: '2026-12-03T05:00', code: 'booked_before_ready', severity: 'danger' },
     { start: '2026-12-03T08:00', code: 'booked_before_ready', severity: 'warning' },
-    { start: '2026-12-03T14:00', code: 'booked_before_stable', severity: 'warning' },
+    { start: '2026-12-03T14:00', code: 'booked_before_ready', severity: 'warning' },
+    { start: '2026-12-04T07:30', code: 'booked_before_ready', severity: 'warning' },
+    { start: '2026-12-04T08:00', code: 'booked_before_stable', severity: 'info' },
     { start: '2026-12-05T08:00', code: 'booked_before_stable', severity: 'info' },
   ])('a run starting $start gets $code ($severity)', ({ start, code, severity }) => {
     const startsAt = at(start);
@@ -245,9 +248,29 @@ describe('computeRunWarnings: readiness ladder against the forecast window', () 
     expect(readiness).toEqual([expect.objectContaining({ code, severity, fermentId: 12 })]);
   });
 
-  it("says why in the product's words", () => {
+  it("says why in the product's words: booked early, unless the run was not at risk when booked", () => {
     const [w] = warningsFor({ run: run(), ferment: fermenting() });
-    expect(w.message).toBe('Wash F-12 is not confirmed stable: ready window 3 Dec 06:00 – 4 Dec 18:00');
+    expect(w.message).toBe(
+      'Booked before its wash is likely ready: wash F-12 is less than 80 % likely to be confirmed stable by the start (ready window 3 Dec 06:00 – 4 Dec 18:00)',
+    );
+    const [late] = warningsFor({ run: run({ bookedAtRisk: false }), ferment: fermenting() });
+    expect(late.message).toMatch(/^Wash late: wash F-12 /);
+    const [early] = warningsFor({ run: run({ bookedAtRisk: true }), ferment: fermenting() });
+    expect(early.message).toMatch(/^Booked before its wash is likely ready: /);
+  });
+
+  it('follows the threshold setting', () => {
+    const r = run({ startsAt: at('2026-12-04T08:00'), endsAt: at('2026-12-04T12:00') });
+    const at95 = computeRunWarnings(r, {
+      still,
+      runs: [r],
+      ferments: new Map([[12, fermenting()]]),
+      timeZone: TZ,
+      now: at('2026-12-01T08:00'),
+      atRiskThreshold: 0.95,
+    });
+    expect(at95).toEqual([expect.objectContaining({ code: 'booked_before_ready', severity: 'warning' })]);
+    expect(at95[0]!.message).toContain('less than 95 % likely');
   });
 
   it('a wash with no forecast yet is not confirmed stable', () => {

@@ -22,6 +22,7 @@ import { useRunEditing, type Notice } from './hooks/useRunEditing';
 import { useSlotSuggestions } from './hooks/useSlotSuggestions';
 import { RisksPanel } from './RisksPanel';
 import { RunDialog } from './RunDialog';
+import type { NumberFormat } from '../../lib/vocabulary';
 import { WashesPanel } from './WashesPanel';
 import './board.css';
 
@@ -31,6 +32,8 @@ export interface BoardIslandProps {
   anchor: string;
   today: string;
   units: UnitSystem;
+  /** How the distillery types numbers (the run dialog's charge, litres and minutes). */
+  numberFormat?: NumberFormat;
   canBook: boolean;
   canMove: boolean;
   canOperate: boolean;
@@ -51,7 +54,7 @@ export default function BoardIsland(props: BoardIslandProps) {
   const drag = useRunDrag(data, editing, { dragging, setNotice });
   const { suggestions, findSlots, moveHere } = useSlotSuggestions(editing.saveMove);
   const { board, zoom, anchor, tz } = data;
-  const atRisk = useMemo(() => runsAtRisk(board.runs, board.ferments, board.now), [board]);
+  const atRisk = useMemo(() => runsAtRisk(board.runs, board.ferments, board.now, board.atRiskThreshold), [board]);
   const bookable = useMemo(() => bookableFerments(board.ferments, board.runs), [board]);
 
   return (
@@ -107,13 +110,23 @@ export default function BoardIsland(props: BoardIslandProps) {
               fermentById={data.fermentById}
               stillName={data.names.still}
               stableDays={board.stableDays}
+              atRiskThreshold={board.atRiskThreshold}
+              now={board.now}
               timeZone={tz}
               canMove={props.canMove}
               onOpen={editing.openRun}
               onFindSlots={findSlots}
               onMoveHere={moveHere}
             />
-            <WashesPanel bookable={bookable} units={props.units} timeZone={tz} canBook={props.canBook} onBook={editing.bookFerment} />
+            <WashesPanel
+              bookable={bookable}
+              units={props.units}
+              timeZone={tz}
+              atRiskThreshold={board.atRiskThreshold}
+              now={board.now}
+              canBook={props.canBook}
+              onBook={editing.bookFerment}
+            />
             <BoardLegend />
           </aside>
         </DndContext>
@@ -123,6 +136,7 @@ export default function BoardIsland(props: BoardIslandProps) {
           board={board}
           draft={editing.dialog}
           units={props.units}
+          numberFormat={props.numberFormat}
           canBook={props.canBook}
           canOperate={props.canOperate}
           busy={editing.busy}

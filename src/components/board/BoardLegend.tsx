@@ -22,6 +22,10 @@ export function BoardLegend() {
         <li>
           <span className="key key-closed" /> still closed
         </li>
+        <li>
+          <span className="key" style={{ border: '2px dashed var(--color-haze)', background: 'rgba(107, 122, 118, 0.08)' }} /> a started run's booking (the run
+          itself is drawn where it really ran)
+        </li>
       </ul>
     </section>
   );

@@ -50,14 +50,24 @@ export function BoardTimeline(p: {
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [zoom, anchor]);
 
-  const runs = useMemo(() => runsByStill(board.stills, board.runs, win), [board.runs, board.stills, win]);
+  const runs = useMemo(() => runsByStill(board.stills, board.runs, win, board.now), [board.runs, board.stills, win, board.now]);
   const closed = useMemo(() => closedSpans(board.stills, win, tz, spec.pxPerHour), [board.stills, win, tz, spec.pxPerHour]);
   const windows = useMemo(() => readyWindowSpans(runs, fermentById, win.start, spec.pxPerHour), [runs, fermentById, win.start, spec.pxPerHour]);
 
   // The run blocks, built once per board / window / warnings change: a drag's preview re-renders
   // the timeline on every slot it crosses, and must not rebuild (or re-format) every block.
   const blocks = useMemo(() => {
-    const context = { stillById, fermentById, personById, windowStart: win.start, pxPerHour: spec.pxPerHour, timeZone: tz, zoom, units: p.units };
+    const context = {
+      stillById,
+      fermentById,
+      personById,
+      windowStart: win.start,
+      pxPerHour: spec.pxPerHour,
+      timeZone: tz,
+      zoom,
+      units: p.units,
+      now: board.now,
+    };
     const out = new Map<number, ReactNode[]>();
     for (const [stillId, list] of runs) {
       out.set(
@@ -79,7 +89,24 @@ export function BoardTimeline(p: {
       );
     }
     return out;
-  }, [runs, stillById, fermentById, personById, win.start, spec.pxPerHour, tz, zoom, p.units, warnings, p.canMove, compact, openRun, onResize, onResizeKey]);
+  }, [
+    runs,
+    stillById,
+    fermentById,
+    personById,
+    win.start,
+    spec.pxPerHour,
+    tz,
+    zoom,
+    p.units,
+    warnings,
+    p.canMove,
+    compact,
+    openRun,
+    onResize,
+    onResizeKey,
+    board.now,
+  ]);
 
   const previewRow = p.preview ? stillIds.indexOf(p.preview.stillId) : -1;
 

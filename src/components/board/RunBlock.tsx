@@ -10,11 +10,15 @@ export interface RunBlockProps {
   x: number;
   width: number;
   cleaningWidth: number;
+  /** The booking, drawn faintly beside a started or done run (row coordinates); null before a start. */
+  booked: { x: number; w: number } | null;
   rowHeight: number;
   fermentCodes: string;
   chargeText: string;
   operatorText: string;
   timeText: string;
+  /** "started 40 min late, finished 1 h 5 min early"; empty before a start. */
+  timingText: string;
   warnings: readonly Warning[];
   placement: WindowPlacement;
   canMove: boolean;
@@ -86,7 +90,7 @@ function RunBlockInner(p: RunBlockProps) {
   const [resizeDx, setResizeDx] = useState(0);
   const startX = useRef<number | null>(null);
 
-  const label = `${RUN_TYPE_LABELS[p.run.type]}, ${RUN_STATUS_LABELS[p.run.status].toLowerCase()}, ${p.timeText}${p.fermentCodes ? `, wash ${p.fermentCodes}` : ''}${p.chargeText ? `, ${p.chargeText}` : ''}${p.operatorText ? `, ${p.operatorText}` : ''}${p.placement !== 'unknown' ? `, ${PLACEMENT_TEXT[p.placement]}` : ''}${p.warnings.length ? `, ${p.warnings.length} warning${p.warnings.length > 1 ? 's' : ''}` : ''}`;
+  const label = `${RUN_TYPE_LABELS[p.run.type]}, ${RUN_STATUS_LABELS[p.run.status].toLowerCase()}, ${p.timeText}${p.timingText ? `, ${p.timingText}` : ''}${p.fermentCodes ? `, wash ${p.fermentCodes}` : ''}${p.chargeText ? `, ${p.chargeText}` : ''}${p.operatorText ? `, ${p.operatorText}` : ''}${p.placement !== 'unknown' ? `, ${PLACEMENT_TEXT[p.placement]}` : ''}${p.warnings.length ? `, ${p.warnings.length} warning${p.warnings.length > 1 ? 's' : ''}` : ''}`;
   const width = Math.max(6, p.width + resizeDx);
   const style: React.CSSProperties = {
     left: p.x,
@@ -98,6 +102,25 @@ function RunBlockInner(p: RunBlockProps) {
 
   return (
     <>
+      {p.booked && (
+        <div
+          className="run-booking"
+          data-testid={`run-booking-${p.run.id}`}
+          style={{
+            position: 'absolute',
+            top: 4,
+            left: p.booked.x,
+            width: Math.max(4, p.booked.w),
+            height: p.rowHeight - 10,
+            border: '2px dashed var(--color-haze)',
+            borderRadius: '0.45rem',
+            background: 'rgba(107, 122, 118, 0.08)',
+            pointerEvents: 'none',
+            zIndex: 1,
+          }}
+          aria-hidden="true"
+        />
+      )}
       {/* dnd-kit's spread attributes give this block role="button", tabIndex and its keyboard handling. */}
       {/* eslint-disable-next-line jsx-a11y/no-static-element-interactions */}
       <div

@@ -1,10 +1,23 @@
 import { useEffect, useMemo, useRef, useState } from 'react';
 import type { Board, BoardRun } from '../../lib/board';
-import { defaultRunMinutes, RUN_STATUS_LABELS, RUN_TYPE_LABELS, SAFETY_CAUTIONS, toFermentState, toScheduleRun, toScheduleStill } from '../../lib/board';
+import {
+  dayAndTime,
+  defaultRunMinutes,
+  RUN_STATUS_LABELS,
+  RUN_TYPE_LABELS,
+  SAFETY_CAUTIONS,
+  toFermentState,
+  toScheduleRun,
+  toScheduleStill,
+} from '../../lib/board';
 import { computeRunWarnings, wallClock, zonedDateTime, type RunType, type Warning } from '../../lib/schedule';
+import { actualLine } from '../runs/actual-words';
 import { formatVolume, parseVolumeToLitres, volumeForDisplay, volumeUnitFor, type UnitSystem } from '../../lib/units';
 import { RUN_TYPES } from '../../lib/vocabulary';
 import { runRecordHref, runRecordLinkText, takesRecord } from '../runs/record-link';
+import { ConfirmRunAction } from '../runs/ConfirmRunAction';
+import { actionExplained } from '../runs/run-action';
+import NumberField, { NumberValueField, readNumber, refusedIn, typedText, type NumberFormat } from '../forms/NumberField';
 
 export interface DialogDraft {
   /** Null when booking a new run. */
@@ -19,12 +32,15 @@ export interface RunDialogProps {
   board: Board;
   draft: DialogDraft;
   units: UnitSystem;
+  /** How the distillery types numbers (charge, litres, minutes). */
+  numberFormat?: NumberFormat;
   canBook: boolean;
   canOperate: boolean;
   busy: boolean;
   error: string | null;
   onClose: () => void;
   onSave: (body: Record<string, unknown>, run: BoardRun | null) => void;
+  /** Cancel asks and sends itself; start and finish are called once the server has done them (after the confirmation dialog). */
   onAction: (action: 'cancel' | 'start' | 'finish', run: BoardRun) => void;
 }
 
@@ -38,6 +54,11 @@ function fromLocalInput(value: string, tz: string): Date | null {
   return m ? zonedDateTime(m[1]!, m[2]!, tz) : null;
 }
 
+function runTimingLine(r: BoardRun, tz: string): string | null {
+  const line = actualLine(r, (d) => dayAndTime(d, tz));
+  return line ? `${line} · booked ${dayAndTime(r.startsAt, tz)} to ${dayAndTime(r.endsAt, tz)}` : null;
+}
+
 export function RunDialog(p: RunDialogProps) {
   const { board, draft } = p;
   const tz = board.timeZone;
@@ -45,7 +66,8 @@ export function RunDialog(p: RunDialogProps) {
   const existing = draft.run;
   const editable = p.canBook && (!existing || existing.status === 'planned' || existing.status === 'confirmed');
   const unit = volumeUnitFor(p.units);
-  const toUnit = (l: number | null) => (l === null ? '' : String(Math.round(volumeForDisplay(l, p.units) * 10) / 10));
+  const format = p.numberFormat ?? 'point';
+  const toUnit = (l: number | null) => (l === null ? '' : typedText(Math.round(volumeForDisplay(l, p.units) * 10) / 10, format));
 
   const [type, setType] = useState<RunType>(existing?.type ?? draft.type);
   const [stillId, setStillId] = useState(existing?.stillId ?? draft.stillId);
@@ -56,11 +78,14 @@ export function RunDialog(p: RunDialogProps) {
   const [feeds, setFeeds] = useState(existing?.feeds ?? []);
   const [charge, setCharge] = useState(toUnit(existing ? existing.chargeLitres : draft.ferments.reduce((s, l) => s + l.litres, 0) || null));
   const [notes, setNotes] = useState(existing?.notes ?? '');
+  const [confirming, setConfirming] = useState<'start' | 'finish' | null>(null);
   const still = board.stills.find((s) => s.id === stillId) ?? board.stills[0]!;
-  const chargeLitres = charge.trim() === '' ? null : parseVolumeToLitres(Number(charge), unit);
+  const chargeRead = readNumber(charge, format);
+  const chargeLitres = chargeRead.ok && chargeRead.value !== null ? parseVolumeToLitres(chargeRead.value, unit) : null;
   const suggested = defaultRunMinutes(still, type, chargeLitres, existing?.chargeAbv ?? null);
   const [minutes, setMinutes] = useState<string>(existing ? String(Math.round((existing.endsAt.getTime() - existing.startsAt.getTime()) / 60000)) : '');
-  const duration = minutes.trim() === '' ? suggested : Number(minutes);
+  const minutesRead = readNumber(minutes, format);
+  const duration = minutesRead.ok && minutesRead.value !== null ? minutesRead.value : suggested;
 
   useEffect(() => {
     const d = ref.current;
@@ -111,6 +136,7 @@ export function RunDialog(p: RunDialogProps) {
       ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])),
       timeZone: tz,
       now: board.now,
+      atRiskThreshold: board.atRiskThreshold,
     });
     // Recomputed when the form's fields change; the board and the run being edited are fixed while the dialog is open.
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -123,6 +149,8 @@ export function RunDialog(p: RunDialogProps) {
   function submit(e: React.FormEvent) {
     e.preventDefault();
     if (!startsAt) return;
+    // A number that cannot be read is refused beside its field (focused); nothing is sent.
+    if (refusedIn(e.currentTarget as HTMLFormElement)) return;
     const endsAt = new Date(startsAt.getTime() + duration * 60000);
     const body: Record<string, unknown> = {
       stillId,
@@ -133,13 +161,16 @@ export function RunDialog(p: RunDialogProps) {
       operatorId: operatorId ? Number(operatorId) : null,
       chargeLitres,
       notes: notes.trim() || null,
-      ferments: type === 'stripping' || type === 'redistillation' ? lines.filter((l) => l.litres > 0) : [],
-      feeds: type === 'spirit' || type === 'redistillation' ? feeds.filter((l) => l.litres > 0) : [],
+      // Lines are sent as they are: one without litres is refused with its field named, never dropped.
+      ferments: type === 'stripping' || type === 'redistillation' ? lines : [],
+      feeds: type === 'spirit' || type === 'redistillation' ? feeds : [],
     };
     if (existing) body.version = existing.version;
     p.onSave(body, existing);
   }
 
+  // A started or done run says when it really ran beside its booking.
+  const actualText = existing && (existing.status === 'running' || existing.status === 'done') ? runTimingLine(existing, tz) : null;
   const heading = existing ? `${RUN_TYPE_LABELS[existing.type]} on ${stillName(existing.stillId)}` : 'Book a run';
   return (
     <dialog
@@ -159,6 +190,11 @@ export function RunDialog(p: RunDialogProps) {
             {existing && (
               <p className="text-sm text-ink-soft">
                 {RUN_STATUS_LABELS[existing.status]} · version {existing.version} · <a href={`/runs/${existing.id}`}>Open the run page</a>
+              </p>
+            )}
+            {existing && actualText && (
+              <p className="text-sm font-semibold" data-testid="run-dialog-actual">
+                {actualText}
               </p>
             )}
           </div>
@@ -198,16 +234,7 @@ export function RunDialog(p: RunDialogProps) {
           </div>
           <div className="field">
             <label htmlFor="rd-minutes">Length in minutes</label>
-            <input
-              id="rd-minutes"
-              className="input"
-              type="number"
-              min={1}
-              max={10080}
-              placeholder={String(suggested)}
-              value={minutes}
-              onChange={(e) => setMinutes(e.target.value)}
-            />
+            <NumberField id="rd-minutes" format={format} unit="min" placeholder={String(suggested)} value={minutes} onValueChange={setMinutes} />
             <span className="text-xs text-ink-soft">
               Estimate: {suggested} min (heat-up of the charge on {still.heatingKw} kW plus {still.typicalMinutes[type]} min typical
               {still.cleaningAfterRunMinutes && (type === 'stripping' || type === 'spirit' || type === 'redistillation')
@@ -218,7 +245,7 @@ export function RunDialog(p: RunDialogProps) {
           </div>
           <div className="field">
             <label htmlFor="rd-charge">Charge ({unit === 'L' ? 'litres' : 'US gallons'})</label>
-            <input id="rd-charge" className="input" type="number" min={0} step="any" value={charge} onChange={(e) => setCharge(e.target.value)} />
+            <NumberField id="rd-charge" format={format} unit={unit} value={charge} onValueChange={setCharge} />
             <span className="text-xs text-ink-soft">Working capacity {formatVolume(still.capacityLitres, p.units)}</span>
           </div>
           <div className="field">
@@ -264,14 +291,12 @@ export function RunDialog(p: RunDialogProps) {
                   <label className="sr-only" htmlFor={`rd-fl-${i}`}>
                     Litres of wash {i + 1}
                   </label>
-                  <input
+                  <NumberValueField
                     id={`rd-fl-${i}`}
                     className="input w-28"
-                    type="number"
-                    min={0}
-                    step="any"
-                    value={toUnit(l.litres)}
-                    onChange={(e) => setLines(lines.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))}
+                    format={format}
+                    number={Math.round(volumeForDisplay(l.litres, p.units) * 10) / 10}
+                    onNumber={(n) => setLines(lines.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(n ?? 0, unit) } : x)))}
                   />
                   <span>{unit}</span>
                   <button type="button" className="btn btn-quiet" onClick={() => setLines(lines.filter((_, j) => j !== i))}>
@@ -309,14 +334,12 @@ export function RunDialog(p: RunDialogProps) {
                   <label className="sr-only" htmlFor={`rd-rl-${i}`}>
                     Litres from feeding run {i + 1}
                   </label>
-                  <input
+                  <NumberValueField
                     id={`rd-rl-${i}`}
                     className="input w-28"
-                    type="number"
-                    min={0}
-                    step="any"
-                    value={toUnit(l.litres)}
-                    onChange={(e) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(Number(e.target.value), unit) } : x)))}
+                    format={format}
+                    number={Math.round(volumeForDisplay(l.litres, p.units) * 10) / 10}
+                    onNumber={(n) => setFeeds(feeds.map((x, j) => (j === i ? { ...x, litres: parseVolumeToLitres(n ?? 0, unit) } : x)))}
                   />
                   <span>{unit}</span>
                   <button type="button" className="btn btn-quiet" onClick={() => setFeeds(feeds.filter((_, j) => j !== i))}>
@@ -365,12 +388,12 @@ export function RunDialog(p: RunDialogProps) {
             </button>
           )}
           {existing && p.canOperate && (existing.status === 'planned' || existing.status === 'confirmed') && (
-            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('start', existing)}>
+            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => setConfirming('start')}>
               Start run
             </button>
           )}
           {existing && p.canOperate && existing.status === 'running' && (
-            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => p.onAction('finish', existing)}>
+            <button type="button" className="btn btn-quiet" disabled={p.busy} onClick={() => setConfirming('finish')}>
               Finish run
             </button>
           )}
@@ -381,6 +404,26 @@ export function RunDialog(p: RunDialogProps) {
           )}
         </div>
       </form>
+      {existing && confirming && (
+        <ConfirmRunAction
+          runId={existing.id}
+          version={existing.version}
+          action={confirming}
+          label={RUN_TYPE_LABELS[existing.type].toLowerCase()}
+          explanation={actionExplained(
+            confirming,
+            RUN_TYPE_LABELS[existing.type].toLowerCase(),
+            wallClock(new Date(), tz).hm,
+            `${dayAndTime(existing.startsAt, tz)} to ${dayAndTime(existing.endsAt, tz)}`,
+          )}
+          onClose={() => setConfirming(null)}
+          onDone={() => {
+            const action = confirming;
+            setConfirming(null);
+            p.onAction(action, existing);
+          }}
+        />
+      )}
     </dialog>
   );
 }

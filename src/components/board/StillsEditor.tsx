@@ -2,9 +2,12 @@
 import { useState } from 'react';
 import type { BoardStill } from '../../lib/board';
 import { RUN_TYPE_LABELS, WEEKDAY_NAMES } from '../../lib/board';
-import type { RunType } from '../../lib/schedule';
+import { closesNextDay, type RunType } from '../../lib/schedule';
 import { formatVolume, parseVolumeToLitres, volumeForDisplay, volumeUnitFor, type UnitSystem } from '../../lib/units';
+import NumberField, { readNumber, refuseUnread, typedText, type NumberFormat } from '../forms/NumberField';
 import { RUN_TYPES, STILL_KIND_LABELS, STILL_KINDS, type StillKind } from '../../lib/vocabulary';
+import FieldError from '../forms/FieldError';
+import { useFieldErrors } from '../forms/useFieldErrors';
 
 type Still = BoardStill & { active: boolean };
 interface Closure {
@@ -46,7 +49,15 @@ interface Draft {
   typical: Record<RunType, string>;
 }
 
-function draftOf(s: Still | null, units: UnitSystem): Draft {
+/** Under a day's hours: an overnight shift closes the next day (22:00 to 06:00); the same time for both is not a shift. */
+function hoursNote(h: { open: string; close: string }): string {
+  const close = h.close === '00:00' ? '24:00' : h.close;
+  if (!/^\d{2}:\d{2}$/.test(h.open) || !/^\d{2}:\d{2}$/.test(close)) return '';
+  if (close === h.open) return 'opens and closes at the same time: use midnight to midnight for round the clock';
+  return closesNextDay({ open: h.open, close }) ? 'closes next day' : '';
+}
+
+function draftOf(s: Still | null, units: UnitSystem, format: NumberFormat): Draft {
   const hours: Draft['hours'] = {};
   for (const d of WEEK) {
     const h = s?.operatingHours.find((x) => x.weekday === d);
@@ -55,8 +66,8 @@ function draftOf(s: Still | null, units: UnitSystem): Draft {
   return {
     name: s?.name ?? '',
     kind: s?.kind ?? 'pot',
-    capacity: s ? String(Math.round(volumeForDisplay(s.capacityLitres, units))) : '',
-    heatingKw: s ? String(s.heatingKw) : '',
+    capacity: s ? typedText(Math.round(volumeForDisplay(s.capacityLitres, units)), format) : '',
+    heatingKw: s ? typedText(s.heatingKw, format) : '',
     cleaning: String(s?.cleaningAfterRunMinutes ?? 60),
     hours,
     typical: Object.fromEntries(
@@ -65,33 +76,61 @@ function draftOf(s: Still | null, units: UnitSystem): Draft {
   };
 }
 
-function StillForm({ still, units, onDone }: { still: Still | null; units: UnitSystem; onDone: (s: Still | null) => void }) {
-  const [d, setD] = useState<Draft>(() => draftOf(still, units));
+function StillForm({
+  still,
+  units,
+  numberFormat,
+  onDone,
+}: {
+  still: Still | null;
+  units: UnitSystem;
+  numberFormat: NumberFormat;
+  onDone: (s: Still | null) => void;
+}) {
+  const [d, setD] = useState<Draft>(() => draftOf(still, units, numberFormat));
   const [error, setError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
+  const { attach: fieldsRef, ...fe } = useFieldErrors();
   const idp = `sf-${still?.id ?? 'new'}`;
   async function save(e: React.FormEvent) {
     e.preventDefault();
+    setError(null);
+    // Numbers are read by the distillery's format; one that cannot be read is refused beside its field, nothing is sent.
+    const typed: Record<string, [string, string]> = {
+      capacityLitres: [d.capacity, `${idp}-cap`],
+      heatingKw: [d.heatingKw, `${idp}-kw`],
+      cleaningAfterRunMinutes: [d.cleaning, `${idp}-clean`],
+      ...Object.fromEntries(RUN_TYPES.map((t) => [`typicalMinutes.${t}`, [d.typical[t], `${idp}-t-${t}`]])),
+    };
+    const read = Object.fromEntries(Object.entries(typed).map(([k, [text]]) => [k, readNumber(text, numberFormat)]));
+    const refused = refuseUnread(Object.entries(typed).map(([k, [, inputId]]) => [inputId, read[k]!]));
+    if (refused) {
+      setError(refused);
+      return;
+    }
+    const n = (k: string) => (read[k]!.ok ? (read[k] as { value: number | null }).value : null);
     setBusy(true);
+    const capacity = n('capacityLitres');
     const body = {
       name: d.name,
       kind: d.kind,
-      capacityLitres: parseVolumeToLitres(Number(d.capacity), volumeUnitFor(units)),
-      heatingKw: Number(d.heatingKw),
-      cleaningAfterRunMinutes: Number(d.cleaning),
+      capacityLitres: capacity === null ? null : parseVolumeToLitres(capacity, volumeUnitFor(units)),
+      heatingKw: n('heatingKw'),
+      cleaningAfterRunMinutes: n('cleaningAfterRunMinutes'),
       operatingHours: WEEK.flatMap((w) =>
         d.hours[w] ? [{ weekday: w, open: d.hours[w]!.open, close: d.hours[w]!.close === '00:00' ? '24:00' : d.hours[w]!.close }] : [],
       ),
-      typicalMinutes: Object.fromEntries(RUN_TYPES.map((t) => [t, Number(d.typical[t])])),
+      typicalMinutes: Object.fromEntries(RUN_TYPES.map((t) => [t, n(`typicalMinutes.${t}`)])),
     };
     const r = still ? await send('PATCH', `/api/stills/${still.id}`, body) : await send('POST', '/api/stills', body);
     setBusy(false);
     if (r.ok) onDone(r.json.still ?? null);
-    else setError(r.json?.error?.message ?? 'Not saved.');
+    // Each message beside its field (the first one focused); the box says only what is not beside a field.
+    else setError(fe.fromAnswer(r.json?.error, { fallback: 'Not saved.' }) || null);
   }
   const set = (patch: Partial<Draft>) => setD({ ...d, ...patch });
   return (
-    <form onSubmit={save} className="mt-2 flex flex-col gap-3 rounded border border-line p-3">
+    <form ref={fieldsRef} onSubmit={save} noValidate className="mt-2 flex flex-col gap-3 rounded border border-line p-3">
       {error && (
         <p className="field-error" role="alert">
           {error}
@@ -101,6 +140,7 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
         <div className="field">
           <label htmlFor={`${idp}-name`}>Name</label>
           <input id={`${idp}-name`} className="input" value={d.name} onChange={(e) => set({ name: e.target.value })} required maxLength={80} />
+          <FieldError {...fe.error('name', `${idp}-name`)} />
         </div>
         <div className="field">
           <label htmlFor={`${idp}-kind`}>Kind</label>
@@ -111,45 +151,29 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
               </option>
             ))}
           </select>
+          <FieldError {...fe.error('kind', `${idp}-kind`)} />
         </div>
         <div className="field">
           <label htmlFor={`${idp}-cap`}>Working charge ({volumeUnitFor(units) === 'L' ? 'litres' : 'US gallons'})</label>
-          <input
+          <NumberField
             id={`${idp}-cap`}
-            className="input"
-            type="number"
-            min={1}
-            step="any"
+            format={numberFormat}
+            unit={volumeUnitFor(units)}
             value={d.capacity}
-            onChange={(e) => set({ capacity: e.target.value })}
+            onValueChange={(capacity) => set({ capacity })}
             required
           />
+          <FieldError {...fe.error('capacityLitres', `${idp}-cap`)} />
         </div>
         <div className="field">
           <label htmlFor={`${idp}-kw`}>Heating power (kW)</label>
-          <input
-            id={`${idp}-kw`}
-            className="input"
-            type="number"
-            min={0.1}
-            step="any"
-            value={d.heatingKw}
-            onChange={(e) => set({ heatingKw: e.target.value })}
-            required
-          />
+          <NumberField id={`${idp}-kw`} format={numberFormat} unit="kW" value={d.heatingKw} onValueChange={(heatingKw) => set({ heatingKw })} required />
+          <FieldError {...fe.error('heatingKw', `${idp}-kw`)} />
         </div>
         <div className="field">
           <label htmlFor={`${idp}-clean`}>Cleaning after each run (min, 0 = none)</label>
-          <input
-            id={`${idp}-clean`}
-            className="input"
-            type="number"
-            min={0}
-            max={1440}
-            value={d.cleaning}
-            onChange={(e) => set({ cleaning: e.target.value })}
-            required
-          />
+          <NumberField id={`${idp}-clean`} format={numberFormat} unit="min" value={d.cleaning} onValueChange={(cleaning) => set({ cleaning })} required />
+          <FieldError {...fe.error('cleaningAfterRunMinutes', `${idp}-clean`)} />
         </div>
       </div>
       <fieldset>
@@ -179,7 +203,7 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
                   />
                   <span aria-hidden="true">to</span>
                   <label className="sr-only" htmlFor={`${idp}-c${w}`}>
-                    {WEEKDAY_NAMES[w]} closes (00:00 = midnight)
+                    {WEEKDAY_NAMES[w]} closes (00:00 = midnight; before the opening time = the next day)
                   </label>
                   <input
                     id={`${idp}-c${w}`}
@@ -187,7 +211,11 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
                     type="time"
                     value={d.hours[w]!.close === '24:00' ? '00:00' : d.hours[w]!.close}
                     onChange={(e) => set({ hours: { ...d.hours, [w]: { ...d.hours[w]!, close: e.target.value } } })}
+                    aria-describedby={`${idp}-n${w}`}
                   />
+                  <span id={`${idp}-n${w}`} className="text-xs text-ink-soft" aria-live="polite">
+                    {hoursNote(d.hours[w]!)}
+                  </span>
                 </>
               )}
             </div>
@@ -200,14 +228,14 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
           {RUN_TYPES.map((t) => (
             <div key={t} className="field">
               <label htmlFor={`${idp}-t-${t}`}>{RUN_TYPE_LABELS[t]}</label>
-              <input
+              <NumberField
                 id={`${idp}-t-${t}`}
-                className="input"
-                type="number"
-                min={0}
+                format={numberFormat}
+                unit="min"
                 value={d.typical[t]}
-                onChange={(e) => set({ typical: { ...d.typical, [t]: e.target.value } })}
+                onValueChange={(text) => set({ typical: { ...d.typical, [t]: text } })}
               />
+              <FieldError {...fe.error(`typicalMinutes.${t}`, `${idp}-t-${t}`)} />
             </div>
           ))}
         </div>
@@ -224,7 +252,8 @@ function StillForm({ still, units, onDone }: { still: Still | null; units: UnitS
   );
 }
 
-export default function StillsEditor(props: { initial: Still[]; closures: Closure[]; units: UnitSystem }) {
+export default function StillsEditor(props: { initial: Still[]; closures: Closure[]; units: UnitSystem; numberFormat?: NumberFormat }) {
+  const numberFormat = props.numberFormat ?? 'point';
   const [stills, setStills] = useState(props.initial);
   const [closures, setClosures] = useState(props.closures);
   const [editing, setEditing] = useState<number | 'new' | null>(null);
@@ -287,7 +316,9 @@ export default function StillsEditor(props: { initial: Still[]; closures: Closur
               <span className="text-sm text-ink-soft">
                 {s.kind} · {formatVolume(s.capacityLitres, props.units)} · {s.heatingKw} kW · cleaning {s.cleaningAfterRunMinutes} min ·{' '}
                 {s.operatingHours.length
-                  ? s.operatingHours.map((h) => `${WEEKDAY_NAMES[h.weekday]!.slice(0, 3)} ${h.open}–${h.close}`).join(', ')
+                  ? s.operatingHours
+                      .map((h) => `${WEEKDAY_NAMES[h.weekday]!.slice(0, 3)} ${h.open}–${h.close}${closesNextDay(h) ? ' (next day)' : ''}`)
+                      .join(', ')
                   : 'no hours set'}
               </span>
               <span className="ml-auto flex gap-1">
@@ -315,6 +346,7 @@ export default function StillsEditor(props: { initial: Still[]; closures: Closur
               <StillForm
                 still={s}
                 units={props.units}
+                numberFormat={numberFormat}
                 onDone={(saved) => {
                   setEditing(null);
                   if (saved) {
@@ -331,6 +363,7 @@ export default function StillsEditor(props: { initial: Still[]; closures: Closur
         <StillForm
           still={null}
           units={props.units}
+          numberFormat={numberFormat}
           onDone={(saved) => {
             setEditing(null);
             if (saved) {

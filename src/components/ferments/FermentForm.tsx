@@ -1,4 +1,5 @@
 import { useState, type FormEvent } from 'react';
+import NumberField, { readNumber, refuseUnread, typedText, type NumberFormat } from '../forms/NumberField';
 
 export interface FermentFormProps {
   mode: 'create' | 'edit';
@@ -6,6 +7,8 @@ export interface FermentFormProps {
   volumeUnit: string;
   massUnit: string;
   timeZone: string;
+  /** How the distillery types numbers; the initial volume, OG and quantities are plain numbers ("1200.5"). */
+  numberFormat?: NumberFormat;
   washTypes: Array<{ id: number; name: string; terminalMin: number; terminalMax: number; typicalOg: number | null }>;
   fermenters: Array<{ id: number; name: string; capacity: string; busyWith: string | null; active: boolean }>;
   initial: {
@@ -21,10 +24,15 @@ export interface FermentFormProps {
   };
 }
 
-const num = (s: string): number => Number(s.trim().replace(',', '.'));
-
 export default function FermentForm(props: FermentFormProps) {
-  const [v, setV] = useState(props.initial);
+  const format = props.numberFormat ?? 'point';
+  const inFormat = (plain: string, decimals?: number) => (plain.trim() === '' ? '' : typedText(Number(plain), format, decimals));
+  const [v, setV] = useState(() => ({
+    ...props.initial,
+    volume: inFormat(props.initial.volume),
+    og: inFormat(props.initial.og, 3),
+    ingredients: props.initial.ingredients.map((i) => ({ ...i, quantity: inFormat(i.quantity) })),
+  }));
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [message, setMessage] = useState('');
   const [busy, setBusy] = useState(false);
@@ -36,8 +44,19 @@ export default function FermentForm(props: FermentFormProps) {
     const local: Record<string, string> = {};
     if (!v.code.trim()) local.code = 'Give the ferment a code.';
     if (!v.washTypeId) local.washTypeId = 'Choose a wash type.';
-    if (!Number.isFinite(num(v.volume)) || v.volume.trim() === '') local.volume = 'Enter the volume as a number.';
-    if (!Number.isFinite(num(v.og)) || v.og.trim() === '') local.og = 'Enter the OG as an SG, e.g. 1.060.';
+    const volume = readNumber(v.volume, format);
+    if (volume.ok && volume.value === null) local.volume = 'Enter the volume as a number.';
+    // A gravity has no thousands: "1.060" typed in comma format is refused, not read as 1060.
+    const og = readNumber(v.og, format, { grouping: false });
+    if (og.ok && og.value === null) local.og = `Enter the OG as an SG, e.g. ${typedText(1.06, format, 3)}.`;
+    const quantities = v.ingredients.map((i) => readNumber(i.quantity, format));
+    // A number that cannot be read is refused beside its field (NumberField): focus it, send nothing.
+    const unread = refuseUnread([['volume', volume], ['og', og], ...quantities.map((q, i) => [`ing-qty-${i}`, q] as [string, typeof q])]);
+    if (unread) {
+      setErrors(local);
+      setMessage(unread);
+      return;
+    }
     if (!v.pitchedAt) local.pitchedAt = 'Give the pitch time.';
     setErrors(local);
     if (Object.keys(local).length) {
@@ -50,12 +69,15 @@ export default function FermentForm(props: FermentFormProps) {
       code: v.code.trim(),
       washTypeId: v.washTypeId,
       fermenterId: v.fermenterId,
-      volume: num(v.volume),
+      volume: volume.ok ? volume.value : null,
       pitchedAt: v.pitchedAt,
-      og: num(v.og),
+      og: og.ok ? og.value : null,
       yeast: v.yeast.trim() || null,
       notes: v.notes.trim() || null,
-      ingredients: v.ingredients.filter((i) => i.name.trim()).map((i) => ({ name: i.name.trim(), quantity: num(i.quantity) || 0 })),
+      ingredients: v.ingredients.flatMap((i, j) => {
+        const q = quantities[j]!;
+        return i.name.trim() ? [{ name: i.name.trim(), quantity: q.ok ? (q.value ?? 0) : 0 }] : [];
+      }),
     };
     try {
       const res = await fetch(props.mode === 'create' ? '/api/ferments' : `/api/ferments/${props.fermentId}`, {
@@ -150,12 +172,12 @@ export default function FermentForm(props: FermentFormProps) {
       </div>
       <div className="field">
         <label htmlFor="volume">Volume ({props.volumeUnit})</label>
-        <input
+        <NumberField
           id="volume"
-          className="input"
-          inputMode="decimal"
+          format={format}
+          unit={props.volumeUnit}
           value={v.volume}
-          onChange={(e) => set('volume', e.target.value)}
+          onValueChange={(text) => set('volume', text)}
           aria-invalid={!!errors.volume}
           aria-describedby={described('volume')}
         />
@@ -176,13 +198,15 @@ export default function FermentForm(props: FermentFormProps) {
       </div>
       <div className="field">
         <label htmlFor="og">OG (SG)</label>
-        <input
+        <NumberField
           id="og"
-          className="input"
-          inputMode="decimal"
-          placeholder={wash?.typicalOg ? `typically ${wash.typicalOg.toFixed(3)}` : '1.060'}
+          format={format}
+          grouping={false}
+          unit="SG"
+          decimals={3}
+          placeholder={wash?.typicalOg ? `typically ${typedText(wash.typicalOg, format, 3)}` : typedText(1.06, format, 3)}
           value={v.og}
-          onChange={(e) => set('og', e.target.value)}
+          onValueChange={(text) => set('og', text)}
           aria-invalid={!!errors.og}
           aria-describedby={described('og')}
         />
@@ -221,19 +245,22 @@ export default function FermentForm(props: FermentFormProps) {
               <label htmlFor={`ing-qty-${i}`} className="sr-only">
                 Quantity of ingredient {i + 1} in {props.massUnit}
               </label>
-              <input
+              <NumberField
                 id={`ing-qty-${i}`}
-                className="input"
-                inputMode="decimal"
+                format={format}
+                unit={props.massUnit}
                 placeholder={props.massUnit}
                 value={ing.quantity}
-                onChange={(e) =>
+                onValueChange={(text) =>
                   set(
                     'ingredients',
-                    v.ingredients.map((x, j) => (j === i ? { ...x, quantity: e.target.value } : x)),
+                    v.ingredients.map((x, j) => (j === i ? { ...x, quantity: text } : x)),
                   )
                 }
+                aria-invalid={!!errors[`ingredients.${i}.quantity`]}
+                aria-describedby={described(`ingredients.${i}.quantity`)}
               />
+              {err(`ingredients.${i}.quantity`)}
             </div>
             <button
               type="button"

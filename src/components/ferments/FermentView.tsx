@@ -22,6 +22,8 @@ export interface ViewReading {
   note: string | null;
   takenByName: string | null;
   edited: boolean;
+  /** Held for review (implausible, or a likely duplicate): shown, not counted until accepted. */
+  reviewReason?: string | null;
 }
 export interface ViewForecast {
   status: ForecastStatus;
@@ -84,8 +86,26 @@ export default function FermentView(p: FermentViewProps) {
     } else setMessage('Could not delete the reading.');
   }
 
+  async function accept(r: ViewReading) {
+    const res = await fetch(`/api/readings/${r.id}/accept`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', accept: 'application/json' },
+      body: '{}',
+    }).catch(() => null);
+    if (res?.ok) {
+      setMessage(`Reading of ${fmtDateTime(r.takenAt, p.timeZone)} accepted: it counts in the forecast now.`);
+      await refresh();
+    } else {
+      const data = await res?.json().catch(() => null);
+      setMessage(data?.error?.message ?? 'Could not accept the reading.');
+    }
+  }
+
   const f = data.forecast;
-  const last = data.readings.length ? data.readings[data.readings.length - 1]! : null;
+  // Figures come from the readings that count; a held one is shown but waits to be accepted.
+  const counted = data.readings.filter((r) => !r.reviewReason);
+  const heldCount = data.readings.length - counted.length;
+  const last = counted.length ? counted[counted.length - 1]! : null;
   const stats = fermentStats(p.og, p.volumeLitres, last?.correctedSg ?? null, f?.predictedFg?.value ?? null, { min: p.terminalMin, max: p.terminalMax });
   const status = (f?.status ?? 'insufficient_data') as ForecastStatus;
   const toMs = (s: string | null) => (s ? new Date(s).getTime() : null);
@@ -175,7 +195,12 @@ export default function FermentView(p: FermentViewProps) {
       <section className="card mt-4" aria-labelledby="chart-heading">
         <h2 id="chart-heading">Gravity</h2>
         <GravityChart
-          readings={data.readings.map((r) => ({ t: new Date(r.takenAt).getTime(), sg: r.correctedSg, lowConfidence: r.lowConfidence }))}
+          readings={data.readings.map((r) => ({
+            t: new Date(r.takenAt).getTime(),
+            sg: r.correctedSg,
+            lowConfidence: r.lowConfidence,
+            held: r.reviewReason ?? null,
+          }))}
           curve={(f?.fit?.curve ?? []).map((c) => ({ t: new Date(c.t).getTime(), sg: c.sg }))}
           og={p.og}
           pitchedAt={new Date(p.pitchedAt).getTime()}
@@ -210,6 +235,12 @@ export default function FermentView(p: FermentViewProps) {
             {message}
           </p>
         </div>
+        {heldCount > 0 && (
+          <p className="mx-4 mb-2 rounded border-l-4 border-ember bg-ember-soft p-2 text-sm" data-testid="held-summary">
+            {heldCount === 1 ? '1 reading is' : `${heldCount} readings are`} held for review: shown below, but left out of the forecast and the stability rule
+            until {p.canWrite ? 'you accept' : 'someone accepts'} {heldCount === 1 ? 'it' : 'them'}.
+          </p>
+        )}
         {data.readings.length === 0 ? (
           <p className="px-4 pb-4">No readings yet.</p>
         ) : (
@@ -233,7 +264,12 @@ export default function FermentView(p: FermentViewProps) {
               </thead>
               <tbody>
                 {shown.map((r) => (
-                  <tr key={r.id} className={r.id === p.highlightId ? 'bg-barley-soft' : ''} data-reading={r.id}>
+                  <tr
+                    key={r.id}
+                    className={r.id === p.highlightId ? 'bg-barley-soft' : r.reviewReason ? 'bg-ember-soft' : ''}
+                    data-reading={r.id}
+                    data-held={r.reviewReason ? '' : undefined}
+                  >
                     <td className="whitespace-nowrap">{fmtDateTime(r.takenAt, p.timeZone)}</td>
                     <td className="font-semibold tabular-nums">
                       {r.correctedSg.toFixed(4)}
@@ -247,6 +283,11 @@ export default function FermentView(p: FermentViewProps) {
                     </td>
                     <td>{r.takenByName ?? '–'}</td>
                     <td className="text-sm">
+                      {r.reviewReason && (
+                        <span className="block font-semibold text-ember" data-testid="held-reason">
+                          Held for review: {r.reviewReason}
+                        </span>
+                      )}
                       {r.lowConfidence && <span className="tag tag-souring mr-1">less certain</span>}
                       {r.source === 'upload' && <span className="tag tag-quiet mr-1">logger</span>}
                       {r.edited && <span className="tag tag-quiet mr-1">edited</span>}
@@ -256,6 +297,11 @@ export default function FermentView(p: FermentViewProps) {
                     </td>
                     {p.canWrite && (
                       <td className="whitespace-nowrap">
+                        {r.reviewReason && (
+                          <button type="button" className="mr-3 py-2 font-semibold text-verdigris underline" onClick={() => accept(r)}>
+                            Accept<span className="sr-only"> reading of {fmtDateTime(r.takenAt, p.timeZone)}</span>
+                          </button>
+                        )}
                         <a href={`/ferments/${p.fermentId}/log?reading=${r.id}`} className="mr-3 inline-block py-2">
                           Edit<span className="sr-only"> reading of {fmtDateTime(r.takenAt, p.timeZone)}</span>
                         </a>

@@ -5,6 +5,8 @@ export interface ChartReading {
   t: number;
   sg: number;
   lowConfidence: boolean;
+  /** Why the reading is held for review (not counted in the curve or the stability rule); absent when it counts. */
+  held?: string | null;
 }
 export interface ChartProps {
   readings: ChartReading[];
@@ -42,8 +44,10 @@ export default function GravityChart(p: ChartProps) {
     return () => ro.disconnect();
   }, []);
 
-  const hydro = p.readings.filter((r) => !r.lowConfidence);
-  const refr = p.readings.filter((r) => r.lowConfidence);
+  const counted = p.readings.filter((r) => !r.held);
+  const hydro = counted.filter((r) => !r.lowConfidence);
+  const refr = counted.filter((r) => r.lowConfidence);
+  const held = p.readings.filter((r) => r.held);
   const lastT = p.readings.length ? Math.max(...p.readings.map((r) => r.t)) : p.pitchedAt;
   const xMax = Math.max(lastT, p.now, p.readyP90 ?? 0, p.curve.length ? p.curve[p.curve.length - 1]!.t : 0) + DAY / 4;
   const xMin = p.pitchedAt - DAY / 8;
@@ -142,8 +146,23 @@ export default function GravityChart(p: ChartProps) {
                 isAnimationActive={false}
               />
             )}
+            {held.length > 0 && (
+              <Scatter
+                data={held}
+                dataKey="sg"
+                name="Held for review (not counted)"
+                shape="cross"
+                fill="#b3261e"
+                stroke="#b3261e"
+                strokeWidth={1.5}
+                isAnimationActive={false}
+              />
+            )}
             <Tooltip
-              formatter={(v: unknown) => (typeof v === 'number' ? v.toFixed(4) : String(v))}
+              formatter={(v: unknown, name: unknown, item: { payload?: ChartReading } | undefined) => {
+                const text = typeof v === 'number' ? v.toFixed(4) : String(v);
+                return item?.payload?.held ? [`${text} (held: ${item.payload.held})`, String(name)] : text;
+              }}
               labelFormatter={(t: unknown) =>
                 typeof t === 'number'
                   ? new Intl.DateTimeFormat('en-GB', { timeZone: p.timeZone, dateStyle: 'medium', timeStyle: 'short' }).format(new Date(t))
@@ -161,6 +180,7 @@ export default function GravityChart(p: ChartProps) {
       <figcaption className="mt-1 text-xs text-ink-soft">
         Green band: this wash type's expected finishing gravity ({p.terminalMin.toFixed(3)}–{p.terminalMax.toFixed(3)}). Dashed gold line: fitted curve; gold
         area: ready window (P10–P90). Grey area: the current flat stretch. Triangles: refractometer readings (less certain).
+        {held.length > 0 && ` Red crosses: ${held.length} reading${held.length === 1 ? '' : 's'} held for review, left out of the curve until accepted.`}
       </figcaption>
     </figure>
   );

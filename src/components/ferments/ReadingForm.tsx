@@ -3,23 +3,31 @@ import {
   READING_METHOD_LABELS,
   READING_METHODS,
   READING_UNIT_LABELS,
+  READING_UNIT_SYMBOLS,
   READING_UNITS,
   type ReadingMethod,
   type ReadingUnit,
   type TemperatureUnit,
 } from '../../lib/vocabulary';
+import NumberField, { readNumber, refuseUnread, typedText, type NumberFormat } from '../forms/NumberField';
 
 export interface ReadingFormProps {
   fermentId: number;
   code: string;
   tempUnit: TemperatureUnit;
   timeZone: string;
+  /** How the distillery types numbers; the initial values are plain numbers ("1.012"). */
+  numberFormat?: NumberFormat;
   /** Present when editing an existing reading. */
   readingId?: number;
   initial: { value: string; unit: ReadingUnit; method: ReadingMethod; sampleTemp: string; takenAt: string; note: string; fermentTemp: string; ph: string };
 }
 
-const num = (s: string): number | null => (s.trim() === '' ? null : Number(s.trim().replace(',', '.')));
+/** The server's doubt about a reading (409 confirm_reading): shown with a "save as entered" and, when it has one, the likely unit. */
+interface Doubt {
+  message: string;
+  suggestion: { value: number; unit: ReadingUnit } | null;
+}
 
 function Choice<T extends string>({
   legend,
@@ -54,24 +62,47 @@ function Choice<T extends string>({
 
 /** Phone-first reading entry: big targets, decimal keyboard, field-level messages from the server. */
 export default function ReadingForm(p: ReadingFormProps) {
-  const [v, setV] = useState(p.initial);
+  const format = p.numberFormat ?? 'point';
+  const inFormat = (plain: string) => (plain.trim() === '' ? '' : typedText(Number(plain), format));
+  const [v, setV] = useState(() => ({
+    ...p.initial,
+    value: inFormat(p.initial.value),
+    sampleTemp: inFormat(p.initial.sampleTemp),
+    fermentTemp: inFormat(p.initial.fermentTemp),
+    ph: inFormat(p.initial.ph),
+  }));
+  const [doubt, setDoubt] = useState<Doubt | null>(null);
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [message, setMessage] = useState('');
   const [busy, setBusy] = useState(false);
-  const set = <K extends keyof typeof v>(k: K, value: (typeof v)[K]) => setV((old) => ({ ...old, [k]: value }));
+  const set = <K extends keyof typeof v>(k: K, value: (typeof v)[K]) => {
+    setDoubt(null);
+    setV((old) => ({ ...old, [k]: value }));
+  };
+  // Gravity, temperatures and pH never carry thousands: "1.012" in comma format is refused ("did you mean 1,012?").
+  const read = (text: string, negative = false) => readNumber(text, format, { grouping: false, negative });
 
-  async function submit(e: FormEvent) {
+  async function submit(e: FormEvent, confirm = false) {
     e.preventDefault();
     const local: Record<string, string> = {};
-    const value = num(v.value);
-    if (value === null || !Number.isFinite(value)) local.value = 'Enter the reading as a number, e.g. 1.012.';
-    const sampleTemp = num(v.sampleTemp);
-    if (sampleTemp !== null && !Number.isFinite(sampleTemp)) local.sampleTemp = 'Enter the temperature as a number.';
-    if (v.method === 'hydrometer' && sampleTemp === null) local.sampleTemp = 'A hydrometer reading needs the sample temperature.';
-    const fermentTemp = num(v.fermentTemp);
-    const ph = num(v.ph);
-    if (fermentTemp !== null && !Number.isFinite(fermentTemp)) local.fermentTemp = 'Enter the temperature as a number.';
-    if (ph !== null && !Number.isFinite(ph)) local.ph = 'Enter the pH as a number.';
+    const value = read(v.value);
+    const sampleTemp = read(v.sampleTemp, true);
+    const fermentTemp = read(v.fermentTemp, true);
+    const ph = read(v.ph);
+    const unread = refuseUnread([
+      ['value', value],
+      ['sampleTemp', sampleTemp],
+      ['fermentTemp', fermentTemp],
+      ['ph', ph],
+    ]);
+    if (unread) {
+      setErrors({});
+      setMessage(unread);
+      return;
+    }
+    const n = (r: typeof value) => (r.ok ? r.value : null);
+    if (n(value) === null) local.value = `Enter the reading as a number, e.g. ${typedText(1.012, format, 3)}.`;
+    if (v.method === 'hydrometer' && n(sampleTemp) === null) local.sampleTemp = 'A hydrometer reading needs the sample temperature.';
     setErrors(local);
     if (Object.keys(local).length) {
       setMessage('Check the fields marked below.');
@@ -79,7 +110,18 @@ export default function ReadingForm(p: ReadingFormProps) {
     }
     setBusy(true);
     setMessage('');
-    const body = { value, unit: v.unit, method: v.method, sampleTemp, takenAt: v.takenAt || null, note: v.note.trim() || null, fermentTemp, ph };
+    setDoubt(null);
+    const body = {
+      value: n(value),
+      unit: v.unit,
+      method: v.method,
+      sampleTemp: n(sampleTemp),
+      takenAt: v.takenAt || null,
+      note: v.note.trim() || null,
+      fermentTemp: n(fermentTemp),
+      ph: n(ph),
+      ...(confirm ? { confirm: true } : {}),
+    };
     try {
       const res = await fetch(p.readingId ? `/api/readings/${p.readingId}` : `/api/ferments/${p.fermentId}/readings`, {
         method: p.readingId ? 'PATCH' : 'POST',
@@ -87,6 +129,12 @@ export default function ReadingForm(p: ReadingFormProps) {
         body: JSON.stringify(body),
       });
       const data = await res.json().catch(() => null);
+      if (res.status === 409 && data?.error?.code === 'confirm_reading') {
+        // Held: the person sees what was entered (value and unit) and confirms, or corrects it.
+        setErrors({});
+        setDoubt({ message: data.error.message, suggestion: data.confirm?.suggestion ?? null });
+        return;
+      }
       if (!res.ok) {
         setErrors(data?.error?.fields ?? {});
         setMessage(data?.error?.message ?? 'The reading was not saved.');
@@ -123,20 +171,24 @@ export default function ReadingForm(p: ReadingFormProps) {
         legend="Instrument"
         name="method"
         value={v.method}
-        onChange={(m) => setV((o) => ({ ...o, method: m, unit: m === 'refractometer' && o.unit === 'sg' ? 'brix' : o.unit }))}
+        onChange={(m) => {
+          setDoubt(null);
+          setV((o) => ({ ...o, method: m, unit: m === 'refractometer' && o.unit === 'sg' ? 'brix' : o.unit }));
+        }}
         options={READING_METHODS.map((m) => [m, READING_METHOD_LABELS[m]])}
       />
       <Choice legend="Unit" name="unit" value={v.unit} onChange={(u) => set('unit', u)} options={READING_UNITS.map((u) => [u, READING_UNIT_LABELS[u]])} />
       <div className="field">
         <label htmlFor="value">{valueLabel}</label>
-        <input
+        <NumberField
           id="value"
           className={big}
-          inputMode="decimal"
-          autoComplete="off"
-          placeholder={v.unit === 'sg' ? '1.012' : '8.5'}
+          format={format}
+          grouping={false}
+          unit={READING_UNIT_SYMBOLS[v.unit]}
+          placeholder={v.unit === 'sg' ? typedText(1.012, format, 3) : typedText(8.5, format, 1)}
           value={v.value}
-          onChange={(e) => set('value', e.target.value)}
+          onValueChange={(text) => set('value', text)}
           {...aria('value')}
         />
         {err('value')}
@@ -145,14 +197,16 @@ export default function ReadingForm(p: ReadingFormProps) {
         <label htmlFor="sampleTemp">
           Sample temperature (°{p.tempUnit}){v.method === 'hydrometer' ? '' : ' – optional'}
         </label>
-        <input
+        <NumberField
           id="sampleTemp"
           className={big}
-          inputMode="decimal"
-          autoComplete="off"
+          format={format}
+          grouping={false}
+          negative
+          unit={`°${p.tempUnit}`}
           placeholder={p.tempUnit === 'F' ? '68' : '20'}
           value={v.sampleTemp}
-          onChange={(e) => set('sampleTemp', e.target.value)}
+          onValueChange={(text) => set('sampleTemp', text)}
           {...aria('sampleTemp')}
         />
         {err('sampleTemp')}
@@ -179,26 +233,29 @@ export default function ReadingForm(p: ReadingFormProps) {
         <div className="mt-2 grid grid-cols-2 gap-3">
           <div className="field">
             <label htmlFor="fermentTemp">Wash temp (°{p.tempUnit})</label>
-            <input
+            <NumberField
               id="fermentTemp"
               className="input text-lg"
-              inputMode="decimal"
-              autoComplete="off"
+              format={format}
+              grouping={false}
+              negative
+              unit={`°${p.tempUnit}`}
               value={v.fermentTemp}
-              onChange={(e) => set('fermentTemp', e.target.value)}
+              onValueChange={(text) => set('fermentTemp', text)}
               {...aria('fermentTemp')}
             />
             {err('fermentTemp')}
           </div>
           <div className="field">
             <label htmlFor="ph">pH</label>
-            <input
+            <NumberField
               id="ph"
               className="input text-lg"
-              inputMode="decimal"
-              autoComplete="off"
+              format={format}
+              grouping={false}
+              unit="pH"
               value={v.ph}
-              onChange={(e) => set('ph', e.target.value)}
+              onValueChange={(text) => set('ph', text)}
               {...aria('ph')}
             />
             {err('ph')}
@@ -208,6 +265,32 @@ export default function ReadingForm(p: ReadingFormProps) {
       <p role="status" aria-live="polite" className={Object.keys(errors).length ? 'field-error font-semibold' : ''} data-testid="form-message">
         {message}
       </p>
+      {doubt && (
+        <div role="alert" className="rounded border-l-4 border-ember bg-ember-soft p-3 text-ink" data-testid="reading-doubt">
+          <p className="font-semibold">Check this reading</p>
+          <p className="mt-1">{doubt.message}</p>
+          <div className="mt-3 flex flex-col gap-2">
+            <button type="button" className="btn min-h-12 justify-center" disabled={busy} onClick={(e) => void submit(e, true)}>
+              Save as entered ({v.value} {READING_UNIT_SYMBOLS[v.unit]})
+            </button>
+            {doubt.suggestion && (
+              <button
+                type="button"
+                className="btn btn-quiet min-h-12 justify-center"
+                onClick={() => {
+                  const s = doubt.suggestion!;
+                  setV((old) => ({ ...old, value: typedText(s.value, format, s.unit === 'sg' ? 3 : undefined), unit: s.unit }));
+                  setDoubt(null);
+                  document.getElementById('value')?.focus();
+                }}
+              >
+                Change to {typedText(doubt.suggestion.value, format, doubt.suggestion.unit === 'sg' ? 3 : undefined)}{' '}
+                {READING_UNIT_SYMBOLS[doubt.suggestion.unit]}
+              </button>
+            )}
+          </div>
+        </div>
+      )}
       <button className="btn min-h-14 w-full justify-center text-lg" type="submit" disabled={busy}>
         {busy ? 'Saving…' : p.readingId ? 'Save changes' : 'Save reading'}
       </button>

@@ -2,6 +2,7 @@ import { useMemo, useState, type FormEvent } from 'react';
 import { AlcoholInputError, alcoholmeterCorrection, laa, laaToProofGallons } from '../../lib/alcohol';
 import { FRACTION_LABELS, READING_TEMP_MAX_C, READING_TEMP_MIN_C, type Fraction } from '../../lib/reports';
 import { celsiusToFahrenheit, fahrenheitToCelsius, usGallonsToLitres, type UnitSystem } from '../../lib/units';
+import NumberField, { readNumber, refusalOf, refuseUnread, typedText, type NumberFormat } from '../forms/NumberField';
 
 export interface RecordFractionInit {
   fraction: Fraction;
@@ -16,6 +17,8 @@ export interface RunRecordFormProps {
   version: number;
   status: 'running' | 'done';
   units: UnitSystem;
+  /** How the distillery types numbers; the initial charge and fraction figures are plain numbers ("1200.5"). */
+  numberFormat?: NumberFormat;
   stillCapacityLitres: number;
   allowed: Fraction[];
   charge: { volume: string; abv: string };
@@ -23,7 +26,13 @@ export interface RunRecordFormProps {
   expectedLaa: number | null;
 }
 
-const num = (s: string): number | null => (s.trim() === '' ? null : Number(s.trim().replace(',', '.')));
+/** Which fields may carry thousands (volumes) and a minus (temperatures); strengths never carry thousands. */
+type Kind = 'volume' | 'strength' | 'temp';
+const READ_OPTIONS: Record<Kind, { grouping: boolean; negative: boolean }> = {
+  volume: { grouping: true, negative: false },
+  strength: { grouping: false, negative: false },
+  temp: { grouping: false, negative: true },
+};
 const f1 = (n: number) => n.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 });
 const f2 = (n: number) => n.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
 
@@ -35,14 +44,26 @@ const HINTS: Partial<Record<Fraction, string>> = {
 
 /** Phone-first run record: the distiller's own cuts, corrected to 20 °C as they type. */
 export default function RunRecordForm(p: RunRecordFormProps) {
+  const format = p.numberFormat ?? 'point';
+  /** A field's text read by the distillery's format: null when empty, NaN when it cannot be read (refused beside the field). */
+  const num = (text: string, kind: Kind): number | null => {
+    const r = readNumber(text, format, READ_OPTIONS[kind]);
+    return r.ok ? r.value : NaN;
+  };
+  const inFormat = (plain: string) => (plain.trim() === '' ? '' : typedText(Number(plain), format));
   const us = p.units === 'us';
   const volUnit = us ? 'gal' : 'L';
   const tempUnit = us ? '°F' : '°C';
   const toL = (v: number) => (us ? usGallonsToLitres(v) : v);
   const toC = (t: number) => (us ? fahrenheitToCelsius(t) : t);
-  const [charge, setCharge] = useState(p.charge);
+  const [charge, setCharge] = useState(() => ({ volume: inFormat(p.charge.volume), abv: inFormat(p.charge.abv) }));
   const [rows, setRows] = useState<RecordFractionInit[]>(() =>
-    p.allowed.map((fraction) => p.fractions.find((f) => f.fraction === fraction) ?? { fraction, volume: '', reading: '', temp: '', cutNote: '' }),
+    p.allowed.map((fraction) => {
+      const f = p.fractions.find((x) => x.fraction === fraction);
+      return f
+        ? { ...f, volume: inFormat(f.volume), reading: inFormat(f.reading), temp: inFormat(f.temp) }
+        : { fraction, volume: '', reading: '', temp: '', cutNote: '' };
+    }),
   );
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [message, setMessage] = useState('');
@@ -65,9 +86,9 @@ export default function RunRecordForm(p: RunRecordFormProps) {
   const live = useMemo(
     () =>
       rows.map((r) => {
-        const v = num(r.volume);
-        const rd = num(r.reading);
-        const t = num(r.temp);
+        const v = num(r.volume, 'volume');
+        const rd = num(r.reading, 'strength');
+        const t = num(r.temp, 'temp');
         if (v === null || rd === null || t === null || ![v, rd, t].every(Number.isFinite)) return null;
         try {
           const abv20 = alcoholmeterCorrection(rd, toC(t));
@@ -78,17 +99,32 @@ export default function RunRecordForm(p: RunRecordFormProps) {
           throw err;
         }
       }),
-    // toL and toC are fixed by `us`.
+    // toL and toC are fixed by `us`, num by the format.
     // eslint-disable-next-line react-hooks/exhaustive-deps
     [rows, us],
   );
   const collected = live.reduce((s, x) => s + (x?.laa ?? 0), 0);
-  const cv = num(charge.volume);
-  const ca = num(charge.abv);
+  const cv = num(charge.volume, 'volume');
+  const ca = num(charge.abv, 'strength');
   const charged = cv !== null && ca !== null && Number.isFinite(cv) && Number.isFinite(ca) && cv >= 0 && ca >= 0 && ca <= 100 ? laa(toL(cv), ca) : null;
 
-  function collect(): { body: unknown | null; local: Record<string, string> } {
+  function collect(): { body: unknown | null; local: Record<string, string>; unread?: string } {
     const local: Record<string, string> = {};
+    // A number that cannot be read is refused beside its field: focus it and send nothing.
+    const unread = refuseUnread([
+      ['charge-volume', readNumber(charge.volume, format, READ_OPTIONS.volume)],
+      ['charge-abv', readNumber(charge.abv, format, READ_OPTIONS.strength)],
+      ...rows.flatMap((r) =>
+        (
+          [
+            ['volume', 'volume'],
+            ['reading', 'strength'],
+            ['temp', 'temp'],
+          ] as const
+        ).map(([f, kind]) => [`${r.fraction}-${f}`, readNumber(r[f], format, READ_OPTIONS[kind])] as [string, ReturnType<typeof readNumber>]),
+      ),
+    ]);
+    if (unread) return { body: null, local, unread };
     if (cv !== null && !Number.isFinite(cv)) local.chargeLitres = 'Enter the charge volume as a number.';
     if (ca !== null && !Number.isFinite(ca)) local.chargeAbv = 'Enter the charge strength as a number.';
     const tMin = us ? celsiusToFahrenheit(READING_TEMP_MIN_C) : READING_TEMP_MIN_C;
@@ -97,9 +133,9 @@ export default function RunRecordForm(p: RunRecordFormProps) {
     rows.forEach((r) => {
       const blank = [r.volume, r.reading, r.temp].every((s) => s.trim() === '') && r.cutNote.trim() === '';
       if (blank) return;
-      const v = num(r.volume);
-      const rd = num(r.reading);
-      const t = num(r.temp);
+      const v = num(r.volume, 'volume');
+      const rd = num(r.reading, 'strength');
+      const t = num(r.temp, 'temp');
       if (v === null || !Number.isFinite(v)) local[`${r.fraction}.volume`] = 'Enter the volume collected.';
       if (rd === null || !Number.isFinite(rd)) local[`${r.fraction}.reading`] = 'Enter the alcoholmeter reading (% vol).';
       if (t === null || !Number.isFinite(t)) local[`${r.fraction}.temp`] = `Enter the temperature the reading was taken at (${tempUnit}).`;
@@ -139,10 +175,10 @@ export default function RunRecordForm(p: RunRecordFormProps) {
 
   async function submit(e: FormEvent, finish: boolean) {
     e.preventDefault();
-    const { body, local } = collect();
+    const { body, local, unread } = collect();
     setErrors(local);
     if (!body) {
-      setMessage('Check the fields marked below.');
+      setMessage(unread ?? 'Check the fields marked below.');
       return;
     }
     if (finish && !window.confirm('Mark this run done now? The still must be shut down and safe.')) return;
@@ -192,16 +228,20 @@ export default function RunRecordForm(p: RunRecordFormProps) {
     <form onSubmit={(e) => submit(e, false)} noValidate className="flex flex-col gap-4" aria-describedby="record-status">
       <fieldset className="card">
         <legend className="px-1 text-lg font-semibold">Charge</legend>
-        <div className="grid grid-cols-2 items-end gap-3">
+        {/* Top-aligned, labels of two lines' height: the value as understood under an input does not shift its neighbour. */}
+        <div className="grid grid-cols-2 items-start gap-3">
           <div className="field">
-            <label htmlFor="charge-volume">Volume ({volUnit})</label>
-            <input
+            <label htmlFor="charge-volume" className="flex min-h-12 items-end">
+              Volume ({volUnit})
+            </label>
+            <NumberField
               id="charge-volume"
               className={inputCls('chargeLitres')}
-              inputMode="decimal"
+              format={format}
+              unit={volUnit}
               value={charge.volume}
-              onChange={(e) => {
-                setCharge({ ...charge, volume: e.target.value });
+              onValueChange={(volume) => {
+                setCharge({ ...charge, volume });
                 clearError('chargeLitres');
               }}
               aria-invalid={!!err('chargeLitres')}
@@ -210,14 +250,18 @@ export default function RunRecordForm(p: RunRecordFormProps) {
             {errorText('chargeLitres')}
           </div>
           <div className="field">
-            <label htmlFor="charge-abv">Strength (% vol at 20 °C)</label>
-            <input
+            <label htmlFor="charge-abv" className="flex min-h-12 items-end">
+              Strength (% vol at 20 °C)
+            </label>
+            <NumberField
               id="charge-abv"
               className={inputCls('chargeAbv')}
-              inputMode="decimal"
+              format={format}
+              grouping={false}
+              unit="% vol"
               value={charge.abv}
-              onChange={(e) => {
-                setCharge({ ...charge, abv: e.target.value });
+              onValueChange={(abv) => {
+                setCharge({ ...charge, abv });
                 clearError('chargeAbv');
               }}
               aria-invalid={!!err('chargeAbv')}
@@ -236,6 +280,16 @@ export default function RunRecordForm(p: RunRecordFormProps) {
         const id = (f: string) => `${r.fraction}-${f}`;
         const k = (f: string) => `${r.fraction}.${f}`;
         const x = live[i];
+        // Three narrow inputs in a row: what cannot be read is said below the row (with the field's name), not under each input.
+        const refusals = (
+          [
+            ['volume', 'volume', 'Volume'],
+            ['reading', 'strength', 'Alcoholmeter'],
+            ['temp', 'temp', 'Temperature'],
+          ] as const
+        ).map(([f, kind, name]) => ({ f, name, id: `${id(f)}-understood`, message: refusalOf(r[f], format, READ_OPTIONS[kind]) }));
+        const refusedBy = (f: string) => refusals.find((x) => x.f === f && x.message)?.id;
+        const describe = (f: string) => [describedBy(k(f)), refusedBy(f)].filter(Boolean).join(' ') || undefined;
         return (
           <fieldset key={r.fraction} className="card" data-fraction={r.fraction}>
             <legend className="px-1 text-lg font-semibold">{FRACTION_LABELS[r.fraction]}</legend>
@@ -243,41 +297,57 @@ export default function RunRecordForm(p: RunRecordFormProps) {
             <div className="grid grid-cols-3 items-end gap-2">
               <div className="field">
                 <label htmlFor={id('volume')}>Volume ({volUnit})</label>
-                <input
+                <NumberField
                   id={id('volume')}
                   className={inputCls(k('volume'))}
-                  inputMode="decimal"
+                  format={format}
+                  unit={volUnit}
                   value={r.volume}
-                  onChange={(e) => setRow(i, 'volume', e.target.value)}
+                  onValueChange={(text) => setRow(i, 'volume', text)}
                   aria-invalid={!!err(k('volume'))}
-                  aria-describedby={describedBy(k('volume'))}
+                  aria-describedby={describe('volume')}
+                  echo={false}
                 />
               </div>
               <div className="field">
                 <label htmlFor={id('reading')}>Alcoholmeter (% vol)</label>
-                <input
+                <NumberField
                   id={id('reading')}
                   className={inputCls(k('reading'))}
-                  inputMode="decimal"
+                  format={format}
+                  grouping={false}
+                  unit="% vol"
                   value={r.reading}
-                  onChange={(e) => setRow(i, 'reading', e.target.value)}
+                  onValueChange={(text) => setRow(i, 'reading', text)}
                   aria-invalid={!!err(k('reading'))}
-                  aria-describedby={describedBy(k('reading'))}
+                  aria-describedby={describe('reading')}
+                  echo={false}
                 />
               </div>
               <div className="field">
                 <label htmlFor={id('temp')}>at ({tempUnit})</label>
-                <input
+                <NumberField
                   id={id('temp')}
                   className={inputCls(k('temp'))}
-                  inputMode="decimal"
+                  format={format}
+                  grouping={false}
+                  negative
+                  unit={tempUnit}
                   value={r.temp}
-                  onChange={(e) => setRow(i, 'temp', e.target.value)}
+                  onValueChange={(text) => setRow(i, 'temp', text)}
                   aria-invalid={!!err(k('temp'))}
-                  aria-describedby={describedBy(k('temp'))}
+                  aria-describedby={describe('temp')}
+                  echo={false}
                 />
               </div>
             </div>
+            {refusals.map((x) =>
+              x.message ? (
+                <p key={x.f} id={x.id} className="field-error">
+                  {x.name}: {x.message}
+                </p>
+              ) : null,
+            )}
             {errorText(k('volume'))}
             {errorText(k('reading'))}
             {errorText(k('temp'))}

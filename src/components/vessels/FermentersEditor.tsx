@@ -1,5 +1,8 @@
 import { useState } from 'react';
 import { litresToUsGallons } from '../../lib/units';
+import FieldError from '../forms/FieldError';
+import { useFieldErrors } from '../forms/useFieldErrors';
+import NumberField, { readNumber, refuseUnread, typedText, type NumberFormat } from '../forms/NumberField';
 
 export interface FermenterItem {
   id: number;
@@ -9,13 +12,20 @@ export interface FermenterItem {
   holds: string | null;
 }
 
-const num = (s: string) => Number(s.trim().replace(',', '.'));
-
-/** Managers add fermenters, rename them, change capacity, retire them. */
-export default function FermentersEditor({ initial, volumeUnit }: { initial: FermenterItem[]; volumeUnit: string }) {
-  const [items, setItems] = useState(initial);
+/** Managers add fermenters, rename them, change capacity, retire them. Capacities are typed in the distillery's number format. */
+export default function FermentersEditor({
+  initial,
+  volumeUnit,
+  numberFormat = 'point',
+}: {
+  /** Capacities as plain numbers ("1200.5"); written here in the distillery's number format. */
+  initial: FermenterItem[];
+  volumeUnit: string;
+  numberFormat?: NumberFormat;
+}) {
+  const [items, setItems] = useState(() => initial.map((i) => ({ ...i, capacity: typedText(Number(i.capacity), numberFormat) })));
   const [draft, setDraft] = useState({ name: '', capacity: '' });
-  const [errors, setErrors] = useState<Record<string, string>>({});
+  const { attach: fieldsRef, ...fe } = useFieldErrors();
   const [message, setMessage] = useState('');
 
   async function save(id: number | null, body: Record<string, unknown>, key: string) {
@@ -27,18 +37,26 @@ export default function FermentersEditor({ initial, volumeUnit }: { initial: Fer
     }).catch(() => null);
     const data = await res?.json().catch(() => null);
     if (!res?.ok) {
-      const fields = data?.error?.fields ?? {};
-      setErrors(Object.fromEntries(Object.entries(fields).map(([k, v]) => [`${key}.${k}`, String(v)])));
-      setMessage(data?.error?.message ?? 'Not saved.');
+      // Each message beside its field in this row (the first focused); the status line says only the rest.
+      setMessage(fe.fromAnswer(data?.error, { scope: key, fallback: 'Not saved.' }));
       return null;
     }
-    setErrors({});
+    fe.clear();
     return data.fermenter as { id: number; name: string; capacityLitres: number; active: boolean; activeFerment: { code: string } | null };
   }
-  const display = (litres: number) => (volumeUnit === 'gal' ? String(Number(litresToUsGallons(litres).toFixed(1))) : String(Number(litres.toFixed(1))));
+  const display = (litres: number) => typedText(Number((volumeUnit === 'gal' ? litresToUsGallons(litres) : litres).toFixed(1)), numberFormat);
+  /** The capacity as the distillery's format reads it; when it cannot be read (the refusal is beside the field) nothing is sent. */
+  function capacityOf(text: string, inputId: string): number | null | undefined {
+    const r = readNumber(text, numberFormat);
+    const refused = refuseUnread([[inputId, r]]);
+    if (refused) setMessage(refused);
+    return r.ok ? r.value : undefined;
+  }
 
   async function add() {
-    const f = await save(null, { name: draft.name, capacity: num(draft.capacity) }, 'new');
+    const capacity = capacityOf(draft.capacity, 'fv-new-cap');
+    if (capacity === undefined) return;
+    const f = await save(null, { name: draft.name, capacity }, 'new');
     if (f) {
       setItems([...items, { id: f.id, name: f.name, capacity: display(f.capacityLitres), active: f.active, holds: null }]);
       setDraft({ name: '', capacity: '' });
@@ -47,21 +65,18 @@ export default function FermentersEditor({ initial, volumeUnit }: { initial: Fer
   }
   async function update(item: FermenterItem, patch: Partial<FermenterItem>) {
     const next = { ...item, ...patch };
-    const f = await save(item.id, { name: next.name, capacity: num(next.capacity), active: next.active }, String(item.id));
+    const capacity = capacityOf(next.capacity, `fv-${item.id}-cap`);
+    if (capacity === undefined) return;
+    const f = await save(item.id, { name: next.name, capacity, active: next.active }, String(item.id));
     if (f) {
       setItems(items.map((i) => (i.id === item.id ? { ...next, capacity: display(f.capacityLitres) } : i)));
       setMessage(`Saved ${f.name}.`);
     }
   }
-  const err = (k: string) =>
-    errors[k] ? (
-      <p className="field-error" id={`fv-${k}-err`}>
-        {errors[k]}
-      </p>
-    ) : null;
+  const err = (k: string, inputId: string) => <FieldError {...fe.error(k, inputId)} />;
 
   return (
-    <div>
+    <div ref={fieldsRef}>
       <div className="relative overflow-x-auto">
         <table className="data-table">
           <caption className="sr-only">Fermenters</caption>
@@ -78,7 +93,7 @@ export default function FermentersEditor({ initial, volumeUnit }: { initial: Fer
           </thead>
           <tbody>
             {items.map((item) => (
-              <Row key={item.id} item={item} onSave={(patch) => update(item, patch)} err={err} />
+              <Row key={item.id} item={item} onSave={(patch) => update(item, patch)} err={err} numberFormat={numberFormat} unit={volumeUnit} />
             ))}
           </tbody>
         </table>
@@ -87,18 +102,19 @@ export default function FermentersEditor({ initial, volumeUnit }: { initial: Fer
         <div className="field">
           <label htmlFor="fv-new-name">New fermenter</label>
           <input id="fv-new-name" className="input" placeholder="FV9" value={draft.name} onChange={(e) => setDraft({ ...draft, name: e.target.value })} />
-          {err('new.name')}
+          {err('new.name', 'fv-new-name')}
         </div>
         <div className="field">
           <label htmlFor="fv-new-cap">Capacity ({volumeUnit})</label>
-          <input
+          <NumberField
             id="fv-new-cap"
             className="input w-32"
-            inputMode="decimal"
+            format={numberFormat}
+            unit={volumeUnit}
             value={draft.capacity}
-            onChange={(e) => setDraft({ ...draft, capacity: e.target.value })}
+            onValueChange={(capacity) => setDraft({ ...draft, capacity })}
           />
-          {err('new.capacity')}
+          {err('new.capacity', 'fv-new-cap')}
         </div>
         <button type="button" className="btn" onClick={add}>
           Add fermenter
@@ -111,7 +127,19 @@ export default function FermentersEditor({ initial, volumeUnit }: { initial: Fer
   );
 }
 
-function Row({ item, onSave, err }: { item: FermenterItem; onSave: (p: Partial<FermenterItem>) => void; err: (k: string) => React.ReactNode }) {
+function Row({
+  item,
+  onSave,
+  err,
+  numberFormat,
+  unit,
+}: {
+  item: FermenterItem;
+  onSave: (p: Partial<FermenterItem>) => void;
+  err: (k: string, inputId: string) => React.ReactNode;
+  numberFormat: NumberFormat;
+  unit: string;
+}) {
   const [name, setName] = useState(item.name);
   const [capacity, setCapacity] = useState(item.capacity);
   const [active, setActive] = useState(item.active);
@@ -122,14 +150,14 @@ function Row({ item, onSave, err }: { item: FermenterItem; onSave: (p: Partial<F
           Name of {item.name}
         </label>
         <input id={`fv-${item.id}-name`} className="input w-28" value={name} onChange={(e) => setName(e.target.value)} />
-        {err(`${item.id}.name`)}
+        {err(`${item.id}.name`, `fv-${item.id}-name`)}
       </td>
       <td>
         <label className="sr-only" htmlFor={`fv-${item.id}-cap`}>
           Capacity of {item.name}
         </label>
-        <input id={`fv-${item.id}-cap`} className="input w-28" inputMode="decimal" value={capacity} onChange={(e) => setCapacity(e.target.value)} />
-        {err(`${item.id}.capacity`)}
+        <NumberField id={`fv-${item.id}-cap`} className="input w-28" format={numberFormat} unit={unit} value={capacity} onValueChange={setCapacity} />
+        {err(`${item.id}.capacity`, `fv-${item.id}-cap`)}
       </td>
       <td>{item.holds ?? 'free'}</td>
       <td>

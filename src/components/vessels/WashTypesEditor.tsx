@@ -1,5 +1,8 @@
 import { useState } from 'react';
 import { WASH_CATEGORIES } from '../../lib/vocabulary';
+import FieldError from '../forms/FieldError';
+import { useFieldErrors } from '../forms/useFieldErrors';
+import NumberField, { readNumber, refuseUnread, typedText, type NumberFormat } from '../forms/NumberField';
 
 export interface WashTypeItem {
   id: number;
@@ -9,23 +12,48 @@ export interface WashTypeItem {
   terminalMax: string;
   typicalOg: string;
 }
-const num = (s: string) => Number(s.trim().replace(',', '.'));
+const SG_FIELDS = ['terminalMin', 'terminalMax', 'typicalOg'] as const;
 const blank: WashTypeItem = { id: 0, name: '', category: 'grain', terminalMin: '', terminalMax: '', typicalOg: '' };
 
 /** Managers edit each wash type's expected terminal range (what "finished" means for it) and typical OG. */
-export default function WashTypesEditor({ initial }: { initial: WashTypeItem[] }) {
-  const [items, setItems] = useState(initial);
-  const [errors, setErrors] = useState<Record<string, string>>({});
+export default function WashTypesEditor({
+  initial,
+  numberFormat = 'point',
+}: {
+  /** Gravities as plain numbers ("1.002"); written here in the distillery's number format. */
+  initial: WashTypeItem[];
+  numberFormat?: NumberFormat;
+}) {
+  const sgText = (v: number | null) => typedText(v, numberFormat, 3);
+  const [items, setItems] = useState(() =>
+    initial.map((i) => ({
+      ...i,
+      terminalMin: i.terminalMin && sgText(Number(i.terminalMin)),
+      terminalMax: i.terminalMax && sgText(Number(i.terminalMax)),
+      typicalOg: i.typicalOg && sgText(Number(i.typicalOg)),
+    })),
+  );
+  const { attach: fieldsRef, ...fe } = useFieldErrors();
+  const fieldError = (k: string, inputId: string) => <FieldError {...fe.error(k, inputId)} />;
   const [message, setMessage] = useState('');
 
   async function save(item: WashTypeItem) {
     setMessage('');
+    const key = String(item.id);
+    // Gravities never carry thousands: "1.050" in comma format is refused ("did you mean 1,050?"), not read as 1050.
+    const read = Object.fromEntries(SG_FIELDS.map((k) => [k, readNumber(item[k], numberFormat, { grouping: false })]));
+    const refused = refuseUnread(SG_FIELDS.map((k) => [`wt-${item.id || 'new'}-${k}`, read[k]!]));
+    if (refused) {
+      setMessage(refused);
+      return false;
+    }
+    const value = (k: (typeof SG_FIELDS)[number]) => (read[k]!.ok ? read[k]!.value : null);
     const body = {
       name: item.name,
       category: item.category,
-      terminalMin: num(item.terminalMin),
-      terminalMax: num(item.terminalMax),
-      typicalOg: item.typicalOg.trim() ? num(item.typicalOg) : null,
+      terminalMin: value('terminalMin'),
+      terminalMax: value('terminalMax'),
+      typicalOg: value('typicalOg'),
     };
     const res = await fetch(item.id ? `/api/wash-types/${item.id}` : '/api/wash-types', {
       method: item.id ? 'PATCH' : 'POST',
@@ -33,21 +61,20 @@ export default function WashTypesEditor({ initial }: { initial: WashTypeItem[] }
       body: JSON.stringify(body),
     }).catch(() => null);
     const data = await res?.json().catch(() => null);
-    const key = String(item.id);
     if (!res?.ok) {
-      setErrors(Object.fromEntries(Object.entries(data?.error?.fields ?? {}).map(([k, v]) => [`${key}.${k}`, String(v)])));
-      setMessage(data?.error?.message ?? 'Not saved.');
+      // Each message beside its field in this wash type (the first focused); the status line says only the rest.
+      setMessage(fe.fromAnswer(data?.error, { scope: key, fallback: 'Not saved.' }));
       return false;
     }
-    setErrors({});
+    fe.clear();
     const w = data.washType;
     const saved = {
       id: w.id,
       name: w.name,
       category: w.category,
-      terminalMin: w.terminalMin.toFixed(3),
-      terminalMax: w.terminalMax.toFixed(3),
-      typicalOg: w.typicalOg === null ? '' : w.typicalOg.toFixed(3),
+      terminalMin: sgText(w.terminalMin),
+      terminalMax: sgText(w.terminalMax),
+      typicalOg: sgText(w.typicalOg),
     };
     setItems(item.id ? items.map((i) => (i.id === item.id ? saved : i)) : [...items, saved]);
     setMessage(`Saved ${w.name}.`);
@@ -55,12 +82,12 @@ export default function WashTypesEditor({ initial }: { initial: WashTypeItem[] }
   }
 
   return (
-    <div>
+    <div ref={fieldsRef}>
       <div className="grid gap-3 md:grid-cols-2">
         {items.map((item) => (
-          <Editor key={item.id} item={item} errors={errors} onSave={save} />
+          <Editor key={item.id} item={item} fieldError={fieldError} onSave={save} numberFormat={numberFormat} />
         ))}
-        <Editor key={`new-${items.length}`} item={blank} errors={errors} onSave={save} />
+        <Editor key={`new-${items.length}`} item={blank} fieldError={fieldError} onSave={save} numberFormat={numberFormat} />
       </div>
       <p role="status" aria-live="polite" className="mt-2 text-sm">
         {message}
@@ -69,20 +96,36 @@ export default function WashTypesEditor({ initial }: { initial: WashTypeItem[] }
   );
 }
 
-function Editor({ item, errors, onSave }: { item: WashTypeItem; errors: Record<string, string>; onSave: (i: WashTypeItem) => Promise<boolean> }) {
+function Editor({
+  item,
+  fieldError,
+  onSave,
+  numberFormat,
+}: {
+  item: WashTypeItem;
+  fieldError: (k: string, inputId: string) => React.ReactNode;
+  onSave: (i: WashTypeItem) => Promise<boolean>;
+  numberFormat: NumberFormat;
+}) {
   const [v, setV] = useState(item);
   const id = item.id || 'new';
   const f = (k: keyof WashTypeItem, label: string, decimal = false) => (
     <div className="field">
       <label htmlFor={`wt-${id}-${k}`}>{label}</label>
-      <input
-        id={`wt-${id}-${k}`}
-        className="input"
-        inputMode={decimal ? 'decimal' : undefined}
-        value={v[k] as string}
-        onChange={(e) => setV({ ...v, [k]: e.target.value })}
-      />
-      {errors[`${item.id}.${k}`] && <p className="field-error">{errors[`${item.id}.${k}`]}</p>}
+      {decimal ? (
+        <NumberField
+          id={`wt-${id}-${k}`}
+          format={numberFormat}
+          grouping={false}
+          unit="SG"
+          decimals={3}
+          value={v[k] as string}
+          onValueChange={(text) => setV({ ...v, [k]: text })}
+        />
+      ) : (
+        <input id={`wt-${id}-${k}`} className="input" value={v[k] as string} onChange={(e) => setV({ ...v, [k]: e.target.value })} />
+      )}
+      {fieldError(`${item.id}.${k}`, `wt-${id}-${k}`)}
     </div>
   );
   return (
@@ -106,6 +149,7 @@ function Editor({ item, errors, onSave }: { item: WashTypeItem; errors: Record<s
               </option>
             ))}
           </select>
+          {fieldError(`${item.id}.category`, `wt-${id}-category`)}
         </div>
         {f('terminalMin', 'Finishes from (SG)', true)}
         {f('terminalMax', 'to (SG)', true)}

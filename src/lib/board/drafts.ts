@@ -3,6 +3,8 @@
  * warnings are previewed while it is dragged), and where the booking dialog opens for a wash,
  * a click on an empty row or the Book a run button.
  */
+import { earliestStartNotAtRisk, washBookingSlot } from '../schedule';
+import { defaultRunMinutes, toScheduleRun, toScheduleStill } from './planning';
 import { slotAtX, xOf } from './timeline';
 import type { BoardFerment, BoardRun, BoardStill } from './types';
 
@@ -40,20 +42,34 @@ export function firstBookableHour(now: Date, windowStart: Date, pxPerHour: numbe
 }
 
 /**
- * Where booking a wash starts: the first still that takes all of it (else the first still), on
- * the hour, not before the end of its ready window nor before now. Null without stills.
+ * Where booking a wash starts: the earliest slot inside a still's operating hours, with room
+ * for the run and its cleaning before closing, not on a closure and clear of `runs`, from when
+ * the wash is no longer at risk (the at-risk threshold quantile of its ready time; a fresh
+ * stable period for a stalled or souring wash) and not before now; on the hour, on the stills
+ * that take all of it (else any). Without such a slot, the first still that takes it, on the
+ * hour from that moment. Null without stills.
  */
 export function fermentBooking(
-  f: Pick<BoardFerment, 'id' | 'volumeLitres' | 'readyP90' | 'readyAt'>,
+  f: Pick<BoardFerment, 'id' | 'volumeLitres' | 'status' | 'emptiedAt' | 'confirmedAt' | 'readyP10' | 'readyP90' | 'readyAt'>,
   stills: readonly BoardStill[],
   now: Date,
   windowStart: Date,
   pxPerHour: number,
   timeZone: string,
+  opts: { runs?: readonly BoardRun[]; atRiskThreshold?: number; stableDays?: number } = {},
 ): { stillId: number; startsAt: Date; ferments: Array<{ fermentId: number; litres: number }> } | null {
   if (stills.length === 0) return null;
+  const after = earliestStartNotAtRisk({ ferments: [{ fermentId: f.id, litres: f.volumeLitres }] }, [f], now, opts.stableDays ?? 3, opts.atRiskThreshold);
+  const slot = washBookingSlot({
+    litres: f.volumeLitres,
+    stills: stills.map(toScheduleStill),
+    runs: (opts.runs ?? []).map(toScheduleRun),
+    timeZone,
+    notBefore: after,
+    durationMinutes: (still, litres) => defaultRunMinutes(still, 'stripping', litres),
+  });
+  if (slot) return { stillId: slot.stillId, startsAt: slot.startsAt, ferments: [{ fermentId: f.id, litres: slot.litres }] };
   const still = stills.find((s) => s.capacityLitres >= f.volumeLitres) ?? stills[0]!;
-  const after = new Date(Math.max(now.getTime(), (f.readyP90 ?? f.readyAt ?? now).getTime()));
   const startsAt = slotAtX(xOf(after, windowStart, pxPerHour), windowStart, pxPerHour, 60, timeZone);
   return {
     stillId: still.id,

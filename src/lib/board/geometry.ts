@@ -3,7 +3,7 @@
  * hours and ready windows on a still's row, a run block's box and texts, a vessel's bar, and
  * the labels of the time axis. Pure: the island draws what these return.
  */
-import { occupiedRange, openIntervals } from '../schedule';
+import { actualSpan, hasActualTimes, occupiedRange, openIntervals, timingWords } from '../schedule';
 import { formatVolume, type UnitSystem } from '../units';
 import { windowPlacement, type VesselBar, type WindowPlacement } from './planning';
 import { hourMarks, xOf, type BoardDay, type BoardWindow, type MoveTarget, type Zoom, type ZoomSpec } from './timeline';
@@ -47,17 +47,21 @@ export const initials = (name: string): string =>
     .slice(0, 3)
     .toUpperCase();
 
-/** The runs each still shows in the window, cancelled runs left out; every still has a list. */
+/** The runs each still shows in the window (a started or done run where it really ran, or where it was booked), cancelled runs left out; every still has a list. */
 export function runsByStill(
   stills: readonly Pick<BoardStill, 'id'>[],
   runs: readonly BoardRun[],
   win: Pick<BoardWindow, 'start' | 'end'>,
+  now?: Date,
 ): Map<number, BoardRun[]> {
   const m = new Map<number, BoardRun[]>();
   for (const s of stills) m.set(s.id, []);
   for (const r of runs) {
     if (r.status === 'cancelled') continue;
-    if (r.endsAt <= win.start || r.startsAt >= win.end) continue;
+    const span = actualSpan(r, now);
+    const end = Math.max(span.end.getTime(), r.endsAt.getTime());
+    const start = Math.min(span.start.getTime(), r.startsAt.getTime());
+    if (end <= win.start.getTime() || start >= win.end.getTime()) continue;
     m.get(r.stillId)?.push(r);
   }
   return m;
@@ -108,13 +112,18 @@ export function readyWindowSpans(
 }
 
 export interface RunBlockLayout {
+  /** The block: where the run really ran once started (a running run until now or its booked end, whichever is later), else its booking. */
   x: number;
   width: number;
   cleaningWidth: number;
+  /** The booking drawn faintly beside a started or done run, for comparison; null before a start. */
+  booked: Span | null;
   fermentCodes: string;
   chargeText: string;
   operatorText: string;
   timeText: string;
+  /** "started 40 min late, finished 1 h 5 min early"; empty before a start. */
+  timingText: string;
   placement: WindowPlacement;
 }
 
@@ -127,28 +136,40 @@ export interface RunBlockContext {
   timeZone: string;
   zoom: Zoom;
   units: UnitSystem;
+  /** The board's clock: a running run is drawn at least until now. */
+  now?: Date;
 }
 
 /** A run block's box and texts: its worst window placement over the washes it takes, its charge, its operator. */
 export function runBlockLayout(r: BoardRun, c: RunBlockContext): RunBlockLayout {
   const still = c.stillById.get(r.stillId);
-  const occupied = occupiedRange(r, still);
+  const actual = hasActualTimes(r) || r.status === 'done';
+  const span = actualSpan(r, c.now);
+  const occupied = occupiedRange({ ...r, startsAt: span.start, endsAt: span.end }, still);
   const codes = r.ferments.map((x) => c.fermentById.get(x.fermentId)?.code ?? '?').join(' + ');
   const worst = r.ferments
     .map((x) => c.fermentById.get(x.fermentId))
     .filter((f) => f && !f.emptiedAt)
-    .map((f) => windowPlacement(r.startsAt, f!));
+    .map((f) => windowPlacement(span.start, f!));
   const placement = worst.includes('before') ? 'before' : worst.includes('inside') ? 'inside' : worst.includes('after') ? 'after' : 'unknown';
   const charge = r.chargeLitres ?? (r.ferments.length ? r.ferments.reduce((s, x) => s + x.litres, 0) : null);
   const op = r.operatorId ? (c.personById.get(r.operatorId)?.name ?? '') : '';
+  const booking = `${dayAndTime(r.startsAt, c.timeZone)} to ${dayAndTime(r.endsAt, c.timeZone)}`;
+  const timeText = !actual
+    ? booking
+    : r.status === 'running'
+      ? `running since ${dayAndTime(span.start, c.timeZone)} (booked ${booking})`
+      : `ran ${dayAndTime(span.start, c.timeZone)} to ${dayAndTime(span.end, c.timeZone)} (booked ${booking})`;
   return {
-    x: xOf(r.startsAt, c.windowStart, c.pxPerHour),
-    width: xOf(r.endsAt, r.startsAt, c.pxPerHour),
-    cleaningWidth: xOf(occupied.end, r.endsAt, c.pxPerHour),
+    x: xOf(span.start, c.windowStart, c.pxPerHour),
+    width: xOf(span.end, span.start, c.pxPerHour),
+    cleaningWidth: xOf(occupied.end, span.end, c.pxPerHour),
+    booked: actual ? { x: xOf(r.startsAt, c.windowStart, c.pxPerHour), w: xOf(r.endsAt, r.startsAt, c.pxPerHour) } : null,
     fermentCodes: codes,
     chargeText: charge ? formatVolume(charge, c.units) : '',
     operatorText: op ? (c.zoom === 'day' ? op : initials(op)) : '',
-    timeText: `${dayAndTime(r.startsAt, c.timeZone)} to ${dayAndTime(r.endsAt, c.timeZone)}`,
+    timeText,
+    timingText: timingWords(r),
     placement,
   };
 }

@@ -1,5 +1,5 @@
 /** Planning rules of the board that sit on top of the schedule rules: readiness, risk, vessels, defaults. */
-import { computeRunWarnings, estimateDurationMinutes, needsCleaningAfter } from '../schedule';
+import { computeRunWarnings, DEFAULT_AT_RISK_THRESHOLD, estimateDurationMinutes, fermentRisks, isAtRisk, needsCleaningAfter } from '../schedule';
 import type { FermentState, Run, RunType, Still, Warning } from '../schedule';
 import type { Board, BoardFerment, BoardFermentJson, BoardPayload, BoardRun, BoardRunJson, BoardStill } from './types';
 
@@ -7,11 +7,17 @@ const DAY_MS = 86_400_000;
 const d = (iso: string | null): Date | null => (iso === null ? null : new Date(iso));
 
 export function hydrateRun(r: BoardRunJson): BoardRun {
-  return { ...r, startsAt: new Date(r.startsAt), endsAt: new Date(r.endsAt) };
+  return { ...r, startsAt: new Date(r.startsAt), endsAt: new Date(r.endsAt), startedAt: d(r.startedAt ?? null), finishedAt: d(r.finishedAt ?? null) };
 }
 
 export function dehydrateRun(r: BoardRun): BoardRunJson {
-  return { ...r, startsAt: r.startsAt.toISOString(), endsAt: r.endsAt.toISOString() };
+  return {
+    ...r,
+    startsAt: r.startsAt.toISOString(),
+    endsAt: r.endsAt.toISOString(),
+    startedAt: r.startedAt?.toISOString() ?? null,
+    finishedAt: r.finishedAt?.toISOString() ?? null,
+  };
 }
 
 export function hydrateFerment(f: BoardFermentJson): BoardFerment {
@@ -33,6 +39,7 @@ export function hydrateBoard(p: BoardPayload, clientNow?: Date): Board {
     // A cached payload's "now" is when it was built; the island passes its own clock.
     now: clientNow && clientNow.getTime() > Date.parse(p.now) ? clientNow : new Date(p.now),
     stableDays: p.stableDays,
+    atRiskThreshold: p.atRiskThreshold ?? DEFAULT_AT_RISK_THRESHOLD,
     stills: p.stills,
     runs: p.runs.map(hydrateRun),
     ferments: p.ferments.map(hydrateFerment),
@@ -55,6 +62,7 @@ export function toScheduleRun(r: BoardRun): Run {
     ferments: r.ferments,
     feeds: r.feeds,
     lowWinesLitres: r.lowWinesLitres,
+    bookedAtRisk: r.bookedAtRisk,
   };
 }
 
@@ -87,7 +95,9 @@ export function toScheduleStill(s: BoardStill): Still {
 }
 
 /** Warnings for every live run on the board, by run id (one pass of the shared rules). */
-export function boardWarnings(board: Pick<Board, 'stills' | 'runs' | 'ferments' | 'timeZone' | 'now'>): Map<number, Warning[]> {
+export function boardWarnings(
+  board: Pick<Board, 'stills' | 'runs' | 'ferments' | 'timeZone' | 'now'> & Partial<Pick<Board, 'atRiskThreshold'>>,
+): Map<number, Warning[]> {
   const stills = new Map(board.stills.map((s) => [s.id, toScheduleStill(s)]));
   const ferments = new Map(board.ferments.map((f) => [f.id, toFermentState(f)]));
   const runs = board.runs.map(toScheduleRun);
@@ -95,7 +105,7 @@ export function boardWarnings(board: Pick<Board, 'stills' | 'runs' | 'ferments' 
   for (const run of runs) {
     const still = stills.get(run.stillId);
     if (!still || run.status === 'cancelled') continue;
-    out.set(run.id, computeRunWarnings(run, { still, runs, ferments, timeZone: board.timeZone, now: board.now }));
+    out.set(run.id, computeRunWarnings(run, { still, runs, ferments, timeZone: board.timeZone, now: board.now, atRiskThreshold: board.atRiskThreshold }));
   }
   return out;
 }
@@ -159,29 +169,36 @@ export function bookableFerments(ferments: readonly BoardFerment[], runs: readon
 
 export interface RunAtRisk {
   run: BoardRun;
-  reasons: Array<{ fermentId: number; code: string; why: 'stalled' | 'souring' | 'late' }>;
+  /**
+   * Per wash at risk: stalled or souring; early (starts before P10) or at_risk (before the
+   * threshold quantile) for a run booked that way; late when the run was not at risk when
+   * booked and the ready window has since moved past it.
+   */
+  reasons: Array<{ fermentId: number; code: string; why: 'stalled' | 'souring' | 'early' | 'at_risk' | 'late' }>;
 }
 
 /**
- * Runs not yet started whose wash may not be there: a linked ferment is
- * stalled or souring, or its predicted ready time (P90 when there is one)
- * falls after the run starts. Soonest runs first.
+ * Runs not yet over whose wash may not be there, by the one at-risk test (`fermentRisk`:
+ * the run starts before the `threshold` quantile of a linked wash's ready time, or the
+ * wash is stalled or souring). Soonest runs first.
  */
-export function runsAtRisk(runs: readonly BoardRun[], ferments: readonly BoardFerment[], now: Date): RunAtRisk[] {
+export function runsAtRisk(
+  runs: readonly BoardRun[],
+  ferments: readonly BoardFerment[],
+  now: Date,
+  threshold: number = DEFAULT_AT_RISK_THRESHOLD,
+): RunAtRisk[] {
   const byId = new Map(ferments.map((f) => [f.id, f]));
   const out: RunAtRisk[] = [];
   for (const run of runs) {
     if (run.status !== 'planned' && run.status !== 'confirmed') continue;
     if (run.endsAt.getTime() <= now.getTime()) continue;
     const reasons: RunAtRisk['reasons'] = [];
-    for (const c of run.ferments) {
-      const f = byId.get(c.fermentId);
-      if (!f || f.emptiedAt) continue;
-      if (f.status === 'stalled' || f.status === 'souring') reasons.push({ fermentId: f.id, code: f.code, why: f.status });
-      else if (f.status !== 'finished') {
-        const late = f.readyP90 ?? f.readyAt;
-        if (late && late.getTime() > run.startsAt.getTime()) reasons.push({ fermentId: f.id, code: f.code, why: 'late' });
-      }
+    for (const { fermentId, risk } of fermentRisks(run, byId, threshold)) {
+      if (!isAtRisk(risk)) continue;
+      const code = byId.get(fermentId)!.code;
+      if (risk === 'stalled' || risk === 'souring') reasons.push({ fermentId, code, why: risk });
+      else reasons.push({ fermentId, code, why: run.bookedAtRisk === false ? 'late' : risk === 'early' ? 'early' : 'at_risk' });
     }
     if (reasons.length) out.push({ run, reasons });
   }
@@ -217,16 +234,21 @@ export interface VesselBar {
   pitchedAt: Date;
   readyP10: Date | null;
   readyP90: Date | null;
-  /** When the fermenter frees up: the earliest live run taking this wash, else when it was emptied; null = open-ended. */
+  /** When the fermenter frees up: when it was emptied, else the earliest run still to take this wash; null = open-ended. */
   freeAt: Date | null;
   freedBy: 'run' | 'emptied' | null;
 }
 
-/** Per fermenter, each ferment from pitching through its ready window to the run that empties it. */
+/**
+ * Per fermenter, each ferment from pitching through its ready window to the run that empties it.
+ * An emptied ferment's bar ends at its emptying (a stripping run frees it when its charges take
+ * the wash, or someone marked it). A ferment not emptied although a run that took part of it is
+ * done still holds wash: its bar runs on to the next run booked on it, or stays open.
+ */
 export function vesselBars(fermenters: readonly { id: number }[], ferments: readonly BoardFerment[], runs: readonly BoardRun[]): Map<number, VesselBar[]> {
   const firstRun = new Map<number, Date>();
   for (const r of runs) {
-    if (r.status === 'cancelled') continue;
+    if (r.status === 'cancelled' || r.status === 'done') continue;
     for (const c of r.ferments) {
       const prev = firstRun.get(c.fermentId);
       if (!prev || r.startsAt < prev) firstRun.set(c.fermentId, r.startsAt);

@@ -34,6 +34,11 @@ export interface BoardRunJson {
   version: number;
   sequence: number;
   notes: string | null;
+  /** When the run was actually started and finished (null until then); startsAt/endsAt stay the booking. */
+  startedAt: string | null;
+  finishedAt: string | null;
+  /** Whether the run was at risk when last booked or moved (absent on runs not yet saved). */
+  bookedAtRisk?: boolean;
 }
 
 export interface BoardFermentJson {
@@ -59,6 +64,8 @@ export interface BoardPayload {
   timeZone: string;
   now: string;
   stableDays: number;
+  /** A run is at risk when its wash is less likely than this (0–1) to be confirmable by its start. */
+  atRiskThreshold: number;
   stills: BoardStill[];
   runs: BoardRunJson[];
   ferments: BoardFermentJson[];
@@ -73,6 +80,9 @@ export interface BoardRun extends Run {
   version: number;
   sequence: number;
   notes: string | null;
+  /** When the run was actually started and finished (null until then); startsAt/endsAt stay the booking. */
+  startedAt?: Date | null;
+  finishedAt?: Date | null;
 }
 
 export interface BoardFerment {
@@ -98,6 +108,7 @@ export interface Board {
   timeZone: string;
   now: Date;
   stableDays: number;
+  atRiskThreshold: number;
   stills: BoardStill[];
   runs: BoardRun[];
   ferments: BoardFerment[];

@@ -1,5 +1,5 @@
 /** The board's words: run names, announcements for screen readers, what changed after a conflict. */
-import { wallClock } from '../schedule';
+import { formatMoment } from '../schedule';
 import type { Run, RunType } from '../schedule';
 import { RUN_STATUS_LABELS, RUN_TYPE_LABELS } from '../vocabulary';
 
@@ -9,10 +9,12 @@ export { RUN_STATUS_LABELS, RUN_TYPE_LABELS };
 export const WEEKDAY_NAMES = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
-/** 'Tuesday 06:00' on the distillery's clock. */
-export function dayAndTime(date: Date, timeZone: string): string {
-  const w = wallClock(date, timeZone);
-  return `${WEEKDAY_NAMES[w.weekday]} ${w.hm}`;
+/**
+ * 'Tuesday 06:00' on the distillery's clock within six days of `now` (either way), else
+ * dated: 'Tue 15 Dec 06:00', 'Wed 8 Jan 3000, 08:00' (the one rule, `formatMoment`).
+ */
+export function dayAndTime(date: Date, timeZone: string, now?: Date): string {
+  return formatMoment(date, timeZone, { now });
 }
 
 /** 'Tue 3 Dec' for a local date. */
@@ -22,21 +24,21 @@ export function shortDate(ymd: string, weekday: number): string {
 }
 
 /** 'Stripping run moved to Wash Still 2, Tuesday 06:00'. */
-export function movedMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string): string {
-  return `${RUN_TYPE_LABELS[type]} moved to ${stillName}, ${dayAndTime(startsAt, timeZone)}`;
+export function movedMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string, now?: Date): string {
+  return `${RUN_TYPE_LABELS[type]} moved to ${stillName}, ${dayAndTime(startsAt, timeZone, now)}`;
 }
 
 /** While dragging: 'Stripping run over Wash Still 2, Tuesday 06:00'. */
-export function overMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string): string {
-  return `${RUN_TYPE_LABELS[type]} over ${stillName}, ${dayAndTime(startsAt, timeZone)}`;
+export function overMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string, now?: Date): string {
+  return `${RUN_TYPE_LABELS[type]} over ${stillName}, ${dayAndTime(startsAt, timeZone, now)}`;
 }
 
-export function pickedUpMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string): string {
-  return `Picked up ${RUN_TYPE_LABELS[type].toLowerCase()} on ${stillName}, ${dayAndTime(startsAt, timeZone)}. Arrow keys move it by a slot or a still; space or enter drops it; escape puts it back.`;
+export function pickedUpMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string, now?: Date): string {
+  return `Picked up ${RUN_TYPE_LABELS[type].toLowerCase()} on ${stillName}, ${dayAndTime(startsAt, timeZone, now)}. Arrow keys move it by a slot or a still; space or enter drops it; escape puts it back.`;
 }
 
-export function cancelledDragMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string): string {
-  return `Move cancelled. ${RUN_TYPE_LABELS[type]} stays on ${stillName}, ${dayAndTime(startsAt, timeZone)}`;
+export function cancelledDragMessage(type: RunType, stillName: string, startsAt: Date, timeZone: string, now?: Date): string {
+  return `Move cancelled. ${RUN_TYPE_LABELS[type]} stays on ${stillName}, ${dayAndTime(startsAt, timeZone, now)}`;
 }
 
 /** The fields of a run a person notices changing. */
@@ -51,11 +53,12 @@ export function describeChanges(
   theirs: ComparableRun,
   names: { still: (id: number) => string; person: (id: number | null) => string },
   timeZone: string,
+  now?: Date,
 ): string[] {
   const out: string[] = [];
   if (mine.stillId !== theirs.stillId) out.push(`still is now ${names.still(theirs.stillId)}`);
-  if (mine.startsAt.getTime() !== theirs.startsAt.getTime()) out.push(`starts ${dayAndTime(theirs.startsAt, timeZone)}`);
-  if (mine.endsAt.getTime() !== theirs.endsAt.getTime()) out.push(`ends ${dayAndTime(theirs.endsAt, timeZone)}`);
+  if (mine.startsAt.getTime() !== theirs.startsAt.getTime()) out.push(`starts ${dayAndTime(theirs.startsAt, timeZone, now)}`);
+  if (mine.endsAt.getTime() !== theirs.endsAt.getTime()) out.push(`ends ${dayAndTime(theirs.endsAt, timeZone, now)}`);
   if (mine.status !== theirs.status) out.push(`status is now ${RUN_STATUS_LABELS[theirs.status].toLowerCase()}`);
   if (mine.type !== theirs.type) out.push(`now a ${RUN_TYPE_LABELS[theirs.type].toLowerCase()}`);
   if (mine.operatorId !== theirs.operatorId) out.push(`operator is now ${names.person(theirs.operatorId)}`);

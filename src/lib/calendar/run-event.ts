@@ -63,11 +63,19 @@ export interface RunEventDescriptionInput {
   /** Link to the run on the board. */
   url?: string;
   timeZone: string;
+  /** For a started or done run: how its actual times compare with the booking kept beside them. */
+  actual?: { words: string; bookedStart: Date; bookedEnd: Date };
 }
 
 /** Plain-text DESCRIPTION of a run's event (escaped later by the feed builder). */
 export function describeRunEvent(input: RunEventDescriptionInput): string {
   const lines: string[] = [`${RUN_TYPE_LABELS[input.runType]} on ${input.stillName}`];
+  if (input.actual) {
+    const w = input.actual.words;
+    lines.push(
+      `${w.charAt(0).toUpperCase()}${w.slice(1)} (booked ${formatWhen(input.actual.bookedStart, input.timeZone)} – ${formatWhen(input.actual.bookedEnd, input.timeZone)})`,
+    );
+  }
   if (input.chargeLitres !== null) lines.push(`Charge: ${formatLitres(input.chargeLitres)}`);
   for (const f of input.ferments) {
     const amount = f.litres !== null && f.litres !== undefined ? ` (${formatLitres(f.litres)})` : '';

@@ -2,7 +2,18 @@
  * Pure aggregations behind the manager's reports. Inputs are plain rows the
  * server loads; nothing here reads a database or a clock.
  */
-import { availableHours, bookedHours, idleWaitingHours, type FermentState, type Run, type Still, type TimeRange } from '../schedule';
+import {
+  actualHours,
+  actualSpan,
+  availableHours,
+  bookedHours,
+  idleWaitingHours,
+  type FermentState,
+  type Run,
+  type Still,
+  type TimedRun,
+  type TimeRange,
+} from '../schedule';
 import { isoWeekOf, monthOf, weeksIn } from './periods';
 import { mean, spreadOf, type Spread } from './stats';
 
@@ -17,24 +28,29 @@ export interface UtilisationRow {
   week: string;
   /** Operating hours within the week and range, closures removed. */
   availableHours: number;
-  /** Hours of live (not cancelled) runs inside operating hours: the plan. */
+  /** Hours of live (not cancelled) runs at their bookings inside operating hours: the plan. */
   bookedHours: number;
-  /** Hours of runs marked done inside operating hours. */
+  /** Hours of live runs inside operating hours, started and done runs at their actual times, the rest as booked. */
+  actualHours: number;
+  /** Hours of runs marked done, at their actual times, inside operating hours. */
   doneHours: number;
+  /** The same done runs at their bookings: doneHours − doneBookedHours is how much longer (or shorter) they really took. */
+  doneBookedHours: number;
   /** Hours the still stood free waiting for a wash to be confirmed finished. */
   idleWaitingHours: number;
-  /** bookedHours / availableHours, null when the still was not open. */
+  /** actualHours / availableHours, null when the still was not open. */
   utilisation: number | null;
 }
 
 /**
- * Per still and ISO week: available, booked (planned), done and idle-waiting hours
- * (definitions in lib/schedule/utilisation.ts). Idle waiting is measured over the
+ * Per still and ISO week: available, booked (planned), actual, done (actual and as booked) and
+ * idle-waiting hours (definitions in lib/schedule/utilisation.ts and actual-times.ts). A run that
+ * was started counts at its actual times in the utilisation. Idle waiting is measured over the
  * whole week slice, so a wait that began in an earlier week counts in each week it covers.
  */
 export function utilisationByStillWeek(
   stills: readonly Still[],
-  runs: readonly Run[],
+  runs: ReadonlyArray<Run & Partial<Pick<TimedRun, 'startedAt' | 'finishedAt'>>>,
   ferments: ReadonlyMap<number, FermentState>,
   range: TimeRange,
   timeZone: string,
@@ -47,15 +63,18 @@ export function utilisationByStillWeek(
     for (const w of weeks) {
       const available = availableHours(still, w.range, timeZone);
       const booked = bookedHours(mine, still, w.range, timeZone);
+      const actual = actualHours(mine, still, w.range, timeZone);
       out.push({
         stillId: still.id,
         stillName: still.name,
         week: w.week,
         availableHours: available,
         bookedHours: booked,
-        doneHours: bookedHours(done, still, w.range, timeZone),
+        actualHours: actual,
+        doneHours: actualHours(done, still, w.range, timeZone),
+        doneBookedHours: bookedHours(done, still, w.range, timeZone),
         idleWaitingHours: idleWaitingHours(mine, still, ferments, w.range, timeZone),
-        utilisation: available > 0 ? booked / available : null,
+        utilisation: available > 0 ? actual / available : null,
       });
     }
   }
@@ -245,6 +264,10 @@ export interface ThroughputRunInput {
   type: string;
   /** When the run finished (or its booked end when no finish time was stamped). */
   finishedAt: Date;
+  /** Its booking, and when it really started (null: not stamped, the booked start stands). */
+  startsAt: Date;
+  endsAt: Date;
+  startedAt: Date | null;
   /** Wash litres charged from ferments (stripping runs). */
   washLitres: number;
   /** LAA recorded per fraction. */
@@ -259,16 +282,24 @@ export interface ThroughputWeek {
   /** LAA in hearts off spirit / redistillation runs. */
   heartsLaa: number;
   runs: number;
+  /** Still hours of those runs as booked, and as they really ran (start to finish). */
+  bookedHours: number;
+  actualHours: number;
 }
 
-/** Done runs per ISO week of their finish: wash distilled and LAA collected. */
+/** Done runs per ISO week of their finish: wash distilled, LAA collected, still hours booked and actually run. */
 export function throughputByWeek(runs: readonly ThroughputRunInput[], weeks: readonly string[], timeZone: string): ThroughputWeek[] {
-  const rows = new Map<string, ThroughputWeek>(weeks.map((w) => [w, { week: w, washLitres: 0, lowWinesLaa: 0, heartsLaa: 0, runs: 0 }]));
+  const rows = new Map<string, ThroughputWeek>(
+    weeks.map((w) => [w, { week: w, washLitres: 0, lowWinesLaa: 0, heartsLaa: 0, runs: 0, bookedHours: 0, actualHours: 0 }]),
+  );
   for (const r of runs) {
     const w = isoWeekOf(r.finishedAt, timeZone);
     const row = rows.get(w);
     if (!row) continue;
     row.runs += 1;
+    row.bookedHours += (r.endsAt.getTime() - r.startsAt.getTime()) / HOUR_MS;
+    const span = actualSpan({ status: 'done', startsAt: r.startsAt, endsAt: r.endsAt, startedAt: r.startedAt, finishedAt: r.finishedAt });
+    row.actualHours += (span.end.getTime() - span.start.getTime()) / HOUR_MS;
     if (r.type === 'stripping') row.washLitres += r.washLitres;
     for (const f of r.fractions) {
       if (f.fraction === 'low_wines') row.lowWinesLaa += f.laa;

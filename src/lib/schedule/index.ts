@@ -17,6 +17,7 @@ export type {
 } from './types';
 export {
   addDaysYmd,
+  closesNextDay,
   isClosedOn,
   isPlanningDate,
   PLANNING_YEARS,
@@ -38,7 +39,25 @@ export { lineLitres, runChargeLitres, type ChargeSource, type LitresLine } from 
 export type { FermentLookup, WarningContext } from './warnings';
 export { bubblePointC, estimateDurationMinutes, WASH_SPECIFIC_HEAT_KJ_PER_KG_K, WATER_DENSITY_20C_KG_PER_L } from './duration';
 export type { DurationEstimate, DurationEstimateInput } from './duration';
-export { findEarliestSlots } from './slots';
-export type { Slot, SlotRequest } from './slots';
-export { availableHours, bookedHours, idleWaitingHours } from './utilisation';
-export { formatLitres, formatReadyWindow, formatWhen } from './format';
+export { findEarliestSlots, washBookingSlot } from './slots';
+export type { Slot, SlotRequest, WashSlotRequest } from './slots';
+export { actualHours, availableHours, bookedHours, idleWaitingHours } from './utilisation';
+export { formatLitres, formatMoment, formatReadyWindow, formatWhen, formatYmd, NEAR_DAYS } from './format';
+export type { MomentOptions } from './format';
+export { DEFAULT_AT_RISK_THRESHOLD, earliestStartNotAtRisk, fermentRisk, fermentRisks, isAtRisk, readyQuantile, RISK_ORDER, runRisk, worseRisk } from './risk';
+export type { RiskFerments, RunRisk } from './risk';
+export {
+  actualSpan,
+  correctionProblems,
+  deviationWords,
+  durationWords,
+  finishQuestion,
+  hasActualTimes,
+  overrunHours,
+  startQuestions,
+  timingWords,
+  CLOCK_SKEW_MS,
+  MAX_CORRECTION_DAYS,
+  MIN_RUN_MINUTES,
+} from './actual-times';
+export type { CorrectionInput, StartCheckInput, TimedRun } from './actual-times';

@@ -38,8 +38,9 @@ export interface Slot {
  * - the still's capacity takes `chargeLitres`;
  * - it starts on the slot grid (local clock, from `notBefore` onwards);
  * - the run starts and ends inside ONE open interval of the still (operating
- *   hours merged across midnight, closure dates removed), so a run may span
- *   midnight only where the still is open through it;
+ *   hours merged across midnight, overnight shifts included, closure dates
+ *   removed), so a run may span midnight only where the still is open through
+ *   it, and the still's cleaning slot after it also fits before closing;
  * - its busy time (run plus the still's cleaning slot) overlaps no live run
  *   on that still, nor their cleaning slots.
  * Suggestions on one still do not overlap each other: after a slot is found,
@@ -69,7 +70,7 @@ export function findEarliestSlots(request: SlotRequest): Slot[] {
     let perStill = 0;
     for (const interval of openIntervals(still, horizon, request.timeZone)) {
       let start = snapToSlot(interval.start, slotMinutes, request.timeZone, 'up');
-      while (perStill < limit && start.getTime() + durationMs <= interval.end.getTime()) {
+      while (perStill < limit && start.getTime() + durationMs + cleaningMs <= interval.end.getTime()) {
         const end = start.getTime() + durationMs;
         const clash = busy.find((b) => start.getTime() < b.end.getTime() && b.start.getTime() < end + cleaningMs);
         if (!clash) {
@@ -88,4 +89,51 @@ export function findEarliestSlots(request: SlotRequest): Slot[] {
 
   found.sort((a, b) => a.startsAt.getTime() - b.startsAt.getTime() || a.order - b.order);
   return found.slice(0, limit).map(({ stillId, startsAt, endsAt }) => ({ stillId, startsAt, endsAt }));
+}
+
+export interface WashSlotRequest {
+  /** Litres of wash to book. */
+  litres: number;
+  /** Candidate stills in board order; the ones that take all of the wash are preferred. */
+  stills: readonly Still[];
+  runs: readonly Run[];
+  timeZone: string;
+  /** Not before this (now, or when the wash stops being at risk). */
+  notBefore: Date;
+  /** The run's length on a still (the booking dialog's default for that still and charge). */
+  durationMinutes: (still: Still, litres: number) => number;
+  /** Default 60: bookings start on the hour. */
+  slotMinutes?: number;
+  /** Default 42. */
+  horizonDays?: number;
+}
+
+/**
+ * Where booking a wash starts: the earliest feasible slot (inside operating hours with room
+ * for the run and its cleaning, not on a closure, clear of other runs) on the stills that
+ * take all of the wash, else on any still with as much as it takes. Earlier start wins,
+ * then board order. Null when no still has such a slot within the horizon.
+ */
+export function washBookingSlot(request: WashSlotRequest): (Slot & { litres: number }) | null {
+  const takesAll = request.stills.filter((s) => s.capacityLitres + 1e-6 >= request.litres);
+  const candidates = takesAll.length ? takesAll : request.stills;
+  let best: (Slot & { litres: number }) | null = null;
+  for (const still of candidates) {
+    const litres = Math.min(request.litres, still.capacityLitres);
+    const durationMinutes = Math.max(1, Math.round(request.durationMinutes(still, litres)));
+    const [slot] = findEarliestSlots({
+      durationMinutes,
+      chargeLitres: litres,
+      notBefore: request.notBefore,
+      stills: [still],
+      runs: request.runs,
+      timeZone: request.timeZone,
+      type: 'stripping',
+      limit: 1,
+      horizonDays: request.horizonDays ?? 42,
+      slotMinutes: request.slotMinutes ?? 60,
+    });
+    if (slot && (!best || slot.startsAt.getTime() < best.startsAt.getTime())) best = { ...slot, litres };
+  }
+  return best;
 }

@@ -177,17 +177,41 @@ export function clipRanges(ranges: TimeRange[], range: TimeRange): TimeRange[] {
   return out;
 }
 
+/** True when the hours close on the next day (an overnight shift): close at or before open, e.g. 22:00–06:00. */
+export function closesNextDay(hours: Pick<OperatingHours, 'open' | 'close'>): boolean {
+  return parseHm(hours.close) <= parseHm(hours.open);
+}
+
+/** The opening that starts on local date `ymd`; an overnight shift (close at or before open) ends on the next day. */
 function hoursIntervalForDay(ymd: string, hours: OperatingHours, timeZone: string): TimeRange {
   const open = parseHm(hours.open);
   const close = parseHm(hours.close);
-  if (close <= open) throw new RangeError(`Operating hours close (${hours.close}) must be after open (${hours.open})`);
-  return { start: zonedDateTime(ymd, open, timeZone), end: zonedDateTime(ymd, close, timeZone) };
+  const start = zonedDateTime(ymd, open, timeZone);
+  return { start, end: close > open ? zonedDateTime(ymd, close, timeZone) : zonedDateTime(addDaysYmd(ymd, 1), close, timeZone) };
+}
+
+/** `ranges` (merged, sorted) minus `cuts` (merged, sorted). */
+function subtractRanges(ranges: TimeRange[], cuts: TimeRange[]): TimeRange[] {
+  const out: TimeRange[] = [];
+  for (const r of ranges) {
+    let start = r.start.getTime();
+    const end = r.end.getTime();
+    for (const c of cuts) {
+      if (c.end.getTime() <= start || c.start.getTime() >= end) continue;
+      if (c.start.getTime() > start) out.push({ start: new Date(start), end: c.start });
+      start = Math.max(start, c.end.getTime());
+    }
+    if (end > start) out.push({ start: new Date(start), end: new Date(end) });
+  }
+  return out;
 }
 
 /**
  * The still's open time within `range`, as merged intervals (a Monday
- * 00:00–24:00 followed by Tuesday 00:00–24:00 is one interval). Closure
- * dates are removed unless `includeClosures` is set.
+ * 00:00–24:00 followed by Tuesday 00:00–24:00 is one interval). Hours that
+ * close at or before they open are an overnight shift into the next day
+ * (Friday 22:00–06:00 runs until Saturday 06:00). Closure dates are removed,
+ * each a whole local day, unless `includeClosures` is set.
  */
 export function openIntervals(
   still: Pick<Still, 'operatingHours' | 'closures'>,
@@ -199,14 +223,17 @@ export function openIntervals(
   const firstDay = addDaysYmd(wallClock(range.start, timeZone).ymd, -1);
   const lastDay = wallClock(range.end, timeZone).ymd;
   const raw: TimeRange[] = [];
+  const closed: TimeRange[] = [];
   for (let ymd = firstDay; ymd <= lastDay; ymd = addDaysYmd(ymd, 1)) {
-    if (!options.includeClosures && isClosedOn(still, ymd)) continue;
     const weekday = weekdayOfYmd(ymd);
     for (const hours of still.operatingHours) {
       if (hours.weekday === weekday) raw.push(hoursIntervalForDay(ymd, hours, timeZone));
     }
+    if (!options.includeClosures && isClosedOn(still, ymd))
+      closed.push({ start: zonedDateTime(ymd, 0, timeZone), end: zonedDateTime(addDaysYmd(ymd, 1), 0, timeZone) });
   }
-  return clipRanges(mergeRanges(raw), range);
+  // A closed date takes its whole local day, including the morning end of the night before's shift.
+  return clipRanges(subtractRanges(mergeRanges(raw), mergeRanges(closed)), range);
 }
 
 /** Local dates (YYYY-MM-DD) touched by [start, end). */

@@ -11,7 +11,7 @@ export interface OperatingHours {
   weekday: Weekday;
   /** 'HH:MM'. */
   open: string;
-  /** 'HH:MM', after `open`; '24:00' means the end of that day. */
+  /** 'HH:MM'; '24:00' means the end of that day; at or before `open` means the next day (an overnight shift). */
   close: string;
 }
 
@@ -60,6 +60,8 @@ export interface Run {
   feeds: RunFeed[];
   /** For stripping runs: expected or recorded low wines output. */
   lowWinesLitres?: number | null;
+  /** Whether the run was at risk when last booked or moved; false with a run at risk now = its wash is late. */
+  bookedAtRisk?: boolean;
 }
 
 /** A ferment's state on the board is its forecast's status. */

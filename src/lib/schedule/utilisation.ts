@@ -2,6 +2,7 @@
  * Still utilisation figures for reports. All figures are hours of elapsed
  * time (a 00:00–24:00 day is 23 or 25 hours on a daylight-saving change).
  */
+import { actualSpan, type TimedRun } from './actual-times';
 import { lookupFerment, type FermentLookup } from './warnings';
 import { occupiedRange } from './overlap';
 import { clipRanges, mergeRanges, openIntervals, totalHours } from './time';
@@ -28,6 +29,21 @@ function intersect(a: TimeRange[], b: TimeRange[]): TimeRange[] {
 export function bookedHours(runs: readonly Run[], still: Pick<Still, 'id' | 'operatingHours' | 'closures'>, range: TimeRange, timeZone: string): number {
   const booked = mergeRanges(runs.filter((r) => r.stillId === still.id && r.status !== 'cancelled').map((r) => ({ start: r.startsAt, end: r.endsAt })));
   return totalHours(intersect(booked, openIntervals(still, range, timeZone)));
+}
+
+/**
+ * Like bookedHours, but a started or done run counts at its actual times (actualSpan: start to
+ * finish, a running run to its booked end) and the rest at their bookings: the hours the still
+ * was really in use, inside its available hours within `range`.
+ */
+export function actualHours(
+  runs: ReadonlyArray<Run & Partial<Pick<TimedRun, 'startedAt' | 'finishedAt'>>>,
+  still: Pick<Still, 'id' | 'operatingHours' | 'closures'>,
+  range: TimeRange,
+  timeZone: string,
+): number {
+  const used = mergeRanges(runs.filter((r) => r.stillId === still.id && r.status !== 'cancelled').map((r) => actualSpan(r)));
+  return totalHours(intersect(used, openIntervals(still, range, timeZone)));
 }
 
 /**

@@ -4,6 +4,7 @@
  */
 import { runChargeLitres } from './charge';
 import { formatLitres, formatReadyWindow, formatWhen, formatYmd } from './format';
+import { DEFAULT_AT_RISK_THRESHOLD, fermentRisk } from './risk';
 import { isClosedOn, localDatesTouched, openIntervals, totalHours } from './time';
 import type { FermentState, Run, RunType, Still, Warning } from './types';
 
@@ -17,6 +18,8 @@ export interface WarningContext {
   ferments: FermentLookup;
   timeZone: string;
   now: Date;
+  /** The distillery's at-risk threshold (0–1); default 0.8. */
+  atRiskThreshold?: number;
 }
 
 const LITRE_EPSILON = 1e-6;
@@ -43,23 +46,24 @@ function isAhead(run: Run, now: Date): boolean {
 }
 
 /**
- * Readiness of one linked ferment, for a run not yet started. Severity ladder:
- * - starts before the forecast's P10 (the early edge of the ready window):
- *   `booked_before_ready`, danger — the wash will very likely still be fermenting;
- * - starts before the predicted ready time (median): `booked_before_ready`, warning;
- * - starts before P90: `booked_before_stable`, warning — it may be done, but
- *   the run sits inside the ready window;
- * - starts after P90 but the wash is not yet confirmed: `booked_before_stable`,
- *   info (the calendar shows the run TENTATIVE until the readings settle);
+ * Readiness of one linked ferment, for a run not yet started, by the one at-risk test
+ * (`fermentRisk`: the run is at risk when it starts before the threshold quantile of the
+ * wash's ready time, early when before P10):
+ * - early: `booked_before_ready`, danger — the wash will very likely still be fermenting;
+ * - at risk: `booked_before_ready`, warning;
+ * - not at risk but not yet confirmed: `booked_before_stable`, info (the calendar shows the
+ *   run TENTATIVE until the readings settle);
  * - no forecast yet: `booked_before_stable`, warning;
  * - finished, but the run starts before the stability rule was met:
  *   `booked_before_stable`, warning.
+ * An early or at-risk run reads "booked before its wash is likely ready", unless it was not
+ * at risk when booked (`bookedAtRisk` false): then its wash is late.
  * Stalled and souring washes get their own danger codes instead.
  */
-function readinessWarnings(run: Run, f: FermentState, timeZone: string): Warning[] {
+function readinessWarnings(run: Run, f: FermentState, timeZone: string, now: Date, threshold: number): Warning[] {
   const start = run.startsAt.getTime();
   const name = `Wash ${f.code}`;
-  const window = formatReadyWindow(f, timeZone);
+  const window = formatReadyWindow(f, timeZone, now);
   const base = { fermentId: f.id };
 
   if (f.status === 'stalled') {
@@ -82,22 +86,31 @@ function readinessWarnings(run: Run, f: FermentState, timeZone: string): Warning
           ...base,
           code: 'booked_before_stable',
           severity: 'warning',
-          message: `${name} was confirmed stable only at ${formatWhen(f.confirmedAt, timeZone)}, after this run starts`,
+          message: `${name} was confirmed stable only at ${formatWhen(f.confirmedAt, timeZone, now)}, after this run starts`,
         },
       ];
     }
     return [];
   }
-  if (f.readyP10 && start < f.readyP10.getTime()) {
-    return [{ ...base, code: 'booked_before_ready', severity: 'danger', message: `${name} will very likely still be fermenting: ${window}` }];
+  const risk = fermentRisk(run.startsAt, f, threshold);
+  const lead = `${run.bookedAtRisk === false ? 'Wash late' : 'Booked before its wash is likely ready'}: wash ${f.code}`;
+  if (risk === 'early') {
+    return [
+      { ...base, code: 'booked_before_ready', severity: 'danger', message: `${lead} will very likely still be fermenting when this run starts (${window})` },
+    ];
   }
-  if (f.readyAt && start < f.readyAt.getTime()) {
-    return [{ ...base, code: 'booked_before_ready', severity: 'warning', message: `${name} is more likely than not still fermenting: ${window}` }];
+  if (risk === 'at_risk') {
+    const pct = Math.round(threshold * 100);
+    return [
+      {
+        ...base,
+        code: 'booked_before_ready',
+        severity: 'warning',
+        message: `${lead} is less than ${pct} % likely to be confirmed stable by the start (${window})`,
+      },
+    ];
   }
-  if (f.readyP90 && start < f.readyP90.getTime()) {
-    return [{ ...base, code: 'booked_before_stable', severity: 'warning', message: `${name} is not confirmed stable: ${window}` }];
-  }
-  if (window) {
+  if (risk === 'ok' && window) {
     return [
       { ...base, code: 'booked_before_stable', severity: 'info', message: `${name} should be finished by then (${window}) but is not confirmed stable yet` },
     ];
@@ -139,7 +152,7 @@ export function computeRunWarnings(run: Run, ctx: WarningContext): Warning[] {
           message:
             f.pitchedAt === null
               ? `Wash ${f.code} is not pitched yet`
-              : `Wash ${f.code} is pitched only at ${formatWhen(f.pitchedAt, timeZone)}, after this run starts`,
+              : `Wash ${f.code} is pitched only at ${formatWhen(f.pitchedAt, timeZone, now)}, after this run starts`,
         });
         continue;
       }
@@ -148,11 +161,11 @@ export function computeRunWarnings(run: Run, ctx: WarningContext): Warning[] {
           code: 'ferment_emptied',
           severity: 'danger',
           fermentId: f.id,
-          message: `Wash ${f.code} was emptied from its fermenter at ${formatWhen(f.emptiedAt, timeZone)}, before this run starts`,
+          message: `Wash ${f.code} was emptied from its fermenter at ${formatWhen(f.emptiedAt, timeZone, now)}, before this run starts`,
         });
         continue;
       }
-      warnings.push(...readinessWarnings(run, f, timeZone));
+      warnings.push(...readinessWarnings(run, f, timeZone, now, ctx.atRiskThreshold ?? DEFAULT_AT_RISK_THRESHOLD));
     }
   }
 
@@ -193,7 +206,7 @@ export function computeRunWarnings(run: Run, ctx: WarningContext): Warning[] {
       warnings.push({
         code: 'outside_hours',
         severity: 'warning',
-        message: `Part of this run, from ${formatWhen(firstOutside, timeZone)}, falls outside the operating hours of ${still.name}`,
+        message: `Part of this run, from ${formatWhen(firstOutside, timeZone, now)}, falls outside the operating hours of ${still.name}`,
       });
     }
   }
@@ -216,7 +229,7 @@ export function computeRunWarnings(run: Run, ctx: WarningContext): Warning[] {
         code: 'operator_double_booked',
         severity: 'danger',
         runId: other.id,
-        message: `The operator is also booked on a ${RUN_LABELS[other.type]} from ${formatWhen(other.startsAt, timeZone)} to ${formatWhen(other.endsAt, timeZone)}`,
+        message: `The operator is also booked on a ${RUN_LABELS[other.type]} from ${formatWhen(other.startsAt, timeZone, now)} to ${formatWhen(other.endsAt, timeZone, now)}`,
       });
     }
   }
@@ -229,7 +242,7 @@ export function computeRunWarnings(run: Run, ctx: WarningContext): Warning[] {
       seen.add(feed.runId);
       const feeder = ctx.runs.find((r) => r.id === feed.runId);
       if (!feeder) continue;
-      const when = `${formatWhen(feeder.startsAt, timeZone)}`;
+      const when = formatWhen(feeder.startsAt, timeZone, now);
       if (feeder.status === 'cancelled') {
         warnings.push({
           code: 'spirit_over_feed',
@@ -244,7 +257,7 @@ export function computeRunWarnings(run: Run, ctx: WarningContext): Warning[] {
           code: 'spirit_before_feed',
           severity: 'danger',
           runId: feeder.id,
-          message: `This spirit run starts before the ${RUN_LABELS[feeder.type]} feeding it ends (${formatWhen(feeder.endsAt, timeZone)})`,
+          message: `This spirit run starts before the ${RUN_LABELS[feeder.type]} feeding it ends (${formatWhen(feeder.endsAt, timeZone, now)})`,
         });
       }
       if (feeder.lowWinesLitres !== null && feeder.lowWinesLitres !== undefined) {

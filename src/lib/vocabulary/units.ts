@@ -17,3 +17,8 @@ export const NUMBER_FORMAT_LABELS: Record<NumberFormat, string> = {
   point: 'Decimal point (1,200.5)',
   comma: 'Decimal comma (1.200,5)',
 };
+
+export const UNIT_SYSTEM_LABELS: Record<UnitSystem, string> = {
+  metric: 'Metric (litres, °C)',
+  us: 'US (US gallons, °F)',
+};

@@ -5,7 +5,7 @@
  * (another host, `//host`, `/\host`, a tab or an encoded backslash after the slash, an API
  * path, a scheme) falls back to the board.
  */
-export const PAGE_ROOTS = ['board', 'ferments', 'runs', 'reports', 'settings', 'vessels', 'account'] as const;
+export const PAGE_ROOTS = ['board', 'ferments', 'runs', 'reports', 'settings', 'vessels', 'account', 'setup'] as const;
 
 export const DEFAULT_NEXT = '/';
 

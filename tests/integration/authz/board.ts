@@ -7,6 +7,8 @@ const MANAGERS = ['manager'] as const;
 
 let n = 0;
 const unique = (prefix: string) => `${prefix}-${Date.now().toString(36)}-${++n}`;
+/** A day `days` ahead of today (UTC), inside the booking horizon. */
+const dayAhead = (days: number) => new Date(Date.now() + days * 86_400_000).toISOString().slice(0, 10);
 const range = `from=${encodeURIComponent('2031-01-05T00:00:00Z')}&to=${encodeURIComponent('2031-01-12T00:00:00Z')}`;
 /** A version no run has: allowed roles get 409 (stale) and nothing changes. */
 const STALE = { version: 999_999 };
@@ -22,7 +24,7 @@ export const cases: RouteCase[] = [
     allowed: BOOKERS,
     path: () => '/api/runs',
     crossTenant: true,
-    body: (fx) => ({ stillId: fx.a.stillId, type: 'cleaning', startsAt: `2032-0${1 + (n++ % 8)}-14T08:00:00Z`, durationMinutes: 60 }),
+    body: (fx) => ({ stillId: fx.a.stillId, type: 'cleaning', startsAt: `${dayAhead(30 + (n++ % 200))}T08:00:00Z`, durationMinutes: 60 }),
   },
   { route: '/api/runs/[id]', method: 'GET', allowed: EVERYONE, path: (fx) => `/api/runs/${fx.a.runId}` },
   {
@@ -30,12 +32,20 @@ export const cases: RouteCase[] = [
     method: 'PATCH',
     allowed: MOVERS,
     path: (fx) => `/api/runs/${fx.a.runId}`,
-    body: () => ({ ...STALE, startsAt: '2031-02-03T08:00:00Z' }),
+    body: () => ({ ...STALE, startsAt: `${dayAhead(60)}T08:00:00Z` }),
     note: 'a move (distillers may); a stale version answers 409 and changes nothing',
   },
   { route: '/api/runs/[id]/cancel', method: 'POST', allowed: BOOKERS, path: (fx) => `/api/runs/${fx.a.runId}/cancel`, body: () => STALE },
   { route: '/api/runs/[id]/start', method: 'POST', allowed: MOVERS, path: (fx) => `/api/runs/${fx.a.runId}/start`, body: () => STALE },
   { route: '/api/runs/[id]/finish', method: 'POST', allowed: MOVERS, path: (fx) => `/api/runs/${fx.a.runId}/finish`, body: () => STALE },
+  {
+    route: '/api/runs/[id]/actual-times',
+    method: 'PATCH',
+    allowed: BOOKERS,
+    path: (fx) => `/api/runs/${fx.a.runId}/actual-times`,
+    body: () => ({ ...STALE, startedAt: new Date().toISOString(), reason: 'authorization matrix' }),
+    note: 'correcting actual times (managers and planners); a stale version answers 409 and changes nothing',
+  },
   { route: '/api/stills', method: 'GET', allowed: EVERYONE, path: () => '/api/stills', crossTenant: false },
   {
     route: '/api/stills',
@@ -63,7 +73,7 @@ export const cases: RouteCase[] = [
     allowed: MANAGERS,
     path: () => '/api/stills/closures',
     crossTenant: true,
-    body: (fx) => ({ stillId: fx.a.stillId, startsOn: '2031-03-02', endsOn: '2031-03-03', reason: 'Boiler service' }),
+    body: (fx) => ({ stillId: fx.a.stillId, startsOn: dayAhead(40), endsOn: dayAhead(41), reason: 'Boiler service' }),
   },
   { route: '/api/stills/closures/[id]', method: 'DELETE', allowed: MANAGERS, path: (fx) => `/api/stills/closures/${fx.a.closureId}`, isolated: true },
 ];

@@ -26,7 +26,7 @@ export const cases: RouteCase[] = [
   {
     route: '/api/ferments',
     method: 'POST',
-    allowed: PLANNERS,
+    allowed: LOGGERS,
     path: () => '/api/ferments',
     body: (fx) => ({ code: unique('AZ'), washTypeId: fx.a.washTypeId, fermenterId: null, volume: 1000, pitchedAt: '2025-01-01T08:00:00Z', og: 1.06 }),
   },
@@ -35,7 +35,7 @@ export const cases: RouteCase[] = [
   {
     route: '/api/ferments/[id]/empty',
     method: 'POST',
-    allowed: PLANNERS,
+    allowed: LOGGERS,
     path: (fx) => `/api/ferments/${fx.a.fermentId}/empty`,
     body: () => ({ reason: 'distilled' }),
     isolated: true,
@@ -66,4 +66,12 @@ export const cases: RouteCase[] = [
   },
   { route: '/api/readings/[id]', method: 'PATCH', allowed: LOGGERS, path: (fx) => `/api/readings/${fx.a.readingId}`, body: () => ({ note: 'rechecked' }) },
   { route: '/api/readings/[id]', method: 'DELETE', allowed: LOGGERS, path: (fx) => `/api/readings/${fx.a.readingId}`, isolated: true },
+  {
+    route: '/api/readings/[id]/accept',
+    method: 'POST',
+    allowed: LOGGERS,
+    path: (fx) => `/api/readings/${fx.a.readingId}/accept`,
+    body: () => ({}),
+    note: 'the fixture reading is not held for review: 409 once past the gate',
+  },
 ];

@@ -76,7 +76,7 @@ export const pageCases: PageCase[] = [
   // Ferments: everyone reads, planners and managers write, distillers also log readings.
   { page: '/ferments', allowed: EVERYONE, path: () => '/ferments' },
   { page: '/ferments/[id]', allowed: EVERYONE, path: (fx) => `/ferments/${fx.a.fermentId}` },
-  { page: '/ferments/new', allowed: ['manager', 'planner'], path: () => '/ferments/new' },
+  { page: '/ferments/new', allowed: ['manager', 'planner', 'distiller'], path: () => '/ferments/new', note: 'distillers start ferments on the floor' },
   { page: '/ferments/[id]/edit', allowed: ['manager', 'planner'], path: (fx) => `/ferments/${fx.a.fermentId}/edit` },
   { page: '/ferments/[id]/log', allowed: ['manager', 'planner', 'distiller'], path: (fx) => `/ferments/${fx.a.fermentId}/log` },
 
@@ -85,6 +85,9 @@ export const pageCases: PageCase[] = [
 
   // Reports: managers and planners.
   { page: '/reports', allowed: ['manager', 'planner'], path: () => '/reports' },
+
+  // Getting started: the people who set the distillery up.
+  { page: '/setup', allowed: ['manager', 'planner'], path: () => '/setup', note: 'the getting-started checklist' },
 
   // Settings.
   { page: '/settings', allowed: EVERYONE, path: () => '/settings' },

@@ -86,13 +86,15 @@ export function useRunDrag(data: BoardData, editing: RunEditing, options: { drag
   const candidateWarnings = (base: BoardRun, target: MoveTarget): Warning[] => {
     const still = stillById.get(target.stillId);
     if (!still) return [];
-    const moved = toScheduleRun({ ...base, ...target });
+    // A run dropped somewhere is booked anew there: its risk at booking is what the move makes it.
+    const moved = toScheduleRun({ ...base, ...target, bookedAtRisk: undefined });
     return computeRunWarnings(moved, {
       still: toScheduleStill(still),
       runs: board.runs.map(toScheduleRun),
       ferments: new Map(board.ferments.map((f) => [f.id, toFermentState(f)])),
       timeZone: tz,
       now: board.now,
+      atRiskThreshold: board.atRiskThreshold,
     });
   };
 

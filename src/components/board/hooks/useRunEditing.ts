@@ -19,6 +19,7 @@ import {
   type MoveTarget,
 } from '../../../lib/board';
 import { api, type ApiError } from '../api';
+import { runRecordHref, takesRecord } from '../../runs/record-link';
 import type { DialogDraft } from '../RunDialog';
 import type { BoardData } from './useBoardData';
 
@@ -120,7 +121,11 @@ export function useRunEditing(data: BoardData, messages: { setNotice: Dispatch<S
     (fermentId: number) => {
       const f = fermentById.get(fermentId);
       if (!f) return;
-      const booking = fermentBooking(f, board.stills, board.now, win.start, spec.pxPerHour, tz);
+      const booking = fermentBooking(f, board.stills, board.now, win.start, spec.pxPerHour, tz, {
+        runs: board.runs,
+        atRiskThreshold: board.atRiskThreshold,
+        stableDays: board.stableDays,
+      });
       if (!booking) return;
       setDialogError(null);
       setDialog({ run: null, type: 'stripping', ...booking });
@@ -166,19 +171,31 @@ export function useRunEditing(data: BoardData, messages: { setNotice: Dispatch<S
     }
   };
 
+  /**
+   * Cancel: asked here, then sent. Start and finish: the dialog's confirmation has already sent
+   * them (and any questions the server asked were accepted there); a finish opens the run's record
+   * form, like the run page's Finish button.
+   */
   const onAction = async (action: 'cancel' | 'start' | 'finish', run: BoardRun) => {
-    if (action === 'cancel' && !window.confirm(`Cancel this ${RUN_TYPE_LABELS[run.type].toLowerCase()}? The still time is freed.`)) return;
+    const word = action === 'cancel' ? 'cancelled' : action === 'start' ? 'started' : 'finished';
+    if (action === 'finish' && takesRecord(run.type)) {
+      setDialog(null);
+      window.location.assign(runRecordHref(run.id));
+      return;
+    }
+    if (action !== 'cancel') {
+      setDialog(null);
+      setNotice({ tone: 'info', text: `${RUN_TYPE_LABELS[run.type]} on ${names.still(run.stillId)} ${word}.` });
+      setLive(`${RUN_TYPE_LABELS[run.type]} ${word}.`);
+      void refresh();
+      return;
+    }
+    if (!window.confirm(`Cancel this ${RUN_TYPE_LABELS[run.type].toLowerCase()}? The still time is freed.`)) return;
     setBusy(true);
-    const res =
-      action === 'cancel'
-        ? await api.cancelRun(run.id, run.version)
-        : action === 'start'
-          ? await api.startRun(run.id, run.version)
-          : await api.finishRun(run.id, run.version);
+    const res = await api.cancelRun(run.id, run.version);
     setBusy(false);
     setDialog(null);
     if (res.ok) {
-      const word = action === 'cancel' ? 'cancelled' : action === 'start' ? 'started' : 'finished';
       setNotice({ tone: 'info', text: `${RUN_TYPE_LABELS[run.type]} on ${names.still(run.stillId)} ${word}.` });
       setLive(`${RUN_TYPE_LABELS[run.type]} ${word}.`);
     } else explain(res.error, run);

@@ -23,5 +23,6 @@ export const POST = route({ auth: 'public', body: Body }, async ({ req, body }) 
     { ip: clientIp(req), userAgent: req.request.headers.get('user-agent') },
   );
   setSessionCookie(req.cookies, session.token);
-  return json({ ok: true, redirect: '/settings' });
+  // A new distillery lands on its getting-started checklist.
+  return json({ ok: true, redirect: '/setup' });
 });

@@ -6,7 +6,7 @@ export const GET = route({ auth: 'ferments.read', query: fermentListQuery }, asy
   return json({ ferments: rows });
 });
 
-export const POST = route({ auth: 'ferments.write', body: fermentInputSchema }, async ({ ctx, body }) => {
+export const POST = route({ auth: 'ferments.start', body: fermentInputSchema }, async ({ ctx, body }) => {
   const ferment = await createFerment(ctx, body);
   return json({ ferment: fermentJson(ferment) }, 201);
 });

@@ -1,7 +1,9 @@
 import { route, json, idParam } from '../../../../server/http';
-import { finishRun, runJson, versionSchema } from '../../../../server/runs';
+import { operateSchema, runJson } from '../../../../server/runs';
+import { finishRunAsked } from '../../../../server/run-times';
 
-export const POST = route({ auth: 'runs.operate', body: versionSchema }, async ({ ctx, body, params }) => {
-  const run = await finishRun(ctx, idParam(params.id), body.version);
+/** Finish a running run now: `{ version, confirm? }`; a finish minutes after the start answers 409 `confirm_required` first. */
+export const POST = route({ auth: 'runs.operate', body: operateSchema }, async ({ ctx, body, params }) => {
+  const run = await finishRunAsked(ctx, idParam(params.id), body);
   return json({ run: runJson(run) });
 });
