@@ -200,7 +200,9 @@ describe('a new distillery walks the whole cycle', () => {
     await expect.poll(async () => (await getDb().select().from(t.runs).where(eq(t.runs.id, run!.id)))[0]!.status, { timeout: 15000 }).toBe('running');
 
     // 8. Finish: seconds after the start it is questioned, then it opens the record form.
-    await openHydrated(ds.page, `/runs/${run!.id}`);
+    // (The page reloads itself after the start; wait for that, then for its islands.)
+    await ds.page.getByRole('button', { name: /^Finish / }).waitFor({ timeout: 15000 });
+    await ds.page.waitForFunction(() => document.querySelectorAll('astro-island[ssr]').length === 0);
     await ds.page.getByRole('button', { name: /^Finish / }).click();
     const confirmFinish = ds.page.getByRole('dialog');
     await confirmFinish.getByRole('button', { name: /^Finish now/ }).click();
