@@ -117,6 +117,8 @@ export const hostileScalar: fc.Arbitrary<unknown> = fc.oneof(
   { weight: 3, arbitrary: hostileString },
   { weight: 3, arbitrary: hostileNumber },
   { weight: 1, arbitrary: fc.constantFrom(true, false, null, 'NaN', 'Infinity', '-Infinity') },
+  // Numbers as typed in other locales, and moments far in the future (a typing slip, the last JavaScript date).
+  { weight: 1, arbitrary: fc.constantFrom('1,200', '1.200,5', '1 200', '12,5', '1٫5', '3000-01-08T08:00:00Z', '3000-01-08', '+275760-09-13T00:00:00.000Z') },
 );
 
 /** Arrays nested `depth` deep: [[[[...]]]]. */
