@@ -55,8 +55,6 @@ export const api = {
   createRun: (body: Record<string, unknown>) => call<RunAnswer>('POST', '/api/runs', body),
   updateRun: (id: number, body: Record<string, unknown>) => call<RunAnswer>('PATCH', `/api/runs/${id}`, body),
   cancelRun: (id: number, version: number) => call<RunAnswer>('POST', `/api/runs/${id}/cancel`, { version }),
-  startRun: (id: number, version: number) => call<RunAnswer>('POST', `/api/runs/${id}/start`, { version }),
-  finishRun: (id: number, version: number) => call<RunAnswer>('POST', `/api/runs/${id}/finish`, { version }),
   suggestions: (runId: number) =>
     call<{ runId: number; notBefore: string; slots: Array<{ stillId: number; startsAt: string; endsAt: string }> }>(
       'GET',
